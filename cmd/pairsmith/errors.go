@@ -1,0 +1,76 @@
+package main
+
+import (
+	"errors"
+	"fmt"
+	"io"
+	"strings"
+
+	"github.com/spf13/cobra"
+
+	"pairsmith/report"
+	"pairsmith/sim"
+	"pairsmith/topologies"
+	"pairsmith/units"
+)
+
+// Exit codes.
+const (
+	exitOK       = 0
+	exitFailed   = 1 // anything else: a solver failure, an unwritable output
+	exitBadInput = 2 // a bad file, flag, argument or value
+)
+
+// runError marks an error returned by a command's own work, as opposed to
+// one cobra found in the flags and arguments.
+type runError struct{ err error }
+
+func (e *runError) Error() string { return e.err.Error() }
+func (e *runError) Unwrap() error { return e.err }
+
+// inputError marks a problem with what the user gave that has no error
+// type of its own, such as a file that cannot be read.
+type inputError struct{ err error }
+
+func (e *inputError) Error() string { return e.err.Error() }
+func (e *inputError) Unwrap() error { return e.err }
+
+// badInput wraps err as bad input with context.
+func badInput(format string, args ...any) error {
+	return &inputError{fmt.Errorf(format, args...)}
+}
+
+// exitCode says how the program ends for an error from a command's work.
+func exitCode(err error) int {
+	var (
+		ue *units.Error
+		re *topologies.RangeError
+		fe *report.FormatError
+		ie *inputError
+	)
+	if errors.As(err, &ue) || errors.As(err, &re) || errors.As(err, &fe) || errors.As(err, &ie) {
+		return exitBadInput
+	}
+	return exitFailed
+}
+
+// reportError writes an error to stderr, its first line "pairsmith: …", and
+// returns the exit code. A solver failure is said to be one. Usage
+// errors (bad flags or arguments) are followed by the command's usage.
+func reportError(stderr io.Writer, cmd *cobra.Command, err error) int {
+	var re *runError
+	if !errors.As(err, &re) {
+		fmt.Fprintf(stderr, "pairsmith: %v\n", err)
+		if cmd != nil {
+			fmt.Fprintf(stderr, "\n%s", cmd.UsageString())
+		}
+		return exitBadInput
+	}
+	msg := re.err.Error()
+	var ce *sim.ConvergenceError
+	if errors.As(err, &ce) && !strings.Contains(msg, "no DC solution") {
+		msg = "no DC solution: " + msg
+	}
+	fmt.Fprintf(stderr, "pairsmith: %s\n", msg)
+	return exitCode(re.err)
+}

@@ -1,0 +1,258 @@
+// Package ngspice runs the ngspice circuit simulator in batch mode and reads
+// back the vectors a test asks for. Tests across the project use it to check
+// pairsmith's models and netlists against an independent simulator.
+//
+// Run adds a .control block to a deck: it saves exactly the requested
+// vectors, runs the deck's analysis lines and writes the vectors with
+// ngspice's wrdata command at 17 significant digits, one file per group of
+// vectors, which Run then parses into columns.
+package ngspice
+
+import (
+	"bufio"
+	"bytes"
+	"context"
+	"errors"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+)
+
+// InstallHint says how to get ngspice on a Debian or Ubuntu machine.
+const InstallHint = "apt-get install -y ngspice"
+
+// chunk is the number of vectors written per wrdata command, which keeps
+// the control lines short whatever the number of vectors asked for.
+const chunk = 40
+
+// Table holds the vectors of one analysis, as ngspice wrote them.
+type Table struct {
+	// ScaleName is the name of the sweep variable ("v-sweep", "time", or
+	// for an operating point the first vector saved).
+	ScaleName string
+	// Scale holds the sweep values, one per row.
+	Scale []float64
+	// Vectors maps each name passed to Run to its values, one per row.
+	Vectors map[string][]float64
+}
+
+// Path returns the path of the ngspice executable found on PATH.
+func Path() (string, error) {
+	p, err := exec.LookPath("ngspice")
+	if err != nil {
+		return "", fmt.Errorf("ngspice not found on PATH: %w", err)
+	}
+	return p, nil
+}
+
+// Require returns the path of ngspice for a test. When ngspice is missing it
+// fails the test if the environment variable CI is set, and otherwise skips
+// the test with a message saying how to install ngspice.
+func Require(t testing.TB) string {
+	t.Helper()
+	p, err := Path()
+	if err == nil {
+		return p
+	}
+	if _, ci := os.LookupEnv("CI"); ci {
+		t.Fatalf("ngspice is required in CI: %v (install it with %q)", err, InstallHint)
+		return ""
+	}
+	t.Skipf("ngspice is not installed (%v); install it with %q to run this test", err, InstallHint)
+	return ""
+}
+
+// Run simulates deck with `ngspice -b` in a temporary directory and returns
+// the named vectors of its analysis, for example "v(out)", "i(vdd)" or
+// "@m1[id]". The deck must be a complete netlist with a title line and one
+// analysis line (.op, .dc or .tran) and no .control block of its own; a
+// missing .end is added. Vectors must be real (not from an .ac analysis).
+// Errors carry the tail of ngspice's error output.
+func Run(deck string, vectors ...string) (Table, error) {
+	return RunContext(context.Background(), deck, vectors...)
+}
+
+// RunContext is Run with a context that can stop ngspice.
+func RunContext(ctx context.Context, deck string, vectors ...string) (Table, error) {
+	bin, err := Path()
+	if err != nil {
+		return Table{}, err
+	}
+	if len(vectors) == 0 {
+		return Table{}, errors.New("ngspice: no vectors asked for")
+	}
+	for _, v := range vectors {
+		if v == "" || strings.ContainsAny(v, " \t\r\n;") {
+			return Table{}, fmt.Errorf("ngspice: vector name %q: want a single word such as v(out) or @m1[id]", v)
+		}
+	}
+	full, err := withControl(deck, vectors)
+	if err != nil {
+		return Table{}, err
+	}
+	dir, err := os.MkdirTemp("", "pairsmith-ngspice-")
+	if err != nil {
+		return Table{}, fmt.Errorf("ngspice: %w", err)
+	}
+	defer os.RemoveAll(dir)
+	if err := os.WriteFile(filepath.Join(dir, "deck.cir"), []byte(full), 0o644); err != nil {
+		return Table{}, fmt.Errorf("ngspice: writing deck: %w", err)
+	}
+
+	cmd := exec.CommandContext(ctx, bin, "-n", "-b", "deck.cir")
+	cmd.Dir = dir
+	var stdout, stderr bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &stdout, &stderr
+	runErr := cmd.Run()
+	tail := func() string {
+		s := tailLines(stderr.String(), 15)
+		if s == "" {
+			s = tailLines(stdout.String(), 15)
+		}
+		return s
+	}
+	if runErr != nil {
+		return Table{}, fmt.Errorf("ngspice -b: %w\n%s", runErr, tail())
+	}
+	if msg := firstError(stderr.String()); msg != "" {
+		return Table{}, fmt.Errorf("ngspice reported %q\n%s", msg, tail())
+	}
+
+	tab := Table{Vectors: make(map[string][]float64, len(vectors))}
+	for i := 0; i*chunk < len(vectors); i++ {
+		group := vectors[i*chunk : min((i+1)*chunk, len(vectors))]
+		name := filepath.Join(dir, outName(i))
+		scaleName, cols, err := readWrdata(name, len(group))
+		if err != nil {
+			return Table{}, fmt.Errorf("ngspice: %w\n%s", err, tail())
+		}
+		if i == 0 {
+			tab.ScaleName, tab.Scale = scaleName, cols[0]
+		} else if len(cols[0]) != len(tab.Scale) {
+			return Table{}, fmt.Errorf("ngspice: %s has %d rows, want %d", outName(i), len(cols[0]), len(tab.Scale))
+		}
+		for j, v := range group {
+			tab.Vectors[v] = cols[j+1]
+		}
+	}
+	return tab, nil
+}
+
+func outName(i int) string { return "out" + strconv.Itoa(i) + ".txt" }
+
+// withControl inserts the control block before the deck's .end line.
+func withControl(deck string, vectors []string) (string, error) {
+	lines := strings.Split(strings.ReplaceAll(deck, "\r\n", "\n"), "\n")
+	end := -1
+	for i, l := range lines {
+		if i == 0 {
+			continue // the title line is free text
+		}
+		f := strings.ToLower(strings.TrimSpace(l))
+		if strings.HasPrefix(f, ".control") {
+			return "", fmt.Errorf("ngspice: deck line %d: the deck has its own .control block; Run supplies one", i+1)
+		}
+		if f == ".end" || strings.HasPrefix(f, ".end ") {
+			end = i
+		}
+	}
+	if strings.TrimSpace(deck) == "" {
+		return "", errors.New("ngspice: empty deck")
+	}
+	if end < 0 {
+		end = len(lines)
+		lines = append(lines, ".end")
+	}
+	var b strings.Builder
+	for _, l := range lines[:end] {
+		b.WriteString(l)
+		b.WriteByte('\n')
+	}
+	b.WriteString(".control\nset wr_singlescale\nset wr_vecnames\noption numdgt=17\n")
+	for i := 0; i < len(vectors); i += chunk {
+		b.WriteString("save " + strings.Join(vectors[i:min(i+chunk, len(vectors))], " ") + "\n")
+	}
+	b.WriteString("run\n")
+	for i := 0; i*chunk < len(vectors); i++ {
+		group := vectors[i*chunk : min((i+1)*chunk, len(vectors))]
+		b.WriteString("wrdata " + outName(i) + " " + strings.Join(group, " ") + "\n")
+	}
+	b.WriteString("quit 0\n.endc\n")
+	for _, l := range lines[end:] {
+		b.WriteString(l)
+		b.WriteByte('\n')
+	}
+	return b.String(), nil
+}
+
+// readWrdata parses one wrdata file with a single scale column and n vector
+// columns. It returns the scale name and the n+1 columns.
+func readWrdata(path string, n int) (string, [][]float64, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return "", nil, fmt.Errorf("no output from wrdata (did the analysis run?): %w", err)
+	}
+	sc := bufio.NewScanner(bytes.NewReader(data))
+	sc.Buffer(make([]byte, 0, 64*1024), 16*1024*1024)
+	if !sc.Scan() {
+		return "", nil, fmt.Errorf("%s: empty", filepath.Base(path))
+	}
+	header := strings.Fields(sc.Text())
+	if len(header) != n+1 {
+		return "", nil, fmt.Errorf("%s: header has %d columns, want %d (a complex or missing vector?)", filepath.Base(path), len(header), n+1)
+	}
+	cols := make([][]float64, n+1)
+	for row := 2; sc.Scan(); row++ {
+		f := strings.Fields(sc.Text())
+		if len(f) == 0 {
+			continue
+		}
+		if len(f) != n+1 {
+			return "", nil, fmt.Errorf("%s:%d: %d columns, want %d", filepath.Base(path), row, len(f), n+1)
+		}
+		for j, s := range f {
+			x, err := strconv.ParseFloat(s, 64)
+			if err != nil {
+				return "", nil, fmt.Errorf("%s:%d: column %d: %w", filepath.Base(path), row, j+1, err)
+			}
+			cols[j] = append(cols[j], x)
+		}
+	}
+	if err := sc.Err(); err != nil {
+		return "", nil, fmt.Errorf("%s: %w", filepath.Base(path), err)
+	}
+	if len(cols[0]) == 0 {
+		return "", nil, fmt.Errorf("%s: no data rows", filepath.Base(path))
+	}
+	return header[0], cols, nil
+}
+
+// firstError returns the first line of ngspice's error output that reports
+// an error, or "".
+func firstError(s string) string {
+	for _, l := range strings.Split(s, "\n") {
+		t := strings.TrimSpace(l)
+		if strings.HasPrefix(t, "Error") || strings.HasPrefix(t, "error") {
+			return t
+		}
+	}
+	return ""
+}
+
+// tailLines returns the last n non-empty lines of s.
+func tailLines(s string, n int) string {
+	var keep []string
+	for _, l := range strings.Split(s, "\n") {
+		if strings.TrimSpace(l) != "" {
+			keep = append(keep, l)
+		}
+	}
+	if len(keep) > n {
+		keep = keep[len(keep)-n:]
+	}
+	return strings.Join(keep, "\n")
+}

@@ -1,0 +1,210 @@
+package objectives
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"path/filepath"
+	"sort"
+	"strings"
+
+	"pairsmith/sim"
+	"pairsmith/sim/device"
+	"pairsmith/topologies"
+	"pairsmith/units"
+)
+
+// DefaultStep is the sweep step when a design file gives none.
+const DefaultStep = 10e-3
+
+// Design is one sized candidate: a family, its parameter values, the
+// process and the conditions it is evaluated at (design.md §3).
+type Design struct {
+	Topology   string
+	ProcessRef string // as written: a built-in name or a path relative to the file
+	Process    *device.Process
+	Supply     float64 // V
+	TempK      float64 // K
+	Sweep      sim.SweepSpec
+	// Params holds every parameter of the family, defaults filled in.
+	Params topologies.Values
+}
+
+// Family returns the design's family.
+func (d *Design) Family() (topologies.Family, error) { return topologies.Lookup(d.Topology) }
+
+// Conditions returns the conditions the design is built for.
+func (d *Design) Conditions() topologies.Conditions {
+	return topologies.Conditions{Process: d.Process, Supply: d.Supply, TempK: d.TempK}
+}
+
+// LoadDesign reads a design file.
+func LoadDesign(path string) (*Design, error) {
+	m, err := units.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	return readDesign(m, filepath.Dir(path))
+}
+
+// ReadDesign reads a design file's text; file names it in errors and
+// baseDir is where relative process paths start.
+func ReadDesign(file string, data []byte, baseDir string) (*Design, error) {
+	m, err := units.ReadBytes(file, data)
+	if err != nil {
+		return nil, err
+	}
+	return readDesign(m, baseDir)
+}
+
+func readDesign(m *units.Map, baseDir string) (*Design, error) {
+	if err := m.Check("topology", "process", "supply", "temperature", "sweep", "params"); err != nil {
+		return nil, err
+	}
+	if err := m.Require("topology", "process", "supply"); err != nil {
+		return nil, err
+	}
+	d := &Design{}
+	var err error
+	d.Topology, _, err = m.String("topology")
+	if err != nil {
+		return nil, err
+	}
+	fam, ferr := topologies.Lookup(d.Topology)
+	if ferr != nil {
+		want := "one of " + strings.Join(topologies.Names(), ", ")
+		if near, ok := units.Nearest(d.Topology, topologies.Names()); ok {
+			want = fmt.Sprintf("a known topology (did you mean %q?)", near)
+		}
+		return nil, m.Errorf("topology", "%s", want)
+	}
+	d.ProcessRef, _, err = m.String("process")
+	if err != nil {
+		return nil, err
+	}
+	d.Process, err = device.ResolveProcess(d.ProcessRef, baseDir)
+	if err != nil {
+		var ue *units.Error
+		if errors.As(err, &ue) {
+			return nil, err // an error inside the process file names its own place
+		}
+		return nil, &units.Error{File: m.File(), Line: m.Line("process"), Field: "process", Given: d.ProcessRef,
+			Want: "a built-in process (" + strings.Join(device.BuiltinNames(), ", ") + ") or the path of a process file", Err: err}
+	}
+	if d.Supply, _, err = m.Quantity("supply", units.Volt); err != nil {
+		return nil, err
+	}
+	if !(d.Supply > 0) || d.Supply > 20 {
+		return nil, m.Errorf("supply", "a supply voltage above 0 V and at most 20 V")
+	}
+	if d.TempK, err = m.QuantityOr("temperature", units.Temperature, 27+units.ZeroCelsius); err != nil {
+		return nil, err
+	}
+	if d.TempK < 200 || d.TempK > 500 {
+		return nil, m.Errorf("temperature", "a temperature from -73C to 226C")
+	}
+	d.Sweep = sim.SweepSpec{Low: 0, High: d.Supply, Step: DefaultStep}
+	if sw, ok, err := m.Map("sweep"); err != nil {
+		return nil, err
+	} else if ok {
+		if err := readSweep(sw, &d.Sweep, d.Supply); err != nil {
+			return nil, err
+		}
+	}
+	given := topologies.Values{}
+	if pm, ok, err := m.Map("params"); err != nil {
+		return nil, err
+	} else if ok {
+		var known []string
+		for _, p := range fam.Params() {
+			known = append(known, p.Name)
+		}
+		if err := pm.Check(known...); err != nil {
+			return nil, err
+		}
+		for _, p := range fam.Params() {
+			x, ok, err := pm.Quantity(p.Name, p.Unit)
+			if err != nil {
+				return nil, err
+			}
+			if !ok {
+				continue
+			}
+			if x < p.Min || x > p.Max {
+				return nil, pm.Errorf(p.Name, "a value from %s to %s",
+					units.Format(p.Min, p.Unit), units.Format(p.Max, p.Unit))
+			}
+			given[p.Name] = x
+		}
+	}
+	if d.Params, err = topologies.Complete(fam, given); err != nil {
+		return nil, err
+	}
+	return d, nil
+}
+
+func readSweep(sw *units.Map, sp *sim.SweepSpec, supply float64) error {
+	if err := sw.Check("low", "high", "step"); err != nil {
+		return err
+	}
+	var err error
+	if sp.Low, err = sw.QuantityOr("low", units.Volt, 0); err != nil {
+		return err
+	}
+	if sp.High, err = sw.QuantityOr("high", units.Volt, supply); err != nil {
+		return err
+	}
+	if sp.Step, err = sw.QuantityOr("step", units.Volt, DefaultStep); err != nil {
+		return err
+	}
+	key := "high"
+	if !sw.Has("high") {
+		key = "low"
+	}
+	if sp.Low < -supply || sp.High > 2*supply {
+		return sw.Errorf(key, "a sweep within -supply … 2·supply (%s … %s)",
+			units.Format(-supply, units.Volt), units.Format(2*supply, units.Volt))
+	}
+	if !(sp.High > sp.Low) {
+		return sw.Errorf(key, "low below high (low %s, high %s)",
+			units.Format(sp.Low, units.Volt), units.Format(sp.High, units.Volt))
+	}
+	if !(sp.Step > 0) {
+		return sw.Errorf("step", "a step above 0 V")
+	}
+	if (sp.High-sp.Low)/sp.Step > 1e6 {
+		return sw.Errorf("step", "a step giving at most a million points")
+	}
+	return nil
+}
+
+// Format writes the design as a design file that ReadDesign turns back
+// into the same values, bit for bit.
+func (d *Design) Format() []byte {
+	var b bytes.Buffer
+	fmt.Fprintf(&b, "topology: %s\n", d.Topology)
+	fmt.Fprintf(&b, "process: %s\n", d.ProcessRef)
+	fmt.Fprintf(&b, "supply: %s\n", units.Format(d.Supply, units.Volt))
+	fmt.Fprintf(&b, "temperature: %s\n", units.Format(d.TempK, units.Temperature))
+	fmt.Fprintf(&b, "sweep: {low: %s, high: %s, step: %s}\n", units.Format(d.Sweep.Low, units.Volt),
+		units.Format(d.Sweep.High, units.Volt), units.Format(d.Sweep.Step, units.Volt))
+	b.WriteString("params:\n")
+	fam, err := d.Family()
+	if err != nil {
+		names := make([]string, 0, len(d.Params))
+		for k := range d.Params {
+			names = append(names, k)
+		}
+		sort.Strings(names)
+		for _, k := range names {
+			fmt.Fprintf(&b, "  %s: %v\n", k, d.Params[k])
+		}
+		return b.Bytes()
+	}
+	for _, p := range fam.Params() {
+		if v, ok := d.Params[p.Name]; ok {
+			fmt.Fprintf(&b, "  %s: %s\n", p.Name, units.Format(v, p.Unit))
+		}
+	}
+	return b.Bytes()
+}

@@ -1,0 +1,192 @@
+// Package objectives turns solved sweeps into the metrics a designer
+// reads (gm flatness, power, area, where and how sharply the pairs hand
+// over), reads the design files and spec sheets that set them, and
+// evaluates one sized candidate end to end.
+package objectives
+
+import (
+	"encoding/json"
+	"math"
+
+	"pairsmith/sim"
+	"pairsmith/topologies"
+)
+
+// Caution is printed with every result.
+const Caution = "Estimates from compact models; verify with the foundry's models and a licensed sign-off flow before use."
+
+// DeadGM is the fraction of gm_max below which gm counts as zero: a pair
+// that has switched off. Where gm falls that low the ripple is unbounded.
+const DeadGM = 1e-3
+
+// Metrics are the figures of merit of one stage under one set of
+// conditions (design.md §4). Values without a meaning for the stage are
+// NaN (a single pair's switchover) or +Inf (an unbounded ripple); JSON
+// writes both as null.
+type Metrics struct {
+	GMMin           float64 // S
+	GMMax           float64 // S
+	GMRipple        float64 // gm_max/gm_min − 1; +Inf when gm falls to zero
+	Power           float64 // W, the largest over the range
+	Area            float64 // m², Σ W·L·M
+	Switchover      float64 // V, centre of the handover; NaN without one
+	TransitionWidth float64 // V, 10 % to 90 % of the NMOS share; NaN without one
+}
+
+// MarshalJSON writes the metrics with their design.md names, NaN and Inf
+// as null.
+func (m Metrics) MarshalJSON() ([]byte, error) {
+	return json.Marshal(map[string]*float64{
+		"gm_min":           finite(m.GMMin),
+		"gm_max":           finite(m.GMMax),
+		"gm_ripple":        finite(m.GMRipple),
+		"power":            finite(m.Power),
+		"area":             finite(m.Area),
+		"switchover":       finite(m.Switchover),
+		"transition_width": finite(m.TransitionWidth),
+	})
+}
+
+// UnmarshalJSON reads what MarshalJSON writes; null reads back as +Inf for
+// the ripple and NaN elsewhere.
+func (m *Metrics) UnmarshalJSON(b []byte) error {
+	var raw map[string]*float64
+	if err := json.Unmarshal(b, &raw); err != nil {
+		return err
+	}
+	get := func(k string, null float64) float64 {
+		if p := raw[k]; p != nil {
+			return *p
+		}
+		return null
+	}
+	nan := math.NaN()
+	*m = Metrics{
+		GMMin: get("gm_min", nan), GMMax: get("gm_max", nan), GMRipple: get("gm_ripple", math.Inf(1)),
+		Power: get("power", nan), Area: get("area", nan),
+		Switchover: get("switchover", nan), TransitionWidth: get("transition_width", nan),
+	}
+	return nil
+}
+
+func finite(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+// CurvePoint is one point of a swept stage.
+type CurvePoint struct {
+	VCM float64 `json:"vcm"` // V
+	GM  float64 `json:"gm"`  // S
+	IN  float64 `json:"i_n"` // A, NMOS pair total
+	IP  float64 `json:"i_p"` // A, PMOS pair total
+}
+
+// Curve extracts the gm and pair-current curves of a sweep.
+func Curve(st *topologies.Stage, res *sim.Result) []CurvePoint {
+	c := st.Circuit
+	in, ip := c.ProbeIndex(topologies.ProbeIN), c.ProbeIndex(topologies.ProbeIP)
+	out := make([]CurvePoint, res.Len())
+	for i := range out {
+		out[i] = CurvePoint{VCM: res.VCM[i], GM: res.GM[i], IN: res.Probe[in][i], IP: res.Probe[ip][i]}
+	}
+	return out
+}
+
+// Measure computes the metrics of a sweep over all its points.
+func Measure(st *topologies.Stage, res *sim.Result) Metrics {
+	c := st.Circuit
+	var m Metrics
+	m.GMMin, m.GMMax = math.Inf(1), math.Inf(-1)
+	for _, g := range res.GM {
+		m.GMMin = math.Min(m.GMMin, g)
+		m.GMMax = math.Max(m.GMMax, g)
+	}
+	m.GMRipple = Ripple(m.GMMin, m.GMMax)
+	pw := c.ProbeIndex(topologies.ProbePower)
+	m.Power = 0
+	for _, p := range res.Probe[pw] {
+		m.Power = math.Max(m.Power, p)
+	}
+	for _, t := range c.Mosfets {
+		m.Area += t.Geom.Area()
+	}
+	m.Switchover, m.TransitionWidth = math.NaN(), math.NaN()
+	if st.PairN[0] != "" && st.PairP[0] != "" {
+		in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
+		m.Switchover, m.TransitionWidth = Handover(res.VCM, in, ip)
+	}
+	return m
+}
+
+// Ripple returns gm_max/gm_min − 1, or +Inf when gm_min is zero (below
+// DeadGM·gm_max) or negative.
+func Ripple(gmMin, gmMax float64) float64 {
+	if !(gmMax > 0) || !(gmMin > DeadGM*gmMax) {
+		return math.Inf(1)
+	}
+	return gmMax/gmMin - 1
+}
+
+// Handover returns the switchover — the centre of the handover,
+// ∫ vcm · d share / ∫ d share with share = i_n / (i_n + i_p) — and the
+// transition width, from the lowest vcm where the share reaches 10 % to
+// the highest where it is still below 90 %, both interpolated linearly
+// between samples. Either is NaN when the share does not cover the
+// span it needs: no net change of share for the switchover, a share that
+// never reaches 10 % or 90 % for the width.
+func Handover(vcm, in, ip []float64) (switchover, width float64) {
+	var xs, ss []float64
+	for i := range vcm {
+		tot := in[i] + ip[i]
+		if tot > 0 {
+			xs = append(xs, vcm[i])
+			ss = append(ss, in[i]/tot)
+		}
+	}
+	switchover, width = math.NaN(), math.NaN()
+	if len(xs) < 2 {
+		return switchover, width
+	}
+	total := ss[len(ss)-1] - ss[0]
+	if math.Abs(total) > 1e-3 {
+		num := 0.0
+		for i := 0; i+1 < len(xs); i++ {
+			num += 0.5 * (xs[i] + xs[i+1]) * (ss[i+1] - ss[i])
+		}
+		switchover = num / total
+	}
+	lo := math.NaN()
+	for i, s := range ss {
+		if s >= 0.1 {
+			lo = xs[i]
+			if i > 0 {
+				lo = cross(xs[i-1], ss[i-1], xs[i], s, 0.1)
+			}
+			break
+		}
+	}
+	hi := math.NaN()
+	if ss[len(ss)-1] >= 0.9 {
+		for i := len(ss) - 1; i >= 0; i-- {
+			if ss[i] < 0.9 {
+				hi = cross(xs[i], ss[i], xs[i+1], ss[i+1], 0.9)
+				break
+			}
+		}
+	}
+	if !math.IsNaN(lo) && !math.IsNaN(hi) && hi >= lo {
+		width = hi - lo
+	}
+	return switchover, width
+}
+
+// cross interpolates where the segment (x0,s0)–(x1,s1) reaches level.
+func cross(x0, s0, x1, s1, level float64) float64 {
+	if s1 == s0 {
+		return x0
+	}
+	return x0 + (level-s0)/(s1-s0)*(x1-x0)
+}

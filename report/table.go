@@ -1,0 +1,218 @@
+package report
+
+import (
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	"pairsmith/objectives"
+)
+
+// Significant figures of the numbers in text tables.
+const tableDigits = 4
+
+// errWriter remembers the first write error, so that a table can be
+// written line by line and checked once.
+type errWriter struct {
+	w   io.Writer
+	err error
+}
+
+func (e *errWriter) printf(format string, args ...any) {
+	if e.err == nil {
+		_, e.err = fmt.Fprintf(e.w, format, args...)
+	}
+}
+
+// textTable lays out rows of cells in aligned columns. Widths count runes,
+// so µ, ² and — take one column each as they do on a terminal.
+type textTable struct {
+	right []bool // right-align column i
+	tight []bool // one space, not two, before column i
+	rows  [][]string
+}
+
+func (t *textTable) add(cells ...string) { t.rows = append(t.rows, cells) }
+
+// write writes the table, each line starting with indent and columns two
+// spaces apart (one before a tight column); trailing blanks are left off.
+func (t *textTable) write(e *errWriter, indent string) {
+	var width []int
+	for _, r := range t.rows {
+		for i, c := range r {
+			if i >= len(width) {
+				width = append(width, 0)
+			}
+			width[i] = max(width[i], utf8.RuneCountInString(c))
+		}
+	}
+	for _, r := range t.rows {
+		var b strings.Builder
+		b.WriteString(indent)
+		for i, c := range r {
+			pad := strings.Repeat(" ", width[i]-utf8.RuneCountInString(c))
+			switch {
+			case i > 0 && i < len(t.tight) && t.tight[i]:
+				b.WriteString(" ")
+			case i > 0:
+				b.WriteString("  ")
+			}
+			if i < len(t.right) && t.right[i] {
+				b.WriteString(pad + c)
+			} else {
+				b.WriteString(c + pad)
+			}
+		}
+		e.printf("%s\n", strings.TrimRight(b.String(), " "))
+	}
+}
+
+// Celsius writes a temperature in kelvin as degrees Celsius: "27 °C".
+func Celsius(tempK float64) string {
+	c := math.Round((tempK-273.15)*1e6) / 1e6
+	return strconv.FormatFloat(c, 'f', -1, 64) + " °C"
+}
+
+// Conditions describes where an evaluation was taken, in one line:
+// "current-switch on demo18 (ekv), supply 1.8 V, 27 °C, vcm 0 V to 1.8 V
+// in 10 mV steps (181 points)".
+func Conditions(ev *objectives.Evaluation) string {
+	d := ev.Design
+	proc := d.ProcessRef
+	kind := ""
+	if d.Process != nil {
+		proc, kind = d.Process.Name, d.Process.Kind
+	}
+	if kind != "" {
+		proc += " (" + kind + ")"
+	}
+	return fmt.Sprintf("%s on %s, supply %s, %s, vcm %s to %s in %s steps (%d points)",
+		d.Topology, proc, SI(d.Supply, "V", tableDigits), Celsius(d.TempK),
+		SI(d.Sweep.Low, "V", tableDigits), SI(d.Sweep.High, "V", tableDigits),
+		SI(d.Sweep.Step, "V", tableDigits), len(ev.Curve))
+}
+
+// singlePair reports whether the evaluated stage has only one input pair.
+func singlePair(ev *objectives.Evaluation) bool {
+	if ev.Stage == nil {
+		return false
+	}
+	return ev.Stage.PairN[0] == "" || ev.Stage.PairP[0] == ""
+}
+
+// RippleText writes a gm ripple for reading: "42.5 %", or
+// "∞ (gm falls to zero)" when it is unbounded (design.md §4).
+func RippleText(r float64) string {
+	v, note := rippleParts(r)
+	if note != "" {
+		return v + " " + note
+	}
+	return v
+}
+
+// rippleParts splits RippleText into the value and a note on why it has
+// none.
+func rippleParts(r float64) (value, note string) {
+	if math.IsInf(r, 1) {
+		return "∞", "(gm falls to zero)"
+	}
+	return Percent(r), ""
+}
+
+// handoverParts writes a switchover or transition width, or a dash and
+// the reason it has none.
+func handoverParts(v float64, single bool) (value, note string) {
+	switch {
+	case !math.IsNaN(v):
+		return SI(v, "V", tableDigits), ""
+	case single:
+		return "—", "(single pair)"
+	default:
+		return "—", "(no complete handover)"
+	}
+}
+
+// MetricsTable writes the metrics of an evaluation (design.md §4) as a
+// short aligned table for a terminal: a line naming the topology,
+// process and conditions, one line per metric with an SI-prefixed unit
+// and what it means, and the caution that the figures are estimates.
+func MetricsTable(w io.Writer, ev *objectives.Evaluation) error {
+	e := &errWriter{w: w}
+	m := ev.Metrics
+	single := singlePair(ev)
+	e.printf("%s\n\n", Conditions(ev))
+	// Columns: metric, number (right-aligned), unit, note and meaning.
+	t := &textTable{right: []bool{false, true, false, false}, tight: []bool{false, false, true, false}}
+	row := func(name, value, note, meaning string) {
+		num, unit, _ := strings.Cut(value, " ")
+		if note != "" {
+			meaning = note + "  " + meaning
+		}
+		t.add(name, num, unit, meaning)
+	}
+	row("gm_min", SI(m.GMMin, "S", tableDigits), "", "smallest gm over the sweep")
+	row("gm_max", SI(m.GMMax, "S", tableDigits), "", "largest gm over the sweep")
+	v, note := rippleParts(m.GMRipple)
+	row("gm_ripple", v, note, "gm_max / gm_min − 1")
+	row("power", SI(m.Power, "W", tableDigits), "", "supply power, largest over the sweep")
+	row("area", areaText(m.Area), "", "total gate area Σ W·L·m")
+	v, note = handoverParts(m.Switchover, single)
+	row("switchover", v, note, "centre of the NMOS/PMOS handover")
+	v, note = handoverParts(m.TransitionWidth, single)
+	row("transition_width", v, note, "NMOS share from 10 % to 90 %")
+	t.write(e, "  ")
+	e.printf("\n%s\n", objectives.Caution)
+	return e.err
+}
+
+// areaText writes an area in m² as µm², the unit layout uses, to four
+// significant figures: 4.2e-10 m² is "420 µm²".
+func areaText(a float64) string {
+	if math.IsNaN(a) || math.IsInf(a, 0) {
+		return SI(a, "µm²", tableDigits)
+	}
+	s := strconv.FormatFloat(a*1e12, 'g', tableDigits, 64)
+	if f, err := strconv.ParseFloat(s, 64); err == nil && math.Abs(f) >= 1 && math.Abs(f) < 1e6 {
+		s = strconv.FormatFloat(f, 'f', -1, 64)
+	}
+	return s + " µm²"
+}
+
+// DevicesTable writes the transistors of an evaluation at the middle of
+// the sweep: name, type, role, W, L, drain current, terminal voltages,
+// threshold, saturation voltage, gm and operating region. Signs are
+// SPICE's: a conducting PMOS has negative id, vgs, vds and vth.
+func DevicesTable(w io.Writer, ev *objectives.Evaluation) error {
+	e := &errWriter{w: w}
+	e.printf("devices at vcm = %s (SPICE signs: a conducting PMOS has negative id, vgs, vds, vth)\n\n",
+		SI(ev.MidVCM, "V", tableDigits))
+	t := &textTable{right: []bool{false, false, false, true, true, true, true, true, true, true, true, false}}
+	t.add("name", "type", "role", "W", "L", "id", "vgs", "vds", "vth", "vdsat", "gm", "region")
+	for _, d := range ev.Devices {
+		wtxt := SI(d.W, "m", tableDigits)
+		if d.M != 1 && d.M != 0 {
+			wtxt = strconv.FormatFloat(d.M, 'g', -1, 64) + "×" + wtxt
+		}
+		t.add(d.Name, d.Type, d.Role, wtxt, SI(d.L, "m", tableDigits),
+			SI(d.ID, "A", tableDigits), volts(d.VGS), volts(d.VDS), volts(d.VTH), volts(d.VDSAT),
+			SI(d.GM, "S", tableDigits), d.Region)
+	}
+	t.write(e, "  ")
+	return e.err
+}
+
+// volts writes a terminal voltage in V with three decimals (1 mV), as a
+// SPICE operating-point listing does, so the column lines up.
+func volts(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return SI(v, "V", tableDigits)
+	}
+	s := strconv.FormatFloat(v, 'f', 3, 64)
+	if s == "-0.000" {
+		s = "0.000"
+	}
+	return s + " V"
+}

@@ -1,0 +1,123 @@
+// Package device holds the MOSFET compact models the circuit solver stamps,
+// and the process files that give their parameters.
+//
+// Every model follows the pattern of SPICE device code: a Model is a model
+// card for one device type (its parameters, as read from a process file);
+// Model.Instance sizes it and applies the temperature once; Instance.Eval is
+// the hot call the Newton loop makes, returning the drain current and all
+// its partial derivatives in one go. The solver never knows which model it
+// holds, so adding a model is a one-file change.
+//
+// Sign conventions are those of SPICE: terminal voltages are absolute node
+// voltages, ID is the current flowing into the drain terminal (negative for
+// a conducting PMOS), and the derivatives are ∂ID/∂V of each terminal.
+package device
+
+import "fmt"
+
+// Type is the polarity of a transistor.
+type Type int
+
+// The two polarities. Their values are the sign SPICE multiplies voltages
+// and currents by to map a PMOS onto NMOS equations.
+const (
+	NMOS Type = 1
+	PMOS Type = -1
+)
+
+// String returns "nmos" or "pmos".
+func (t Type) String() string {
+	switch t {
+	case NMOS:
+		return "nmos"
+	case PMOS:
+		return "pmos"
+	}
+	return fmt.Sprintf("Type(%d)", int(t))
+}
+
+// Geometry is the drawn size of one transistor.
+type Geometry struct {
+	W float64 // drawn channel width, m
+	L float64 // drawn channel length, m
+	M float64 // multiplier (parallel devices); 0 means 1
+}
+
+// Mult returns the multiplier, treating 0 as 1.
+func (g Geometry) Mult() float64 {
+	if g.M == 0 {
+		return 1
+	}
+	return g.M
+}
+
+// Area returns the gate area W·L·M in m².
+func (g Geometry) Area() float64 { return g.W * g.L * g.Mult() }
+
+// Eval is the drain current of one transistor at one bias point with its
+// partial derivatives. Because the current depends only on voltage
+// differences, GD+GG+GS+GB is zero.
+type Eval struct {
+	ID float64 // current into the drain, A
+	GD float64 // ∂ID/∂VD, S
+	GG float64 // ∂ID/∂VG, S
+	GS float64 // ∂ID/∂VS, S
+	GB float64 // ∂ID/∂VB, S
+}
+
+// Region names the operating region reported for a device.
+type Region string
+
+// Operating regions, in the words designers use.
+const (
+	Off        Region = "off"        // below threshold (level-1: no current)
+	Weak       Region = "weak"       // weak inversion (EKV, inversion coefficient < 0.1)
+	Moderate   Region = "moderate"   // moderate inversion (EKV, 0.1 … 10)
+	Strong     Region = "strong"     // strong inversion, saturated
+	Triode     Region = "triode"     // conducting, not saturated
+	Saturation Region = "saturation" // level-1 saturation
+)
+
+// OpPoint describes a transistor at a bias point for reports: what a
+// designer reads off a SPICE operating-point listing. Signs follow SPICE
+// (a PMOS has negative VGS, VDS, VTH, VDSAT and ID).
+type OpPoint struct {
+	ID     float64 // drain current, A
+	VGS    float64 // V
+	VDS    float64 // V
+	VBS    float64 // V
+	VTH    float64 // threshold at this VBS, V
+	VDSAT  float64 // saturation voltage, V
+	GM     float64 // ∂ID/∂VGS, S (positive)
+	GDS    float64 // ∂ID/∂VDS, S (positive)
+	GMB    float64 // ∂ID/∂VBS, S (positive)
+	IC     float64 // inversion coefficient (EKV); 0 where the model has none
+	Region Region
+}
+
+// Instance is one sized transistor at one temperature.
+type Instance interface {
+	// Eval returns the drain current and its derivatives at the given
+	// absolute terminal voltages. It must not allocate.
+	Eval(vd, vg, vs, vb float64) Eval
+	// Op returns the operating-point details at the given voltages.
+	Op(vd, vg, vs, vb float64) OpPoint
+}
+
+// Model is a model card for one device type.
+type Model interface {
+	// Kind names the model: "level1" or "ekv".
+	Kind() string
+	// Type is the polarity of the card.
+	Type() Type
+	// Instance sizes the card and applies the temperature (kelvin).
+	Instance(g Geometry, tempK float64) (Instance, error)
+}
+
+// SpiceCarder is implemented by models that a SPICE simulator can run as
+// they are. SpiceCard returns the body of a `.model NAME nmos (...)` line
+// valid at the given temperature (kelvin) when the deck also sets `.temp`
+// to that temperature.
+type SpiceCarder interface {
+	SpiceCard(name string, tempK float64) string
+}

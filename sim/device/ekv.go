@@ -1,0 +1,251 @@
+package device
+
+import (
+	"fmt"
+	"math"
+)
+
+// Compile-time check that EKV is a Model.
+var _ Model = (*EKV)(nil)
+
+// Kind returns "ekv".
+func (c *EKV) Kind() string { return "ekv" }
+
+// Type returns the polarity of the card.
+func (c *EKV) Type() Type { return c.Polarity }
+
+// Instance sizes the EKV card and applies the temperature tempK (kelvin).
+//
+// The instance evaluates the EKV all-region model of C. C. Enz,
+// F. Krummenacher and E. A. Vittoz, "An analytical MOS transistor model
+// valid in all regions of operation and dedicated to low-voltage and
+// low-current applications", Analog Integrated Circuits and Signal
+// Processing 8, 83–114 (1995). With all voltages referred to the bulk and
+// multiplied by the type sign (so a PMOS uses the NMOS equations, with −VTO,
+// and its current is negated):
+//
+//	U_T = kT/q, β = KP(T)·M·W/(L − 2·LD)
+//	VG' = VG − VTO(T) + PHI + GAMMA·√PHI
+//	VP  = VG' − PHI − GAMMA·(√(VG' + GAMMA²/4) − GAMMA/2)   for VG' > 0, else −PHI
+//	n   = 1 + GAMMA/(2·√(VP + PHI + 4·U_T))
+//	Is  = 2·n·β·U_T²
+//	F(v) = ln²(1 + e^(v/2)),  iF = F((VP − VS)/U_T),  iR = F((VP − VD)/U_T)
+//	ID  = Is·(iF − iR)·(1 + LAMBDA·VDS·tanh(VDS/(2·U_T)))
+//
+// VP is C¹ at VG' = 0 for GAMMA > 0 (its slope 1 − GAMMA/(2√(VG'+GAMMA²/4))
+// vanishes there). With GAMMA = 0 the clamp at VG' ≤ 0 is dropped and
+// VP = VG' − PHI everywhere: the clamp only keeps the square root real, and
+// keeping it would put a kink in VP (slope 1 to 0) where there is no body
+// effect to justify one.
+//
+// Channel-length modulation: the paper's factor (1 + LAMBDA·VDS) is written
+// with the smooth magnitude VDS·tanh(VDS/(2·U_T)) in place of |VDS|, so that
+// the model keeps the source–drain symmetry ID(VD, VS) = −ID(VS, VD) and is
+// continuously differentiable at VDS = 0; away from VDS = 0 (a few U_T) the
+// two agree.
+//
+// All partial derivatives are analytic, including the dependence of Is on
+// the gate through n(VP). Junction diodes are not modelled.
+func (c *EKV) Instance(g Geometry, tempK float64) (Instance, error) {
+	if err := c.check(); err != nil {
+		return nil, fmt.Errorf("ekv %s card: %w", c.Polarity, err)
+	}
+	leff, err := effectiveLength(g, c.LD)
+	if err != nil {
+		return nil, fmt.Errorf("ekv %s instance: %w", c.Polarity, err)
+	}
+	if !(tempK > 0) || math.IsInf(tempK, 0) {
+		return nil, fmt.Errorf("ekv %s instance: temperature %g K, want > 0 K", c.Polarity, tempK)
+	}
+	typ := float64(c.Polarity)
+	ut := ThermalVoltage(tempK)
+	vto := c.VTO - typ*c.TCV*(tempK-c.TnomK)
+	kp := c.KP * math.Pow(tempK/c.TnomK, c.BEX)
+	beta := kp * g.Mult() * g.W / leff
+	return &ekvInst{
+		sign:    typ,
+		vto:     typ * vto,
+		shift:   -typ*vto + c.Phi + c.Gamma*math.Sqrt(c.Phi),
+		phi:     c.Phi,
+		sqrtPhi: math.Sqrt(c.Phi),
+		gamma:   c.Gamma,
+		g2:      c.Gamma * c.Gamma / 4,
+		lambda:  c.Lambda,
+		ut:      ut,
+		invUT:   1 / ut,
+		inv2UT:  1 / (2 * ut),
+		isn:     2 * beta * ut * ut,
+	}, nil
+}
+
+// check validates the card.
+func (c *EKV) check() error {
+	switch {
+	case c.Polarity != NMOS && c.Polarity != PMOS:
+		return fmt.Errorf("polarity %v, want nmos or pmos", c.Polarity)
+	case !isFiniteNum(c.VTO):
+		return fmt.Errorf("vto = %g V, want a finite value", c.VTO)
+	case !(c.KP > 0) || math.IsInf(c.KP, 0):
+		return fmt.Errorf("kp = %g A/V², want > 0", c.KP)
+	case !(c.Gamma >= 0) || math.IsInf(c.Gamma, 0):
+		return fmt.Errorf("gamma = %g √V, want ≥ 0", c.Gamma)
+	case !(c.Phi > 0) || math.IsInf(c.Phi, 0):
+		return fmt.Errorf("phi = %g V, want > 0", c.Phi)
+	case !isFiniteNum(c.Lambda) || c.Lambda < 0:
+		return fmt.Errorf("lambda = %g 1/V, want ≥ 0", c.Lambda)
+	case !isFiniteNum(c.LD) || c.LD < 0:
+		return fmt.Errorf("ld = %g m, want ≥ 0", c.LD)
+	case !isFiniteNum(c.TCV):
+		return fmt.Errorf("tcv = %g V/K, want a finite value", c.TCV)
+	case !isFiniteNum(c.BEX):
+		return fmt.Errorf("bex = %g, want a finite value", c.BEX)
+	case !(c.TnomK > 0) || math.IsInf(c.TnomK, 0):
+		return fmt.Errorf("tnom = %g K, want > 0 K", c.TnomK)
+	}
+	return nil
+}
+
+// ekvInst is one sized EKV transistor at one temperature, NMOS frame.
+type ekvInst struct {
+	sign    float64 // +1 NMOS, −1 PMOS
+	vto     float64 // type·VTO(T), V
+	shift   float64 // VG' − VG = −type·VTO(T) + PHI + GAMMA·√PHI, V
+	phi     float64 // V
+	sqrtPhi float64 // √PHI
+	gamma   float64 // √V
+	g2      float64 // GAMMA²/4, V
+	lambda  float64 // 1/V
+	ut      float64 // U_T, V
+	invUT   float64 // 1/U_T
+	inv2UT  float64 // 1/(2·U_T)
+	isn     float64 // 2·β·U_T², A (Is/n)
+}
+
+// pinch returns VP, ∂VP/∂VG, n and ∂n/∂VP at the bulk-referred gate voltage.
+func (m *ekvInst) pinch(vg float64) (vp, dvp, n, dn float64) {
+	vgp := vg + m.shift
+	if m.gamma == 0 {
+		return vgp - m.phi, 1, 1, 0
+	}
+	if vgp > 0 {
+		r := math.Sqrt(vgp + m.g2)
+		vp = vgp - m.phi - m.gamma*(r-0.5*m.gamma)
+		dvp = 1 - 0.5*m.gamma/r
+	} else {
+		vp, dvp = -m.phi, 0
+	}
+	q := vp + m.phi + 4*m.ut
+	sq := math.Sqrt(q)
+	n = 1 + 0.5*m.gamma/sq
+	dn = -0.25 * m.gamma / (q * sq)
+	return vp, dvp, n, dn
+}
+
+// ekvF returns F(x) = ln²(1 + e^(x/2)) and F'(x) = ln(1 + e^(x/2))·σ(x/2),
+// with σ the logistic function, without overflow or underflow for any x.
+func ekvF(x float64) (f, df float64) {
+	h := 0.5 * x
+	e := math.Exp(-math.Abs(h)) // in [0, 1]
+	sp := math.Log1p(e)         // ln(1 + e^h) = max(h, 0) + ln(1 + e^−|h|)
+	sig := 1 / (1 + e)          // σ(|h|)
+	if h > 0 {
+		sp += h
+	} else {
+		sig = e * sig // σ(−|h|)
+	}
+	return sp * sp, sp * sig
+}
+
+// Eval returns the drain current and its derivatives with respect to the
+// four terminal voltages.
+func (m *ekvInst) Eval(vd, vg, vs, vb float64) Eval {
+	s := m.sign
+	xg, xs, xd := s*(vg-vb), s*(vs-vb), s*(vd-vb)
+	vp, dvp, n, dn := m.pinch(xg)
+	is := m.isn * n
+	dis := m.isn * dn * dvp // ∂Is/∂VG
+	// iF, dF = ekvF((vp − xs)/U_T) and iR, dR = ekvF((vp − xd)/U_T), written
+	// out so that the two independent evaluations overlap.
+	hf := 0.5 * (vp - xs) * m.invUT
+	hr := 0.5 * (vp - xd) * m.invUT
+	ef := math.Exp(-math.Abs(hf))
+	er := math.Exp(-math.Abs(hr))
+	spf, spr := math.Log1p(ef), math.Log1p(er)
+	sf, sr := 1/(1+ef), 1/(1+er)
+	if hf > 0 {
+		spf += hf
+	} else {
+		sf *= ef
+	}
+	if hr > 0 {
+		spr += hr
+	} else {
+		sr *= er
+	}
+	iF, dF := spf*spf, spf*sf
+	iR, dR := spr*spr, spr*sr
+	vds := xd - xs
+	u := vds * m.inv2UT
+	th := 1.0 // tanh(u) rounds to ±1 beyond |u| = 20
+	if u < -20 {
+		th = -1
+	} else if u <= 20 {
+		th = math.Tanh(u)
+	}
+	clm := 1 + m.lambda*vds*th
+	dclm := m.lambda * (th + u*(1-th*th)) // ∂clm/∂VDS
+	q := iF - iR
+	a := is * clm * m.invUT
+	b := is * q * dclm
+	gg := dis*q*clm + a*(dF-dR)*dvp
+	gs := -a*dF - b
+	gd := a*dR + b
+	return Eval{ID: s * is * q * clm, GD: gd, GG: gg, GS: gs, GB: -(gg + gs + gd)}
+}
+
+// Op returns the operating point at the given terminal voltages. The
+// terminal at the lower potential (in the NMOS sense) acts as the source for
+// VTH, VDSAT, IC, GM, GDS and GMB, as SPICE does for symmetric devices.
+//
+//   - IC is the inversion coefficient iF of the conducting direction.
+//   - VTH is the gate–source voltage at which VP equals the source voltage:
+//     VTO + GAMMA·(√(VS + PHI) − √PHI) with VS referred to the bulk (the root
+//     taken as 0 for a source forward-biased beyond PHI), in SPICE signs.
+//   - VDSAT is the estimate 2·U_T·√(IC + 1/4) + 3·U_T (Enz and Vittoz,
+//     from memory), which tends to 4·U_T in weak inversion and to VP − VS
+//     (plus 3·U_T) in strong inversion.
+//   - Region: Weak for IC < 0.1 whatever VDS; otherwise Triode while the
+//     reverse current is more than a tenth of the forward one (VDS below
+//     about 2.3·U_T in weak inversion, or about 0.68·(VP − VS) in strong
+//     inversion), else Moderate up to IC = 10 and Strong beyond.
+func (m *ekvInst) Op(vd, vg, vs, vb float64) OpPoint {
+	s := m.sign
+	e := m.Eval(vd, vg, vs, vb)
+	xg, xs, xd := s*(vg-vb), s*(vs-vb), s*(vd-vb)
+	vp, _, _, _ := m.pinch(xg)
+	gm, gds, gmb, xsrc := e.GG, e.GD, e.GB, xs
+	if xd < xs {
+		gm, gds, gmb, xsrc = -e.GG, -e.GS, -e.GB, xd
+	}
+	ic, _ := ekvF((vp - xsrc) * m.invUT)
+	rev, _ := ekvF((vp - math.Max(xs, xd)) * m.invUT)
+	vth := m.vto + m.gamma*(math.Sqrt(math.Max(xsrc+m.phi, 0))-m.sqrtPhi)
+	op := OpPoint{
+		ID: e.ID, VGS: vg - vs, VDS: vd - vs, VBS: vb - vs,
+		VTH:   s * vth,
+		VDSAT: s * (2*m.ut*math.Sqrt(ic+0.25) + 3*m.ut),
+		GM:    gm, GDS: gds, GMB: gmb,
+		IC: ic,
+	}
+	switch {
+	case ic < 0.1:
+		op.Region = Weak
+	case rev > 0.1*ic:
+		op.Region = Triode
+	case ic > 10:
+		op.Region = Strong
+	default:
+		op.Region = Moderate
+	}
+	return op
+}

@@ -1,0 +1,104 @@
+package sim
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"gonum.org/v1/gonum/mat"
+)
+
+// randomSystem returns a random n×n matrix (row-major) and right-hand side.
+// Half of the matrices are scaled row by row over many decades, as circuit
+// Jacobians are (gmin-only rows next to millisiemens rows).
+func randomSystem(rng *rand.Rand, n int, badlyScaled bool) ([]float64, []float64) {
+	a := make([]float64, n*n)
+	b := make([]float64, n)
+	for i := 0; i < n; i++ {
+		scale := 1.0
+		if badlyScaled {
+			scale = math.Pow(10, -12*rng.Float64())
+		}
+		for j := 0; j < n; j++ {
+			a[i*n+j] = scale * rng.NormFloat64()
+		}
+		b[i] = scale * rng.NormFloat64()
+	}
+	return a, b
+}
+
+// TestLUAgainstGonum checks the small LU kernel against gonum's
+// mat.Dense.Solve (reference library) on random systems.
+func TestLUAgainstGonum(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	for _, n := range []int{1, 2, 3, 4, 6, 8, 12, 20} {
+		for trial := 0; trial < 50; trial++ {
+			a, b := randomSystem(rng, n, trial%2 == 1)
+			want := mat.NewVecDense(n, nil)
+			if err := want.SolveVec(mat.NewDense(n, n, append([]float64(nil), a...)), mat.NewVecDense(n, append([]float64(nil), b...))); err != nil {
+				continue // singular to gonum too: nothing to compare
+			}
+			lu := append([]float64(nil), a...)
+			x := append([]float64(nil), b...)
+			piv := make([]int, n)
+			if !luFactor(lu, n, piv) {
+				t.Fatalf("n=%d trial %d: kernel says singular, gonum solved it", n, trial)
+			}
+			luSolve(lu, n, piv, x)
+			// Compare residuals, which both methods make small, and the
+			// solutions, scaled by the condition of the system.
+			c := mat.Cond(mat.NewDense(n, n, append([]float64(nil), a...)), 1)
+			for i := 0; i < n; i++ {
+				w := want.AtVec(i)
+				tol := 1e-13 * c * math.Max(1, math.Abs(w))
+				if d := math.Abs(x[i] - w); d > tol {
+					t.Fatalf("n=%d trial %d: x[%d] = %g, gonum %g (cond %.3g)", n, trial, i, x[i], w, c)
+				}
+			}
+		}
+	}
+}
+
+// TestLUSingular checks that an exactly singular matrix is reported.
+func TestLUSingular(t *testing.T) {
+	a := []float64{1, 2, 3, 2, 4, 6, 1, 0, 1} // row 2 = 2 × row 1
+	piv := make([]int, 3)
+	if luFactor(a, 3, piv) {
+		t.Fatal("singular matrix factored without complaint")
+	}
+}
+
+// BenchmarkLU compares the in-place kernel with gonum's LU on the system
+// sizes the stages produce. The kernel exists because of this benchmark.
+func BenchmarkLU(b *testing.B) {
+	rng := rand.New(rand.NewPCG(3, 4))
+	for _, n := range []int{4, 6, 8} {
+		a, rhs := randomSystem(rng, n, false)
+		b.Run(fmt.Sprintf("kernel/n=%d", n), func(b *testing.B) {
+			lu := make([]float64, n*n)
+			x := make([]float64, n)
+			piv := make([]int, n)
+			b.ReportAllocs()
+			for b.Loop() {
+				copy(lu, a)
+				copy(x, rhs)
+				luFactor(lu, n, piv)
+				luSolve(lu, n, piv, x)
+			}
+		})
+		b.Run(fmt.Sprintf("gonum/n=%d", n), func(b *testing.B) {
+			src := mat.NewDense(n, n, a)
+			m := mat.NewDense(n, n, nil)
+			var f mat.LU
+			bv := mat.NewVecDense(n, append([]float64(nil), rhs...))
+			x := mat.NewVecDense(n, nil)
+			b.ReportAllocs()
+			for b.Loop() {
+				m.Copy(src)
+				f.Factorize(m)
+				_ = f.SolveVecTo(x, false, bv)
+			}
+		})
+	}
+}

@@ -1,0 +1,207 @@
+package topologies
+
+import (
+	"fmt"
+
+	"pairsmith/sim"
+	"pairsmith/sim/device"
+	"pairsmith/units"
+)
+
+// Shared parameters. Defaults are sized for the demo18 process at 1.8 V:
+// moderate inversion in the pairs, tails of about 0.15 V saturation
+// voltage. The PMOS devices are four times wider than the NMOS ones,
+// which is demo18's kp ratio, so that the two pairs give equal gm at equal
+// current.
+var (
+	pWN    = Param{Name: "wn", Unit: units.Metre, Min: 0.5e-6, Max: 500e-6, Default: 20e-6, Scale: Log, Doc: "width of each NMOS input transistor"}
+	pLN    = Param{Name: "ln", Unit: units.Metre, Min: 0.18e-6, Max: 10e-6, Default: 1e-6, Scale: Log, Doc: "length of the NMOS input transistors"}
+	pWP    = Param{Name: "wp", Unit: units.Metre, Min: 0.5e-6, Max: 2000e-6, Default: 80e-6, Scale: Log, Doc: "width of each PMOS input transistor"}
+	pLP    = Param{Name: "lp", Unit: units.Metre, Min: 0.18e-6, Max: 10e-6, Default: 1e-6, Scale: Log, Doc: "length of the PMOS input transistors"}
+	pITail = Param{Name: "itail", Unit: units.Ampere, Min: 0.1e-6, Max: 1e-3, Default: 20e-6, Scale: Log, Doc: "tail current of each input pair"}
+	pWTN   = Param{Name: "wtn", Unit: units.Metre, Min: 0.5e-6, Max: 500e-6, Default: 10e-6, Scale: Log, Doc: "width of the NMOS tail (and current-sink) transistors"}
+	pWTP   = Param{Name: "wtp", Unit: units.Metre, Min: 0.5e-6, Max: 2000e-6, Default: 40e-6, Scale: Log, Doc: "width of the PMOS tail (and current-source) transistors"}
+	pLT    = Param{Name: "lt", Unit: units.Metre, Min: 0.18e-6, Max: 10e-6, Default: 2e-6, Scale: Log, Doc: "length of all tail, mirror and reference transistors"}
+	pKBias = Param{Name: "kbias", Unit: units.Dimensionless, Min: 1, Max: 10, Default: 4, Scale: Linear, Doc: "tail current over reference-branch current"}
+	pVHead = Param{Name: "vhead", Unit: units.Volt, Min: 0.05, Max: 0.6, Default: 0.2, Scale: Linear, Doc: "headroom of the summing nodes from the rails"}
+)
+
+func pairParams(n, p bool) []Param {
+	var ps []Param
+	if n {
+		ps = append(ps, pWN, pLN)
+	}
+	if p {
+		ps = append(ps, pWP, pLP)
+	}
+	ps = append(ps, pITail)
+	if n {
+		ps = append(ps, pWTN)
+	}
+	if p {
+		ps = append(ps, pWTP)
+	}
+	return append(ps, pLT, pKBias, pVHead)
+}
+
+// builder assembles a stage and its bench.
+type builder struct {
+	c          *sim.Circuit
+	st         *Stage
+	v          Values
+	cond       Conditions
+	nm, pm     device.Model
+	vdd, gnd   sim.Node
+	inp, inn   sim.Node
+	count      int
+	roles      map[string]string
+	iout       []sim.Term
+	in, ip     []sim.Term
+	powerTerms []sim.Term
+}
+
+// newBuilder starts a circuit: supply and the two inputs,
+// inp = vcm + vid/2 and inn = vcm − vid/2.
+func newBuilder(family string, v Values, cond Conditions) (*builder, error) {
+	if cond.Process == nil {
+		return nil, fmt.Errorf("%s: no process given", family)
+	}
+	if !(cond.Supply > 0) {
+		return nil, fmt.Errorf("%s: supply %g V, want > 0", family, cond.Supply)
+	}
+	title := fmt.Sprintf("%s on %s at %s, %s", family, cond.Process.Name,
+		units.Format(cond.Supply, units.Volt), units.Format(cond.TempK, units.Temperature))
+	c := sim.New(title, cond.TempK)
+	b := &builder{
+		c: c, v: v, cond: cond,
+		nm: cond.Process.Card(device.NMOS), pm: cond.Process.Card(device.PMOS),
+		roles: map[string]string{},
+	}
+	b.st = &Stage{Family: family, Circuit: c}
+	b.vdd = c.Node("vdd")
+	b.gnd = sim.Ground
+	b.inp = c.Node("inp")
+	b.inn = c.Node("inn")
+	c.AddVSource("VDD", b.vdd, b.gnd, sim.Const(cond.Supply), true)
+	c.AddVSource("VINP", b.inp, b.gnd, sim.Drive{CM: 1, DM: 0.5}, true)
+	c.AddVSource("VINN", b.inn, b.gnd, sim.Drive{CM: 1, DM: -0.5}, true)
+	b.powerTerms = append(b.powerTerms, sim.Term{Source: "VDD", Coef: -cond.Supply})
+	return b, nil
+}
+
+// mos adds a transistor with the next free name. NMOS bulks go to ground
+// and PMOS bulks to the supply, as in a single-well process.
+func (b *builder) mos(t device.Type, role string, d, g, s sim.Node, w, l float64) string {
+	b.count++
+	name := fmt.Sprintf("M%d", b.count)
+	m, bulk := b.nm, b.gnd
+	if t == device.PMOS {
+		m, bulk = b.pm, b.vdd
+	}
+	b.c.AddMosfet(name, d, g, s, bulk, m, device.Geometry{W: w, L: l})
+	b.roles[name] = role
+	return name
+}
+
+// nPair adds the NMOS input pair with common source tn and its drains on
+// summing nodes held at supply − vhead.
+func (b *builder) nPair(tn sim.Node) {
+	c, v := b.c, b.v
+	dn1, dn2 := c.Node("dn1"), c.Node("dn2")
+	b.st.PairN[0] = b.mos(device.NMOS, "nmos input", dn1, b.inp, tn, v["wn"], v["ln"])
+	b.st.PairN[1] = b.mos(device.NMOS, "nmos input", dn2, b.inn, tn, v["wn"], v["ln"])
+	vs := b.cond.Supply - v["vhead"]
+	c.AddVSource("VDN1", dn1, b.gnd, sim.Const(vs), true)
+	c.AddVSource("VDN2", dn2, b.gnd, sim.Const(vs), true)
+	// The summing stage above supplies the NMOS pair's current from the
+	// supply, so it counts in power.
+	b.powerTerms = append(b.powerTerms,
+		sim.Term{Source: "VDN1", Coef: -b.cond.Supply}, sim.Term{Source: "VDN2", Coef: -b.cond.Supply})
+	b.iout = append(b.iout, sim.Term{Source: "VDN1", Coef: -1}, sim.Term{Source: "VDN2", Coef: 1})
+	b.in = []sim.Term{{Source: "VDN1", Coef: -1}, {Source: "VDN2", Coef: -1}}
+	b.c.Guess[tn] = 0.1
+}
+
+// pPair adds the PMOS input pair with common source tp and its drains on
+// summing nodes held at vhead.
+func (b *builder) pPair(tp sim.Node) {
+	c, v := b.c, b.v
+	dp1, dp2 := c.Node("dp1"), c.Node("dp2")
+	b.st.PairP[0] = b.mos(device.PMOS, "pmos input", dp1, b.inp, tp, v["wp"], v["lp"])
+	b.st.PairP[1] = b.mos(device.PMOS, "pmos input", dp2, b.inn, tp, v["wp"], v["lp"])
+	c.AddVSource("VDP1", dp1, b.gnd, sim.Const(v["vhead"]), true)
+	c.AddVSource("VDP2", dp2, b.gnd, sim.Const(v["vhead"]), true)
+	b.iout = append(b.iout, sim.Term{Source: "VDP1", Coef: -1}, sim.Term{Source: "VDP2", Coef: 1})
+	b.ip = []sim.Term{{Source: "VDP1", Coef: 1}, {Source: "VDP2", Coef: 1}}
+	b.c.Guess[tp] = b.cond.Supply - 0.1
+}
+
+// nBias adds an NMOS reference branch: an ideal reference current i from
+// the supply into a diode-connected NMOS of width w. It returns the gate
+// node, from which any NMOS of length lt mirrors the current in
+// proportion to its width.
+func (b *builder) nBias(name string, i, w float64) sim.Node {
+	g := b.c.Node(name)
+	b.mos(device.NMOS, "nmos reference", g, g, b.gnd, w, b.v["lt"])
+	b.c.AddISource("I"+name, b.vdd, g, sim.Const(i), false)
+	b.c.Guess[g] = 0.6
+	return g
+}
+
+// pBias adds a PMOS reference branch: a diode-connected PMOS of width w
+// from the supply whose current i flows to ground through an ideal source.
+func (b *builder) pBias(name string, i, w float64) sim.Node {
+	g := b.c.Node(name)
+	b.mos(device.PMOS, "pmos reference", g, g, b.vdd, w, b.v["lt"])
+	b.c.AddISource("I"+name, g, b.gnd, sim.Const(i), false)
+	b.c.Guess[g] = b.cond.Supply - 0.6
+	return g
+}
+
+// nTail adds an NMOS tail sinking itail from tn, mirrored from its own
+// reference branch at itail/kbias.
+func (b *builder) nTail(tn sim.Node) {
+	v := b.v
+	bn := b.nBias("bn", v["itail"]/v["kbias"], v["wtn"]/v["kbias"])
+	b.mos(device.NMOS, "nmos tail", tn, bn, b.gnd, v["wtn"], v["lt"])
+}
+
+// pTail adds a PMOS tail sourcing itail into tp from the supply. It
+// returns the reference gate, from which other PMOS sources can mirror.
+func (b *builder) pTail(tp sim.Node) sim.Node {
+	v := b.v
+	bp := b.pBias("bp", v["itail"]/v["kbias"], v["wtp"]/v["kbias"])
+	b.mos(device.PMOS, "pmos tail", tp, bp, b.vdd, v["wtp"], v["lt"])
+	return bp
+}
+
+// refVoltage adds an ideal reference voltage (a bias the stage receives
+// from elsewhere, drawing no current) at a node of its own.
+func (b *builder) refVoltage(name string, val float64) sim.Node {
+	n := b.c.Node(name)
+	b.c.AddVSource("V"+name, n, b.gnd, sim.Const(val), false)
+	return n
+}
+
+// finish adds the probes and the port list.
+func (b *builder) finish() *Stage {
+	c := b.c
+	c.AddProbe(ProbeOut, b.iout...)
+	c.AddProbe(ProbeIN, b.in...)
+	c.AddProbe(ProbeIP, b.ip...)
+	c.AddProbe(ProbePower, b.powerTerms...)
+	c.Output = ProbeOut
+	ports := []sim.Node{b.inp, b.inn, b.vdd, b.gnd}
+	for _, name := range []string{"dn1", "dn2", "dp1", "dp2"} {
+		for n := 1; n < c.NumNodes(); n++ {
+			if c.NodeName(sim.Node(n)) == name {
+				ports = append(ports, sim.Node(n))
+			}
+		}
+	}
+	b.st.Ports = ports
+	b.st.Roles = b.roles
+	return b.st
+}
+
+func constDrive(v float64) sim.Drive { return sim.Const(v) }

@@ -1,0 +1,441 @@
+package units
+
+import (
+	"bytes"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"strconv"
+	"strings"
+
+	"gopkg.in/yaml.v3"
+)
+
+// Error is a bad value in an input file. Its message is one line:
+//
+//	design.yaml:7: params.wn: got "20uV", want a length in m, for example 20um
+//
+// Parse returns an Error without File, Line and Field; a Map fills them in.
+type Error struct {
+	File  string // file name as given to ReadFile or ReadBytes
+	Line  int    // 1-based line, 0 if unknown
+	Field string // dotted path of the field, as in "sweep.step"; "" for the whole file
+	Given string // the text as written in the file; "" if there was none
+	Want  string // what the field takes; "" when Err says it all
+	Err   error  // the underlying cause or detail, may be nil
+}
+
+// Error returns "file:line: field: got "given", want W (detail)", leaving
+// out the parts that are empty.
+func (e *Error) Error() string {
+	var b strings.Builder
+	switch {
+	case e.File != "" && e.Line > 0:
+		fmt.Fprintf(&b, "%s:%d: ", e.File, e.Line)
+	case e.File != "":
+		b.WriteString(e.File + ": ")
+	case e.Line > 0:
+		fmt.Fprintf(&b, "line %d: ", e.Line)
+	}
+	if e.Field != "" {
+		b.WriteString(e.Field + ": ")
+	}
+	switch {
+	case e.Want != "":
+		if e.Given != "" {
+			fmt.Fprintf(&b, "got %q, ", e.Given)
+		}
+		b.WriteString("want " + e.Want)
+		if e.Err != nil {
+			b.WriteString(" (" + e.Err.Error() + ")")
+		}
+	case e.Err != nil:
+		b.WriteString(e.Err.Error())
+	default:
+		b.WriteString("invalid value")
+	}
+	return b.String()
+}
+
+// Unwrap returns the underlying cause.
+func (e *Error) Unwrap() error { return e.Err }
+
+// Sentinel causes carried in Error.Err, for errors.Is.
+var (
+	ErrMissing      = errors.New("required field missing")
+	ErrUnknownField = errors.New("unknown field")
+	ErrDuplicate    = errors.New("duplicate field")
+)
+
+// syntaxError is a YAML syntax error, its "yaml: line N:" prefix removed
+// because Error carries the file and line.
+type syntaxError struct {
+	msg string
+	err error
+}
+
+func (e *syntaxError) Error() string { return "YAML syntax error: " + e.msg }
+func (e *syntaxError) Unwrap() error { return e.err }
+
+// fromYAMLError turns a yaml.v3 parse error into an *Error with its line.
+func fromYAMLError(file string, err error) *Error {
+	msg := strings.TrimPrefix(err.Error(), "yaml: ")
+	line := 0
+	if rest, ok := strings.CutPrefix(msg, "line "); ok {
+		if num, text, ok := strings.Cut(rest, ": "); ok {
+			if n, err := strconv.Atoi(num); err == nil {
+				line, msg = n, text
+			}
+		}
+	}
+	return &Error{File: file, Line: line, Err: &syntaxError{msg: msg, err: err}}
+}
+
+// Map is one YAML mapping of an input file, read with the line of every
+// field so that errors can say where a value is. Get one with ReadFile or
+// ReadBytes, and nested ones with Map.Map.
+//
+// A reader typically calls Check with the fields it knows, Require with
+// those it needs, then reads each field with Quantity, String, Strings or
+// Map, and reports semantic problems with Errorf.
+type Map struct {
+	file string
+	path string // dotted path of this map, "" for the file's root
+	line int    // line that introduces the map
+	keys []string
+	key  map[string]*yaml.Node
+	val  map[string]*yaml.Node
+}
+
+// ReadFile reads a YAML file whose root is a mapping.
+func ReadFile(path string) (*Map, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("read YAML: %w", err)
+	}
+	return ReadBytes(path, data)
+}
+
+// ReadBytes reads YAML text whose root is a mapping; file names it in
+// errors. A syntax error, a root that is not a mapping, more than one YAML
+// document and a field written twice in any mapping are errors.
+func ReadBytes(file string, data []byte) (*Map, error) {
+	dec := yaml.NewDecoder(bytes.NewReader(data))
+	var doc yaml.Node
+	if err := dec.Decode(&doc); err != nil {
+		if errors.Is(err, io.EOF) {
+			return nil, &Error{File: file, Line: 1, Want: "a YAML mapping of fields", Err: errors.New("the file is empty")}
+		}
+		return nil, fromYAMLError(file, err)
+	}
+	var next yaml.Node
+	switch err := dec.Decode(&next); {
+	case errors.Is(err, io.EOF):
+	case err != nil:
+		return nil, fromYAMLError(file, err)
+	default:
+		return nil, &Error{File: file, Line: next.Line, Err: errors.New("a second YAML document; want one per file")}
+	}
+	root := &doc
+	if doc.Kind == yaml.DocumentNode && len(doc.Content) == 1 {
+		root = doc.Content[0]
+	}
+	root = resolve(root)
+	if root.Kind != yaml.MappingNode {
+		return nil, &Error{File: file, Line: root.Line, Given: scalarText(root),
+			Want: "a YAML mapping of fields (field: value lines)", Err: kindError(root)}
+	}
+	if err := checkDuplicates(file, "", root); err != nil {
+		return nil, err
+	}
+	return newMap(file, "", root.Line, root), nil
+}
+
+// resolve follows an alias to its anchored node.
+func resolve(n *yaml.Node) *yaml.Node {
+	for n.Kind == yaml.AliasNode && n.Alias != nil {
+		n = n.Alias
+	}
+	return n
+}
+
+func join(path, key string) string {
+	if path == "" {
+		return key
+	}
+	return path + "." + key
+}
+
+// checkDuplicates walks the tree (not following aliases) and rejects a
+// field written twice in one mapping.
+func checkDuplicates(file, path string, n *yaml.Node) error {
+	switch n.Kind {
+	case yaml.MappingNode:
+		first := map[string]int{}
+		for i := 0; i+1 < len(n.Content); i += 2 {
+			k := n.Content[i]
+			if line, dup := first[k.Value]; dup {
+				return &Error{File: file, Line: k.Line, Field: join(path, k.Value),
+					Err: fmt.Errorf("%w (first at line %d)", ErrDuplicate, line)}
+			}
+			first[k.Value] = k.Line
+			if err := checkDuplicates(file, join(path, k.Value), n.Content[i+1]); err != nil {
+				return err
+			}
+		}
+	case yaml.SequenceNode:
+		for i, c := range n.Content {
+			if err := checkDuplicates(file, fmt.Sprintf("%s[%d]", path, i), c); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
+}
+
+func newMap(file, path string, line int, n *yaml.Node) *Map {
+	m := &Map{file: file, path: path, line: line, key: map[string]*yaml.Node{}, val: map[string]*yaml.Node{}}
+	for i := 0; i+1 < len(n.Content); i += 2 {
+		k := n.Content[i]
+		m.keys = append(m.keys, k.Value)
+		m.key[k.Value] = k
+		m.val[k.Value] = resolve(n.Content[i+1])
+	}
+	return m
+}
+
+// File returns the file name the map was read from.
+func (m *Map) File() string { return m.file }
+
+// Path returns the dotted path of the map in its file, "" for the root.
+func (m *Map) Path() string { return m.path }
+
+// Keys returns the fields in file order.
+func (m *Map) Keys() []string { return append([]string(nil), m.keys...) }
+
+// Has reports whether the field is written.
+func (m *Map) Has(key string) bool { _, ok := m.val[key]; return ok }
+
+// Line returns the line where the field is written, or the map's own line
+// if it is not.
+func (m *Map) Line(key string) int {
+	if k, ok := m.key[key]; ok {
+		return k.Line
+	}
+	return m.line
+}
+
+// Text returns the field's value as written, for a scalar value; "" for
+// a missing field, a mapping or a list.
+func (m *Map) Text(key string) string {
+	if n, ok := m.val[key]; ok {
+		return scalarText(n)
+	}
+	return ""
+}
+
+func scalarText(n *yaml.Node) string {
+	if n.Kind == yaml.ScalarNode {
+		return n.Value
+	}
+	return ""
+}
+
+// at returns an *Error located at the field.
+func (m *Map) at(key, given, want string, err error) *Error {
+	return &Error{File: m.file, Line: m.Line(key), Field: join(m.path, key), Given: given, Want: want, Err: err}
+}
+
+// Errorf returns an *Error for a problem the caller found with a field's
+// value, such as a low limit above the high one: it names the file, the
+// field's line and path and the value as written, and wants what format
+// and args describe ("a value below high (1.8V)").
+func (m *Map) Errorf(key, format string, args ...any) error {
+	return m.at(key, m.Text(key), fmt.Sprintf(format, args...), nil)
+}
+
+// kindError says what a node is when it is not the scalar wanted.
+func kindError(n *yaml.Node) error {
+	switch n.Kind {
+	case yaml.MappingNode:
+		return errors.New("got a mapping")
+	case yaml.SequenceNode:
+		return errors.New("got a list")
+	case yaml.ScalarNode:
+		if n.ShortTag() == "!!null" {
+			return errors.New("the value is empty")
+		}
+		return nil
+	}
+	return errors.New("got no value")
+}
+
+// scalar returns the field's scalar node, or an error if it is not one.
+func (m *Map) scalar(key, want string) (*yaml.Node, bool, error) {
+	n, ok := m.val[key]
+	if !ok {
+		return nil, false, nil
+	}
+	if n.Kind != yaml.ScalarNode || n.ShortTag() == "!!null" {
+		return nil, true, m.at(key, "", want, kindError(n))
+	}
+	return n, true, nil
+}
+
+// Quantity reads a field of dimension d (see Parse) and returns it in SI
+// units. present is false, with no error, when the field is not written.
+// A YAML number is taken as a bare number: SI units, or °C for a
+// Temperature.
+func (m *Map) Quantity(key string, d Dim) (v float64, present bool, err error) {
+	n, ok, err := m.scalar(key, d.Want())
+	if !ok || err != nil {
+		return 0, ok, err
+	}
+	v, err = Parse(n.Value, d)
+	if err != nil {
+		if tag := n.ShortTag(); tag == "!!int" || tag == "!!float" {
+			// YAML number forms Parse does not read: 0x1F, .inf, 1_000.
+			var f float64
+			if n.Decode(&f) == nil {
+				v, err = fromNumber(f, d, n.Value)
+			}
+		}
+	}
+	if err != nil {
+		var e *Error
+		if errors.As(err, &e) {
+			return 0, true, m.at(key, e.Given, e.Want, e.Err)
+		}
+		return 0, true, m.at(key, n.Value, d.Want(), err)
+	}
+	return v, true, nil
+}
+
+// QuantityOr reads a field like Quantity and returns def when the field is
+// not written.
+func (m *Map) QuantityOr(key string, d Dim, def float64) (float64, error) {
+	v, ok, err := m.Quantity(key, d)
+	if !ok {
+		return def, nil
+	}
+	return v, err
+}
+
+// String reads a field holding a text (any scalar, as written).
+func (m *Map) String(key string) (string, bool, error) {
+	n, ok, err := m.scalar(key, "a text")
+	if !ok || err != nil {
+		return "", ok, err
+	}
+	return n.Value, true, nil
+}
+
+// Strings reads a field holding either one text or a list of texts, as in
+// "topologies: all" or "topologies: [zener, current-switch]".
+func (m *Map) Strings(key string) ([]string, bool, error) {
+	n, ok := m.val[key]
+	if !ok {
+		return nil, false, nil
+	}
+	const want = "a name or a list of names"
+	switch n.Kind {
+	case yaml.ScalarNode:
+		if n.ShortTag() == "!!null" {
+			return nil, true, m.at(key, "", want, kindError(n))
+		}
+		return []string{n.Value}, true, nil
+	case yaml.SequenceNode:
+		out := make([]string, 0, len(n.Content))
+		for i, c := range n.Content {
+			c = resolve(c)
+			if c.Kind != yaml.ScalarNode || c.ShortTag() == "!!null" {
+				return nil, true, &Error{File: m.file, Line: c.Line, Field: fmt.Sprintf("%s[%d]", join(m.path, key), i),
+					Want: "a name", Err: kindError(c)}
+			}
+			out = append(out, c.Value)
+		}
+		return out, true, nil
+	}
+	return nil, true, m.at(key, "", want, kindError(n))
+}
+
+// Int reads a field holding a whole number.
+func (m *Map) Int(key string) (int, bool, error) {
+	const want = "a whole number, for example 42"
+	n, ok, err := m.scalar(key, want)
+	if !ok || err != nil {
+		return 0, ok, err
+	}
+	var i int
+	if n.ShortTag() != "!!int" || n.Decode(&i) != nil {
+		return 0, true, m.at(key, n.Value, want, nil)
+	}
+	return i, true, nil
+}
+
+// Bool reads a field holding true or false.
+func (m *Map) Bool(key string) (bool, bool, error) {
+	const want = "true or false"
+	n, ok, err := m.scalar(key, want)
+	if !ok || err != nil {
+		return false, ok, err
+	}
+	var b bool
+	if n.ShortTag() != "!!bool" || n.Decode(&b) != nil {
+		return false, true, m.at(key, n.Value, want, nil)
+	}
+	return b, true, nil
+}
+
+// Map reads a field holding a mapping, in block or flow style. The nested
+// map's errors name the field path from the root, as in "sweep.step".
+func (m *Map) Map(key string) (*Map, bool, error) {
+	n, ok := m.val[key]
+	if !ok {
+		return nil, false, nil
+	}
+	if n.Kind != yaml.MappingNode {
+		return nil, true, m.at(key, scalarText(n), "a mapping of fields, as in {field: value}", kindError(n))
+	}
+	return newMap(m.file, join(m.path, key), m.Line(key), n), true, nil
+}
+
+// Require returns an error for the first of keys that is not written,
+// located at the map's line, with ErrMissing as its cause.
+func (m *Map) Require(keys ...string) error {
+	for _, k := range keys {
+		if !m.Has(k) {
+			return &Error{File: m.file, Line: m.line, Field: join(m.path, k), Err: ErrMissing}
+		}
+	}
+	return nil
+}
+
+// Check returns an error for the first field, in file order, that is not
+// among known. The error suggests the nearest known field when one is close
+// (see Nearest), or lists them all; its cause is ErrUnknownField.
+func (m *Map) Check(known ...string) error {
+	for _, k := range m.keys {
+		if contains(known, k) {
+			continue
+		}
+		var err error
+		if s, ok := Nearest(k, known); ok {
+			err = fmt.Errorf("%w; did you mean %q?", ErrUnknownField, s)
+		} else {
+			err = fmt.Errorf("%w; known fields are %s", ErrUnknownField, strings.Join(known, ", "))
+		}
+		return m.at(k, "", "", err)
+	}
+	return nil
+}
+
+func contains(list []string, s string) bool {
+	for _, x := range list {
+		if x == s {
+			return true
+		}
+	}
+	return false
+}
