@@ -122,7 +122,8 @@ func Subckt(out io.Writer, d *objectives.Design, st *topologies.Stage) error {
 // TestbenchOptions choose what a testbench deck carries beyond the
 // circuit.
 type TestbenchOptions struct {
-	// DC adds the design's common-mode sweep as a .dc analysis.
+	// DC adds the design's common-mode sweep as a .dc analysis, with a
+	// .print of I(VOUT) and I(VDD) so that `ngspice -b` runs it.
 	DC bool
 }
 
@@ -195,6 +196,7 @@ func Testbench(out io.Writer, d *objectives.Design, st *topologies.Stage, opt Te
 	writeStage(w, st, false)
 	if opt.DC {
 		fmt.Fprintf(w, ".dc VCM %s %s %s\n", num(d.Sweep.Low), num(d.Sweep.High), num(d.Sweep.Step))
+		fmt.Fprintln(w, ".print dc i(vout) i(vdd)")
 	}
 	fmt.Fprintln(w, ".end")
 	return w.Flush()

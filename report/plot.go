@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 
 	"gonum.org/v1/plot"
@@ -162,7 +163,9 @@ func shareX(ps []*plot.Plot) {
 		p.X.Min, p.X.Max = lo, hi
 		if i < len(ps)-1 {
 			p.X.Label.Text = ""
-			p.X.Tick.Marker = unlabelled{p.X.Tick.Marker}
+			if _, done := p.X.Tick.Marker.(unlabelled); !done {
+				p.X.Tick.Marker = unlabelled{p.X.Tick.Marker}
+			}
 		}
 	}
 }
@@ -171,8 +174,8 @@ func shareX(ps []*plot.Plot) {
 type unlabelled struct{ plot.Ticker }
 
 // Ticks returns the wrapped ticker's ticks without labels.
-func (u unlabelled) Ticks(min, max float64) []plot.Tick {
-	ts := u.Ticker.Ticks(min, max)
+func (u unlabelled) Ticks(lo, hi float64) []plot.Tick {
+	ts := u.Ticker.Ticks(lo, hi)
 	for i := range ts {
 		ts[i].Label = ""
 	}
@@ -250,6 +253,55 @@ func SeriesLine(xs, ys []float64, yScale float64, c color.Color, dashes []vg.Len
 	return l, nil
 }
 
+// NiceTicks places about Labels labelled ticks at steps of 1, 2 or 5
+// times a power of ten, with unlabelled minor ticks between them, and
+// writes the labels with just the decimals the step needs (0.2, 0.4, …
+// rather than 0.20, 0.40). It is the usual "nice numbers" rule for axis
+// labels (common practice, no source).
+type NiceTicks struct {
+	Labels int // wanted number of labelled ticks; 0 means 5
+}
+
+// Ticks returns the ticks for an axis from lo to hi.
+func (t NiceTicks) Ticks(lo, hi float64) []plot.Tick {
+	n := t.Labels
+	if n <= 0 {
+		n = 5
+	}
+	if !(hi > lo) || math.IsInf(lo, 0) || math.IsInf(hi, 0) {
+		return plot.DefaultTicks{}.Ticks(lo, hi)
+	}
+	raw := (hi - lo) / float64(n)
+	mag := math.Pow(10, math.Floor(math.Log10(raw)))
+	var step float64
+	minors := 5
+	switch f := raw / mag; {
+	case f <= 1.5:
+		step = mag
+	case f <= 3:
+		step, minors = 2*mag, 4
+	case f <= 7:
+		step = 5 * mag
+	default:
+		step = 10 * mag
+	}
+	dec := max(0, -int(math.Floor(math.Log10(step)+1e-9)))
+	minor := step / float64(minors)
+	var ts []plot.Tick
+	for k := math.Ceil(lo/minor - 1e-9); k*minor <= hi+1e-9*step; k++ {
+		v := k * minor
+		if math.Abs(v) < 1e-12*step {
+			v = 0
+		}
+		tick := plot.Tick{Value: v}
+		if int64(k)%int64(minors) == 0 {
+			tick.Label = strconv.FormatFloat(v, 'f', dec, 64)
+		}
+		ts = append(ts, tick)
+	}
+	return ts
+}
+
 // newPanel makes a panel with light grid lines and the legend in the top
 // right corner.
 func newPanel(xLabel, yLabel string) *plot.Plot {
@@ -260,8 +312,11 @@ func newPanel(xLabel, yLabel string) *plot.Plot {
 	grid.Vertical.Color = color.Gray{Y: 0xe0}
 	grid.Horizontal.Color = color.Gray{Y: 0xe0}
 	p.Add(grid)
+	p.X.Tick.Marker = NiceTicks{Labels: 6}
+	p.Y.Tick.Marker = NiceTicks{Labels: 5}
 	p.Legend.Top = true
 	p.Legend.TextStyle.Font.Size = 9
+	p.Legend.Padding = vg.Points(2)
 	p.Legend.XOffs = -2 * vg.Millimeter
 	p.Legend.YOffs = -vg.Millimeter
 	return p
@@ -346,9 +401,20 @@ func CurvePanels(ev *objectives.Evaluation) (gm, currents *plot.Plot, err error)
 	if err != nil {
 		return nil, nil, fmt.Errorf("plot i_p: %w", err)
 	}
-	currents.Add(nl, pl)
-	currents.Legend.Add("i_n (NMOS pair)", nl)
-	currents.Legend.Add("i_p (PMOS pair)", pl)
+	// A single-pair family has no current in the other pair: leave its
+	// line out rather than draw a zero that looks measured.
+	hasN, hasP := true, true
+	if ev.Stage != nil {
+		hasN, hasP = ev.Stage.PairN[0] != "", ev.Stage.PairP[0] != ""
+	}
+	if hasN {
+		currents.Add(nl)
+		currents.Legend.Add("i_n (NMOS pair)", nl)
+	}
+	if hasP {
+		currents.Add(pl)
+		currents.Legend.Add("i_p (PMOS pair)", pl)
+	}
 	iTop := headroom * math.Max(maxAbs(in), maxAbs(ip)) * iScale
 	swLegend := ""
 	if !math.IsNaN(sw) {

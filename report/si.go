@@ -25,7 +25,14 @@ func siPrefix(k int) string {
 // without a prefix, NaN as "NaN" and infinities as "∞" or "-∞" followed by
 // the unit. An empty unit gives a plain number with a prefix letter, as in
 // "4.5 k". Values beyond giga or below femto keep the outermost prefix.
-func SI(v float64, unit string, digits int) string {
+func SI(v float64, unit string, digits int) string { return formatSI(v, unit, digits, true) }
+
+// SIFixed is SI keeping trailing zeros, so that a column of measured
+// values shows the same precision throughout: SIFixed(9.9e-6, "A", 4) is
+// "9.900 µA".
+func SIFixed(v float64, unit string, digits int) string { return formatSI(v, unit, digits, false) }
+
+func formatSI(v float64, unit string, digits int, trim bool) string {
 	digits = max(digits, 1)
 	sp := ""
 	if unit != "" {
@@ -58,7 +65,7 @@ func SI(v float64, unit string, digits int) string {
 	intDigits := int(math.Floor(math.Log10(math.Abs(scaled)))) + 1
 	dec := max(digits-intDigits, 0)
 	s := strconv.FormatFloat(scaled, 'f', dec, 64)
-	if strings.Contains(s, ".") {
+	if trim && strings.Contains(s, ".") {
 		s = strings.TrimRight(strings.TrimRight(s, "0"), ".")
 	}
 	if s == "-0" {

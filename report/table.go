@@ -127,7 +127,7 @@ func rippleParts(r float64) (value, note string) {
 func handoverParts(v float64, single bool) (value, note string) {
 	switch {
 	case !math.IsNaN(v):
-		return SI(v, "V", tableDigits), ""
+		return SIFixed(v, "V", tableDigits), ""
 	case single:
 		return "—", "(single pair)"
 	default:
@@ -153,11 +153,11 @@ func MetricsTable(w io.Writer, ev *objectives.Evaluation) error {
 		}
 		t.add(name, num, unit, meaning)
 	}
-	row("gm_min", SI(m.GMMin, "S", tableDigits), "", "smallest gm over the sweep")
-	row("gm_max", SI(m.GMMax, "S", tableDigits), "", "largest gm over the sweep")
+	row("gm_min", SIFixed(m.GMMin, "S", tableDigits), "", "smallest gm over the sweep")
+	row("gm_max", SIFixed(m.GMMax, "S", tableDigits), "", "largest gm over the sweep")
 	v, note := rippleParts(m.GMRipple)
 	row("gm_ripple", v, note, "gm_max / gm_min − 1")
-	row("power", SI(m.Power, "W", tableDigits), "", "supply power, largest over the sweep")
+	row("power", SIFixed(m.Power, "W", tableDigits), "", "supply power, largest over the sweep")
 	row("area", areaText(m.Area), "", "total gate area Σ W·L·m")
 	v, note = handoverParts(m.Switchover, single)
 	row("switchover", v, note, "centre of the NMOS/PMOS handover")
@@ -197,8 +197,8 @@ func DevicesTable(w io.Writer, ev *objectives.Evaluation) error {
 			wtxt = strconv.FormatFloat(d.M, 'g', -1, 64) + "×" + wtxt
 		}
 		t.add(d.Name, d.Type, d.Role, wtxt, SI(d.L, "m", tableDigits),
-			SI(d.ID, "A", tableDigits), volts(d.VGS), volts(d.VDS), volts(d.VTH), volts(d.VDSAT),
-			SI(d.GM, "S", tableDigits), d.Region)
+			SIFixed(d.ID, "A", tableDigits), volts(d.VGS), volts(d.VDS), volts(d.VTH), volts(d.VDSAT),
+			SIFixed(d.GM, "S", tableDigits), d.Region)
 	}
 	t.write(e, "  ")
 	return e.err

@@ -13,9 +13,18 @@ import (
 //	[n, N)        node voltages fixed by grounded (chains of) voltage sources,
 //	              ground first
 //
-// and keeps one dense N×N Jacobian. Only its leading n×n block is factored;
-// the rows of fixed nodes give the currents their sources deliver, and
-// their columns couple the inputs into the unknowns for the exact gm.
+// The Newton loop needs only the n×n Jacobian J of the unknowns; the exact
+// gm and the source currents also need the columns of the inputs that move
+// with vid (JE), the rows of the fixed nodes whose source currents the
+// probes read (F), and where those meet (FE). Each element's stamps are
+// resolved at compile time to slots of one compact work array
+//
+//	[ J (n×n) | JE (n×nE) | F (nF×n) | FE (nF×nE) | trash ]
+//
+// so that a load starts from a short copy of the constant entries and
+// writes every stamp without a branch; stamps nobody reads go to the
+// trash slot. The residual is compact the same way: [ unknown rows | F
+// rows | trash ].
 
 // fixedNode is a node whose voltage a voltage source sets relative to an
 // already fixed node: v[idx] = v[parent] + sign·drive.
@@ -26,31 +35,59 @@ type fixedNode struct {
 	sign   float64
 	drive  Drive
 	dm     float64 // d v / d vid, accumulated along the chain
+	row    int     // compact residual row, or the trash row
 }
 
 type mosStamp struct {
 	inst       device.Instance
-	d, g, s, b int
-	// flat Jacobian indices of the channel's eight entries: rows d and s,
-	// columns d, g, s, b.
+	d, g, s, b int // variable indices
+	// work slots of the channel's eight Jacobian entries: rows d and s,
+	// columns d, g, s, b; and residual rows of d, s, b.
 	dd, dg, ds, db, sd, sg, ss, sb int
+	rd, rs, rb                     int
 }
 
-type twoTerm struct{ a, b int }
+type resStamp struct {
+	a, b   int // variables
+	ra, rb int // residual rows
+	g      float64
+}
+
+type isrcStamp struct {
+	ra, rb int
+	drive  Drive
+}
+
+type vccsStamp struct {
+	cp, cn int // controlling variables
+	rp, rn int // residual rows
+	g      float64
+}
 
 type branchStamp struct {
-	idx    int // variable index of the branch current
-	p, n   int
-	cp, cn int     // controlling nodes (VCVS), -1 for an independent source
-	gain   float64 // VCVS gain
-	drive  Drive   // independent source value
-	vsrc   int     // index into Circuit.VSources, -1 for a VCVS
+	idx    int // variable (and row) of the branch current
+	p, n   int // variables
+	rp, rn int // residual rows of p and n
+	cp, cn int // controlling variables (VCVS)
+	gain   float64
+	drive  Drive
+	vsrc   int // index into Circuit.VSources, -1 for a VCVS
 }
 
 type sourceRef struct {
 	kind  int // 0 fixed-node source, 1 branch
 	index int // into system.fixed or system.branches
 	sign  float64
+}
+
+type probeTerm struct {
+	src  int // VSource index
+	coef float64
+}
+
+type eCol struct {
+	idx int     // variable
+	e   float64 // its d v / d vid
 }
 
 type system struct {
@@ -60,50 +97,66 @@ type system struct {
 
 	fixed    []fixedNode
 	mos      []mosStamp
-	res      []twoTerm
-	resG     []float64
-	isrc     []twoTerm
-	isrcDrv  []Drive
+	res      []resStamp
+	isrc     []isrcStamp
 	vccs     []vccsStamp
 	branches []branchStamp
 
-	// srcOf maps each VSource to where its current is found.
-	srcOf []sourceRef
-	// probes as (source, coef) lists resolved to sourceRefs.
+	srcOf      []sourceRef // for each VSource, where its current is found
 	probeTerms [][]probeTerm
 	output     int // probe index or -1
 
-	// direct[i] is ∂r_i/∂vid at fixed x for unknown rows (source drives).
-	direct []float64
-
-	// base holds the Jacobian entries that do not depend on the solution
-	// (junction gmin, resistors, controlled sources, branch incidence);
-	// every load starts from a copy.
+	// Compact layout (see the comment at the top of the file).
+	eCols  []eCol
+	needed []int // fixed nodes whose delivered current is read, parents first
+	nE, nF int
+	oJE    int
+	oF     int
+	oFE    int
+	trash  int // work slot
+	rTrash int // residual row
+	rowOf  []int
+	colOf  []int
+	// base is the constant part of the work array: resistors, controlled
+	// sources, branch incidence (junction gmin is added per solver).
 	base []float64
-	// eCols lists the fixed variables that move with vid, and by how much.
-	eCols []eCol
-	// needed lists, parents first, the fixed nodes whose delivered current
-	// a probe reads (with every node that hangs from them).
-	needed []int
+	// direct[i] is ∂r_i/∂vid at fixed voltages, for unknown rows.
+	direct []float64
 }
 
-type eCol struct {
-	idx int
-	e   float64
+// slot returns the work-array slot of Jacobian entry (row, col), in
+// variable indices.
+func (s *system) slot(row, col int) int {
+	r, c := s.rowOf[row], s.colOf[col]
+	if r < 0 || c < 0 {
+		return s.trash
+	}
+	if r < s.n {
+		if c < s.n {
+			return r*s.n + c
+		}
+		return s.oJE + r*s.nE + (c - s.n)
+	}
+	k := r - s.n
+	if c < s.n {
+		return s.oF + k*s.n + c
+	}
+	return s.oFE + k*s.nE + (c - s.n)
 }
 
-type vccsStamp struct {
-	p, n, cp, cn int
-	g            float64
-}
-
-type probeTerm struct {
-	src  int // VSource index
-	coef float64
+// rrow returns the compact residual row of a variable.
+func (s *system) rrow(v int) int {
+	if r := s.rowOf[v]; r >= 0 {
+		return r
+	}
+	return s.rTrash
 }
 
 // compile checks the circuit and builds its system.
 func compile(c *Circuit) (*system, error) {
+	if err := checkNodes(c); err != nil {
+		return nil, err
+	}
 	nNodes := len(c.names)
 	fixedOf := make([]int, nNodes) // node → index in fixed, -1 if not fixed
 	for i := range fixedOf {
@@ -112,10 +165,6 @@ func compile(c *Circuit) (*system, error) {
 	s := &system{c: c}
 	s.fixed = append(s.fixed, fixedNode{parent: -1, src: -1})
 	fixedOf[Ground] = 0
-
-	if err := checkNodes(c); err != nil {
-		return nil, err
-	}
 
 	defines := make([]bool, len(c.VSources))
 	for changed := true; changed; {
@@ -164,8 +213,12 @@ func compile(c *Circuit) (*system, error) {
 		}
 		floating = append(floating, i)
 	}
-	nb := len(floating) + len(c.VCVSs)
-	s.n = nu + nb
+	for _, e := range c.VCVSs {
+		if fixedOf[e.P] >= 0 && fixedOf[e.N] >= 0 {
+			return nil, fmt.Errorf("circuit %q: VCVS %s drives two nodes already fixed by voltage sources", c.Title, e.Name)
+		}
+	}
+	s.n = nu + len(floating) + len(c.VCVSs)
 	s.N = s.n + len(s.fixed)
 	for node := 0; node < nNodes; node++ {
 		if f := fixedOf[node]; f >= 0 {
@@ -180,49 +233,97 @@ func compile(c *Circuit) (*system, error) {
 			s.srcOf[f.src] = sourceRef{kind: 0, index: k, sign: -f.sign}
 		}
 	}
+	if err := s.resolveProbes(); err != nil {
+		return nil, err
+	}
+	s.layout()
+	s.direct = make([]float64, s.n)
+
 	for k, i := range floating {
 		v := c.VSources[i]
 		s.srcOf[i] = sourceRef{kind: 1, index: len(s.branches), sign: 1}
-		s.branches = append(s.branches, branchStamp{
-			idx: nu + k, p: s.idx[v.P], n: s.idx[v.N], cp: -1, cn: -1, drive: v.Value, vsrc: i,
-		})
+		s.addBranch(nu+k, s.idx[v.P], s.idx[v.N], -1, -1, 0, v.Value, i)
 	}
 	for k, e := range c.VCVSs {
-		if fixedOf[e.P] >= 0 && fixedOf[e.N] >= 0 {
-			return nil, fmt.Errorf("circuit %q: VCVS %s drives two nodes already fixed by voltage sources", c.Title, e.Name)
-		}
-		s.branches = append(s.branches, branchStamp{
-			idx: nu + len(floating) + k, p: s.idx[e.P], n: s.idx[e.N],
-			cp: s.idx[e.CP], cn: s.idx[e.CN], gain: e.Gain, vsrc: -1,
-		})
+		s.addBranch(nu+len(floating)+k, s.idx[e.P], s.idx[e.N], s.idx[e.CP], s.idx[e.CN], e.Gain, Drive{}, -1)
 	}
-
+	// Transistors of the same card and size share one instance, so that
+	// load can recognise two evaluations with identical inputs (the two
+	// halves of a pair at vid = 0) and do the work once.
+	type instKey struct {
+		m device.Model
+		g device.Geometry
+	}
+	insts := map[instKey]device.Instance{}
 	for _, m := range c.Mosfets {
-		inst, err := m.Model.Instance(m.Geom, c.TempK)
-		if err != nil {
-			return nil, fmt.Errorf("circuit %q: transistor %s: %w", c.Title, m.Name, err)
+		key := instKey{m.Model, m.Geom}
+		inst, ok := insts[key]
+		if !ok {
+			var err error
+			if inst, err = m.Model.Instance(m.Geom, c.TempK); err != nil {
+				return nil, fmt.Errorf("circuit %q: transistor %s: %w", c.Title, m.Name, err)
+			}
+			insts[key] = inst
 		}
 		d, g, so, b := s.idx[m.D], s.idx[m.G], s.idx[m.S], s.idx[m.B]
-		N := s.N
 		s.mos = append(s.mos, mosStamp{inst: inst, d: d, g: g, s: so, b: b,
-			dd: d*N + d, dg: d*N + g, ds: d*N + so, db: d*N + b,
-			sd: so*N + d, sg: so*N + g, ss: so*N + so, sb: so*N + b})
+			dd: s.slot(d, d), dg: s.slot(d, g), ds: s.slot(d, so), db: s.slot(d, b),
+			sd: s.slot(so, d), sg: s.slot(so, g), ss: s.slot(so, so), sb: s.slot(so, b),
+			rd: s.rrow(d), rs: s.rrow(so), rb: s.rrow(b)})
 	}
 	for _, r := range c.Resistors {
 		if !(r.R > 0) {
 			return nil, fmt.Errorf("circuit %q: resistor %s: resistance %g Ω, want > 0", c.Title, r.Name, r.R)
 		}
-		s.res = append(s.res, twoTerm{s.idx[r.A], s.idx[r.B]})
-		s.resG = append(s.resG, 1/r.R)
+		a, b, g := s.idx[r.A], s.idx[r.B], 1/r.R
+		s.res = append(s.res, resStamp{a: a, b: b, ra: s.rrow(a), rb: s.rrow(b), g: g})
+		s.stamp(a, a, g)
+		s.stamp(a, b, -g)
+		s.stamp(b, a, -g)
+		s.stamp(b, b, g)
 	}
 	for _, i := range c.ISources {
-		s.isrc = append(s.isrc, twoTerm{s.idx[i.P], s.idx[i.N]})
-		s.isrcDrv = append(s.isrcDrv, i.Value)
+		a, b := s.idx[i.P], s.idx[i.N]
+		s.isrc = append(s.isrc, isrcStamp{ra: s.rrow(a), rb: s.rrow(b), drive: i.Value})
+		if a < s.n {
+			s.direct[a] += i.Value.DM
+		}
+		if b < s.n {
+			s.direct[b] -= i.Value.DM
+		}
 	}
 	for _, g := range c.VCCSs {
-		s.vccs = append(s.vccs, vccsStamp{p: s.idx[g.P], n: s.idx[g.N], cp: s.idx[g.CP], cn: s.idx[g.CN], g: g.G})
+		p, n, cp, cn := s.idx[g.P], s.idx[g.N], s.idx[g.CP], s.idx[g.CN]
+		s.vccs = append(s.vccs, vccsStamp{cp: cp, cn: cn, rp: s.rrow(p), rn: s.rrow(n), g: g.G})
+		s.stamp(p, cp, g.G)
+		s.stamp(p, cn, -g.G)
+		s.stamp(n, cp, -g.G)
+		s.stamp(n, cn, g.G)
 	}
+	return s, nil
+}
 
+// stamp adds a constant Jacobian entry.
+func (s *system) stamp(row, col int, v float64) { s.base[s.slot(row, col)] += v }
+
+func (s *system) addBranch(idx, p, n, cp, cn int, gain float64, drive Drive, vsrc int) {
+	s.branches = append(s.branches, branchStamp{idx: idx, p: p, n: n, rp: s.rrow(p), rn: s.rrow(n),
+		cp: cp, cn: cn, gain: gain, drive: drive, vsrc: vsrc})
+	s.stamp(p, idx, 1)
+	s.stamp(n, idx, -1)
+	s.stamp(idx, p, 1)
+	s.stamp(idx, n, -1)
+	if vsrc < 0 {
+		s.stamp(idx, cp, -gain)
+		s.stamp(idx, cn, gain)
+	} else {
+		s.direct[idx] -= drive.DM
+	}
+}
+
+// resolveProbes turns probe terms into source indices.
+func (s *system) resolveProbes() error {
+	c := s.c
 	s.output = -1
 	for pi, p := range c.Probes {
 		terms := make([]probeTerm, 0, len(p.Terms))
@@ -235,7 +336,7 @@ func compile(c *Circuit) (*system, error) {
 				}
 			}
 			if k < 0 {
-				return nil, fmt.Errorf("circuit %q: probe %s names no voltage source %q", c.Title, p.Name, t.Source)
+				return fmt.Errorf("circuit %q: probe %s names no voltage source %q", c.Title, p.Name, t.Source)
 			}
 			terms = append(terms, probeTerm{src: k, coef: t.Coef})
 		}
@@ -245,58 +346,14 @@ func compile(c *Circuit) (*system, error) {
 		}
 	}
 	if c.Output != "" && s.output < 0 {
-		return nil, fmt.Errorf("circuit %q: output probe %q is not defined", c.Title, c.Output)
+		return fmt.Errorf("circuit %q: output probe %q is not defined", c.Title, c.Output)
 	}
-
-	s.buildPlans(c)
-	s.direct = make([]float64, s.n)
-	for k, i := range s.isrc {
-		dm := s.isrcDrv[k].DM
-		if i.a < s.n {
-			s.direct[i.a] += dm
-		}
-		if i.b < s.n {
-			s.direct[i.b] -= dm
-		}
-	}
-	for _, b := range s.branches {
-		if b.vsrc >= 0 {
-			s.direct[b.idx] -= b.drive.DM
-		}
-	}
-	return s, nil
+	return nil
 }
 
-// buildPlans precomputes the constant part of the Jacobian, the inputs'
-// columns and the fixed nodes whose currents the probes read.
-func (s *system) buildPlans(c *Circuit) {
-	N := s.N
-	a := make([]float64, N*N)
-	add := func(i, j int, v float64) { a[i*N+j] += v }
-	for i, t := range s.res {
-		g := s.resG[i]
-		add(t.a, t.a, g)
-		add(t.a, t.b, -g)
-		add(t.b, t.a, -g)
-		add(t.b, t.b, g)
-	}
-	for _, g := range s.vccs {
-		add(g.p, g.cp, g.g)
-		add(g.p, g.cn, -g.g)
-		add(g.n, g.cp, -g.g)
-		add(g.n, g.cn, g.g)
-	}
-	for _, b := range s.branches {
-		add(b.p, b.idx, 1)
-		add(b.n, b.idx, -1)
-		add(b.idx, b.p, 1)
-		add(b.idx, b.n, -1)
-		if b.vsrc < 0 {
-			add(b.idx, b.cp, -b.gain)
-			add(b.idx, b.cn, b.gain)
-		}
-	}
-	s.base = a
+// layout finds the inputs' columns and the fixed rows the probes read, and
+// sizes the compact work array.
+func (s *system) layout() {
 	for _, f := range s.fixed {
 		if f.dm != 0 {
 			s.eCols = append(s.eCols, eCol{idx: f.idx, e: f.dm})
@@ -310,17 +367,39 @@ func (s *system) buildPlans(c *Circuit) {
 			}
 		}
 	}
-	// A node's delivered current includes that of every node hanging
-	// from it; parents come before children in s.fixed.
+	// A node's delivered current includes that of every node hanging from
+	// it; parents come before children in s.fixed.
 	for k := 1; k < len(s.fixed); k++ {
 		if p := s.fixed[k].parent; p >= 1 && want[p] {
 			want[k] = true
 		}
 	}
+	s.rowOf = make([]int, s.N)
+	s.colOf = make([]int, s.N)
+	for v := 0; v < s.N; v++ {
+		s.rowOf[v], s.colOf[v] = -1, -1
+		if v < s.n {
+			s.rowOf[v], s.colOf[v] = v, v
+		}
+	}
 	for k := 1; k < len(s.fixed); k++ {
 		if want[k] {
+			s.rowOf[s.fixed[k].idx] = s.n + len(s.needed)
 			s.needed = append(s.needed, k)
 		}
+	}
+	for e, ec := range s.eCols {
+		s.colOf[ec.idx] = s.n + e
+	}
+	s.nE, s.nF = len(s.eCols), len(s.needed)
+	s.oJE = s.n * s.n
+	s.oF = s.oJE + s.n*s.nE
+	s.oFE = s.oF + s.nF*s.n
+	s.trash = s.oFE + s.nF*s.nE
+	s.rTrash = s.n + s.nF
+	s.base = make([]float64, s.trash+1)
+	for k := range s.fixed {
+		s.fixed[k].row = s.rrow(s.fixed[k].idx)
 	}
 }
 

@@ -3,6 +3,8 @@ package sim
 import (
 	"fmt"
 	"math"
+
+	"pairsmith/sim/device"
 )
 
 // Options tune the Newton solver. The zero value of a field takes its
@@ -65,21 +67,18 @@ type Solver struct {
 	sys *system
 	opt Options
 
-	v   []float64 // all variables, system order
-	a   []float64 // N×N Jacobian
-	r   []float64 // residual: current leaving each node; constraint error of each branch
-	lu  []float64 // n×n factors
-	piv []int
-	dx  []float64 // last Newton step
-	e   []float64 // d v / d vid of the fixed variables (system order)
-	rhs []float64
+	v    []float64 // all variables, system order
+	w    []float64 // compact work array: J (factored in place), JE, F, FE
+	r    []float64 // compact residual: unknown rows, then the F rows
+	piv  []int
+	dx   []float64 // last Newton step
+	rhs  []float64 // d x / d vid after post
+	base []float64 // constant part of w, junction gmin included
 
 	deliv  []float64 // current each fixed node's source delivers into it
 	dDeliv []float64
-	dr     []float64 // d r / d vid on fixed rows
 
 	save []float64 // scratch copy of v
-	base []float64 // constant Jacobian entries, junction gmin included
 
 	iterations int // Newton iterations since the solver was made
 }
@@ -97,26 +96,20 @@ func NewSolver(c *Circuit, opt Options) (*Solver, error) {
 	s := &Solver{sys: sys, opt: opt.withDefaults()}
 	n, N := sys.n, sys.N
 	s.v = make([]float64, N)
-	s.a = make([]float64, N*N)
-	s.r = make([]float64, N)
-	s.lu = make([]float64, n*n)
+	s.w = make([]float64, len(sys.base))
+	s.r = make([]float64, sys.rTrash+1)
 	s.piv = make([]int, n)
 	s.dx = make([]float64, n)
-	s.e = make([]float64, N)
 	s.rhs = make([]float64, n)
 	s.deliv = make([]float64, len(sys.fixed))
 	s.dDeliv = make([]float64, len(sys.fixed))
-	s.dr = make([]float64, len(sys.fixed))
 	s.save = make([]float64, N)
-	for _, f := range sys.fixed {
-		s.e[f.idx] = f.dm
-	}
 	// The junction gmin of every transistor is constant: stamp it into the
-	// base Jacobian once, for this solver's gmin.
+	// base once, for this solver's gmin.
 	s.base = append([]float64(nil), sys.base...)
 	g := s.opt.Gmin
 	for _, m := range sys.mos {
-		add := func(i, j int, v float64) { s.base[i*N+j] += v }
+		add := func(i, j int, v float64) { s.base[sys.slot(i, j)] += v }
 		add(m.d, m.d, g)
 		add(m.d, m.b, -g)
 		add(m.s, m.s, g)
@@ -125,6 +118,7 @@ func NewSolver(c *Circuit, opt Options) (*Solver, error) {
 		add(m.b, m.d, -g)
 		add(m.b, m.s, -g)
 	}
+	s.base[sys.trash] = 0
 	return s, nil
 }
 
@@ -145,53 +139,59 @@ func (s *Solver) setFixed(vcm, vid, scale float64) {
 	}
 }
 
-// load evaluates every element at s.v and fills the Jacobian and residual.
+// load evaluates every element at s.v and fills the work array and the
+// residual.
 func (s *Solver) load(vcm, vid, scale, gshunt float64) {
 	sys := s.sys
-	N := sys.N
-	a, r, v := s.a, s.r, s.v
-	copy(a, s.base)
+	w, r, v := s.w, s.r, s.v
+	copy(w, s.base)
 	clear(r)
 	gmin := s.opt.Gmin
+	var last device.Instance
+	var lvd, lvg, lvs, lvb float64
+	var ev device.Eval
 	for i := range sys.mos {
 		m := &sys.mos[i]
 		vd, vg, vs, vb := v[m.d], v[m.g], v[m.s], v[m.b]
-		ev := m.inst.Eval(vd, vg, vs, vb)
-		a[m.dd] += ev.GD
-		a[m.dg] += ev.GG
-		a[m.ds] += ev.GS
-		a[m.db] += ev.GB
-		a[m.sd] -= ev.GD
-		a[m.sg] -= ev.GG
-		a[m.ss] -= ev.GS
-		a[m.sb] -= ev.GB
+		if m.inst != last || vd != lvd || vg != lvg || vs != lvs || vb != lvb {
+			ev = m.inst.Eval(vd, vg, vs, vb)
+			last, lvd, lvg, lvs, lvb = m.inst, vd, vg, vs, vb
+		}
+		w[m.dd] += ev.GD
+		w[m.dg] += ev.GG
+		w[m.ds] += ev.GS
+		w[m.db] += ev.GB
+		w[m.sd] -= ev.GD
+		w[m.sg] -= ev.GG
+		w[m.ss] -= ev.GS
+		w[m.sb] -= ev.GB
 		// Channel current plus the junctions' gmin, drain–bulk and
 		// source–bulk (their conductances are in base).
 		idb := gmin * (vd - vb)
 		isb := gmin * (vs - vb)
-		r[m.d] += ev.ID + idb
-		r[m.s] += isb - ev.ID
-		r[m.b] -= idb + isb
+		r[m.rd] += ev.ID + idb
+		r[m.rs] += isb - ev.ID
+		r[m.rb] -= idb + isb
 	}
-	for i, t := range sys.res {
-		cur := sys.resG[i] * (v[t.a] - v[t.b])
-		r[t.a] += cur
-		r[t.b] -= cur
+	for _, t := range sys.res {
+		cur := t.g * (v[t.a] - v[t.b])
+		r[t.ra] += cur
+		r[t.rb] -= cur
 	}
-	for i, t := range sys.isrc {
-		cur := scale * sys.isrcDrv[i].At(vcm, vid)
-		r[t.a] += cur
-		r[t.b] -= cur
+	for _, t := range sys.isrc {
+		cur := scale * t.drive.At(vcm, vid)
+		r[t.ra] += cur
+		r[t.rb] -= cur
 	}
 	for _, g := range sys.vccs {
 		cur := g.g * (v[g.cp] - v[g.cn])
-		r[g.p] += cur
-		r[g.n] -= cur
+		r[g.rp] += cur
+		r[g.rn] -= cur
 	}
 	for _, b := range sys.branches {
 		cur := v[b.idx]
-		r[b.p] += cur
-		r[b.n] -= cur
+		r[b.rp] += cur
+		r[b.rn] -= cur
 		var val float64
 		if b.vsrc >= 0 {
 			val = scale * b.drive.At(vcm, vid)
@@ -201,43 +201,45 @@ func (s *Solver) load(vcm, vid, scale, gshunt float64) {
 		r[b.idx] = v[b.p] - v[b.n] - val
 	}
 	if gshunt > 0 {
+		n := sys.n
 		for i := 0; i < sys.nu; i++ {
 			r[i] += gshunt * v[i]
-			a[i*N+i] += gshunt
+			w[i*n+i] += gshunt
 		}
 	}
 }
 
-// newton iterates from the present s.v. On success the factors of the
-// Jacobian at the last evaluation are in s.lu, s.a and s.r hold that
-// evaluation, s.dx the final (applied) step.
+// newton iterates from the present s.v. On success the LU factors of the
+// Jacobian at the last evaluation are in the J part of s.w, the rest of
+// s.w and s.r hold that evaluation, and s.dx the final (applied) step.
 func (s *Solver) newton(vcm, vid, scale, gshunt float64, maxIter int) bool {
 	sys := s.sys
-	n, N, nu := sys.n, sys.N, sys.nu
+	n, nu := sys.n, sys.nu
 	s.setFixed(vcm, vid, scale)
 	if n == 0 {
 		s.load(vcm, vid, scale, gshunt)
 		return true
 	}
 	o := &s.opt
+	lu := s.w[:n*n]
 	for it := 0; it < maxIter; it++ {
 		s.iterations++
 		s.load(vcm, vid, scale, gshunt)
 		for i := 0; i < n; i++ {
-			copy(s.lu[i*n:i*n+n], s.a[i*N:i*N+n])
 			s.dx[i] = -s.r[i]
 		}
-		if !luFactor(s.lu, n, s.piv) {
+		if !luFactor(lu, n, s.piv) {
 			return false
 		}
-		luSolve(s.lu, n, s.piv, s.dx)
+		luSolve(lu, n, s.piv, s.dx)
 		limited := false
 		converged := true
 		for i := 0; i < n; i++ {
 			d := s.dx[i]
-			if math.IsNaN(d) || math.IsInf(d, 0) {
+			if d != d || d-d != 0 { // NaN or ±Inf
 				return false
 			}
+			tol := o.AbsTol
 			if i < nu {
 				if d > o.MaxStep {
 					d, limited = o.MaxStep, true
@@ -245,17 +247,26 @@ func (s *Solver) newton(vcm, vid, scale, gshunt float64, maxIter int) bool {
 					d, limited = -o.MaxStep, true
 				}
 				s.dx[i] = d
-				old := s.v[i]
-				s.v[i] = old + d
-				if math.Abs(d) > o.RelTol*math.Max(math.Abs(old), math.Abs(s.v[i]))+o.VnTol {
-					converged = false
-				}
-			} else {
-				old := s.v[i]
-				s.v[i] = old + d
-				if math.Abs(d) > o.RelTol*math.Max(math.Abs(old), math.Abs(s.v[i]))+o.AbsTol {
-					converged = false
-				}
+				tol = o.VnTol
+			}
+			old := s.v[i]
+			nv := old + d
+			s.v[i] = nv
+			ad, ao, an := d, old, nv
+			if ad < 0 {
+				ad = -ad
+			}
+			if ao < 0 {
+				ao = -ao
+			}
+			if an < 0 {
+				an = -an
+			}
+			if ao < an {
+				ao = an
+			}
+			if ad > o.RelTol*ao+tol {
+				converged = false
 			}
 		}
 		if converged && !limited {
@@ -346,12 +357,12 @@ func (s *Solver) sourceStepping(vcm, vid float64) bool {
 // final step.
 func (s *Solver) post(wantGM bool) {
 	sys := s.sys
-	n, N := sys.n, sys.N
+	n, nE := sys.n, sys.nE
 	fx := sys.fixed
-	for _, k := range sys.needed {
-		i := fx[k].idx
-		row := s.a[i*N : i*N+n]
-		c := s.r[i]
+	w := s.w
+	for q, k := range sys.needed {
+		row := w[sys.oF+q*n : sys.oF+q*n+n]
+		c := s.r[n+q]
 		for j, aj := range row {
 			c += aj * s.dx[j]
 		}
@@ -369,23 +380,24 @@ func (s *Solver) post(wantGM bool) {
 	// J·dx/dvid = −(∂r/∂v_fixed · dv_fixed/dvid + ∂r/∂vid directly).
 	for i := 0; i < n; i++ {
 		acc := sys.direct[i]
-		for _, e := range sys.eCols {
-			acc += s.a[i*N+e.idx] * e.e
+		je := w[sys.oJE+i*nE : sys.oJE+i*nE+nE]
+		for e, c := range sys.eCols {
+			acc += je[e] * c.e
 		}
 		s.rhs[i] = -acc
 	}
 	if n > 0 {
-		luSolve(s.lu, n, s.piv, s.rhs)
+		luSolve(w[:n*n], n, s.piv, s.rhs)
 	}
-	for _, k := range sys.needed {
-		i := fx[k].idx
-		row := s.a[i*N : i*N+n]
+	for q, k := range sys.needed {
+		row := w[sys.oF+q*n : sys.oF+q*n+n]
 		d := 0.0
 		for j, aj := range row {
 			d += aj * s.rhs[j]
 		}
-		for _, e := range sys.eCols {
-			d += s.a[i*N+e.idx] * e.e
+		fe := w[sys.oFE+q*nE : sys.oFE+q*nE+nE]
+		for e, c := range sys.eCols {
+			d += fe[e] * c.e
 		}
 		s.dDeliv[k] = d
 	}

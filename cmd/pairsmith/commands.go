@@ -59,6 +59,14 @@ func work(f func(args []string) error) func(*cobra.Command, []string) error {
 	}
 }
 
+// oneDesign accepts exactly one argument, the design file.
+func oneDesign(cmd *cobra.Command, args []string) error {
+	if len(args) != 1 {
+		return fmt.Errorf("%s: want one design file (DESIGN.yaml), got %d arguments", cmd.Name(), len(args))
+	}
+	return nil
+}
+
 // loadDesign reads a design file; any failure is bad input.
 func loadDesign(path string) (*objectives.Design, error) {
 	d, err := objectives.LoadDesign(path)
@@ -163,7 +171,7 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 			"and print gm_min, gm_max, gm_ripple, power, area, switchover and transition\n" +
 			"width. --json writes the full document (curve, metrics, devices at mid-sweep);\n" +
 			"--plot draws gm and the two pair currents against vcm.",
-		Args: cobra.ExactArgs(1),
+		Args: oneDesign,
 		RunE: work(func(args []string) error {
 			if plotPath != "" {
 				if _, err := report.PlotFormat(plotPath); err != nil {
@@ -222,7 +230,7 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 			"deck that ngspice -b runs as it is: model cards (level-1 processes), the supply\n" +
 			"VDD, the inputs from VCM and VID, and VOUT, whose current is the differential\n" +
 			"output current (gm = d I(VOUT) / d VID). --dc adds the design's sweep as .dc.",
-		Args: cobra.ExactArgs(1),
+		Args: oneDesign,
 		RunE: work(func(args []string) error {
 			d, err := loadDesign(args[0])
 			if err != nil {

@@ -115,9 +115,9 @@ type Model interface {
 }
 
 // SpiceCarder is implemented by models that a SPICE simulator can run as
-// they are. SpiceCard returns the body of a `.model NAME nmos (...)` line
-// valid at the given temperature (kelvin) when the deck also sets `.temp`
-// to that temperature.
+// they are. SpiceCard returns a whole `.model NAME nmos (...)` line, valid
+// at the given temperature (kelvin) when the deck also sets `.temp` to
+// that temperature.
 type SpiceCarder interface {
 	SpiceCard(name string, tempK float64) string
 }

@@ -1,0 +1,230 @@
+package report
+
+import (
+	"bytes"
+	"errors"
+	"math"
+	"strings"
+	"testing"
+	"unicode/utf8"
+
+	"pairsmith/objectives"
+	"pairsmith/sim"
+	"pairsmith/sim/device"
+	"pairsmith/topologies"
+)
+
+func TestSI(t *testing.T) {
+	// Prefixes and symbols: SI brochure, 9th edition, table 7 (µ for
+	// micro, m for milli, …); rounding to significant figures is common
+	// practice, no source.
+	tests := []struct {
+		v      float64
+		unit   string
+		digits int
+		want   string
+	}{
+		{1.9566230946951727e-4, "S", 4, "195.7 µS"},
+		{2e-5, "m", 4, "20 µm"},
+		{1e-6, "m", 4, "1 µm"},
+		{1.8, "V", 4, "1.8 V"},
+		{0.01, "V", 4, "10 mV"},
+		{0.9832603363556242, "V", 4, "983.3 mV"},
+		{8.014244604479885e-5, "W", 4, "80.14 µW"},
+		{-1.966e-5, "A", 4, "-19.66 µA"},
+		{999.96e-6, "S", 4, "1 mS"}, // rounds up into the next prefix
+		{999.94e-6, "S", 4, "999.9 µS"},
+		{5.600749530370578e-10, "S", 4, "560.1 pS"},
+		{1.5e-15, "A", 3, "1.5 fA"},
+		{2e-18, "A", 3, "0.002 fA"}, // below femto keeps femto
+		{4.5e12, "Hz", 3, "4500 GHz"},
+		{4500, "", 3, "4.5 k"},
+		{0.5, "", 3, "500 m"},
+		{0, "V", 4, "0 V"},
+		{math.NaN(), "V", 4, "NaN"},
+		{math.Inf(1), "", 4, "∞"},
+		{math.Inf(-1), "V", 4, "-∞ V"},
+		{123456, "Ω", 2, "120 kΩ"},
+	}
+	for _, tc := range tests {
+		if got := SI(tc.v, tc.unit, tc.digits); got != tc.want {
+			t.Errorf("SI(%g, %q, %d) = %q, want %q", tc.v, tc.unit, tc.digits, got, tc.want)
+		}
+	}
+}
+
+func TestPercentAndRipple(t *testing.T) {
+	tests := []struct {
+		f      float64
+		pct    string
+		ripple string
+	}{
+		{0.42, "42.0 %", "42.0 %"},
+		{0.1300085825648707, "13.0 %", "13.0 %"},
+		{1, "100.0 %", "100.0 %"},
+		// design.md §4: an unbounded ripple is ∞ in text.
+		{math.Inf(1), "∞", "∞ (gm falls to zero)"},
+	}
+	for _, tc := range tests {
+		if got := Percent(tc.f); got != tc.pct {
+			t.Errorf("Percent(%g) = %q, want %q", tc.f, got, tc.pct)
+		}
+		if got := RippleText(tc.f); got != tc.ripple {
+			t.Errorf("RippleText(%g) = %q, want %q", tc.f, got, tc.ripple)
+		}
+	}
+}
+
+// fakeEval makes an evaluation by hand, with a flat curve of the design's
+// sweep, so that table tests do not depend on the solver.
+func fakeEval(t *testing.T, topology string, m objectives.Metrics, single bool) *objectives.Evaluation {
+	t.Helper()
+	proc, ok := device.Builtin("demo18")
+	if !ok {
+		t.Fatal("no demo18")
+	}
+	d := &objectives.Design{Topology: topology, ProcessRef: "demo18", Process: proc, Supply: 1.8, TempK: 300.15,
+		Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01}}
+	st := &topologies.Stage{Family: topology, PairN: [2]string{"M1", "M2"}, PairP: [2]string{"M3", "M4"}}
+	if single {
+		st.PairP = [2]string{}
+	}
+	ev := &objectives.Evaluation{Design: d, Stage: st, Metrics: m, MidVCM: 0.9}
+	for i := 0; i <= 180; i++ {
+		ev.Curve = append(ev.Curve, objectives.CurvePoint{VCM: 0.01 * float64(i), GM: 2e-4, IN: 1e-5, IP: 1e-5})
+	}
+	ev.Devices = []objectives.DeviceReport{
+		{Name: "M1", Type: "nmos", Role: "nmos input", W: 20e-6, L: 1e-6, M: 1, ID: 1.333e-6, VGS: 0.5, VDS: 1.2, VTH: 0.551, VDSAT: 0.11, GM: 34.87e-6, Region: "moderate"},
+		{Name: "M3", Type: "pmos", Role: "pmos input", W: 80e-6, L: 1e-6, M: 2, ID: -8.493e-6, VGS: -0.556, VDS: -1.256, VTH: -0.529, VDSAT: -0.133, GM: 175.9e-6, Region: "moderate"},
+	}
+	return ev
+}
+
+func TestMetricsTable(t *testing.T) {
+	nan := math.NaN()
+	tests := []struct {
+		name   string
+		m      objectives.Metrics
+		single bool
+		want   []string
+		absent []string
+	}{
+		{"both pairs", objectives.Metrics{GMMin: 1.9566e-4, GMMax: 2.2110e-4, GMRipple: 0.13, Power: 8.014e-5, Area: 4.2e-10, Switchover: 0.9833, TransitionWidth: 0.1941}, false,
+			[]string{"gm_min            195.7 µS", "gm_ripple          13.0 %", "area                420 µm²", "switchover        983.3 mV", "transition_width  194.1 mV"},
+			[]string{"∞", "—"}},
+		// design.md §4: unbounded ripple is ∞; a single pair has no handover.
+		{"single pair", objectives.Metrics{GMMin: 5.6e-10, GMMax: 2.056e-4, GMRipple: math.Inf(1), Power: 4.576e-5, Area: 6.5e-11, Switchover: nan, TransitionWidth: nan}, true,
+			[]string{"∞", "(gm falls to zero)", "—", "(single pair)", "560.0 pS", "65 µm²"},
+			[]string{"no complete handover", "NaN", "Inf"}},
+		{"incomplete handover", objectives.Metrics{GMMin: 2e-4, GMMax: 3e-4, GMRipple: 0.5, Power: 1e-4, Area: 3.25e-10, Switchover: 0.9, TransitionWidth: nan}, false,
+			[]string{"(no complete handover)", "900.0 mV", "50.0 %"},
+			[]string{"single pair", "NaN"}},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			var b bytes.Buffer
+			if err := MetricsTable(&b, fakeEval(t, "current-switch", tc.m, tc.single)); err != nil {
+				t.Fatal(err)
+			}
+			out := b.String()
+			lines := strings.Split(strings.TrimRight(out, "\n"), "\n")
+			if want := "current-switch on demo18 (ekv), supply 1.8 V, 27 °C, vcm 0 V to 1.8 V in 10 mV steps (181 points)"; lines[0] != want {
+				t.Errorf("header %q, want %q", lines[0], want)
+			}
+			if last := lines[len(lines)-1]; last != objectives.Caution {
+				t.Errorf("last line %q, want the caution", last)
+			}
+			for _, w := range tc.want {
+				if !strings.Contains(out, w) {
+					t.Errorf("table lacks %q:\n%s", w, out)
+				}
+			}
+			for _, a := range tc.absent {
+				if strings.Contains(out, a) {
+					t.Errorf("table has %q:\n%s", a, out)
+				}
+			}
+			// Aligned: the numbers of all seven metric lines end in the
+			// same column.
+			col := -1
+			for _, l := range lines[2:9] {
+				f := strings.Fields(l)
+				end := utf8.RuneCountInString(l[:strings.Index(l, f[1])]) + utf8.RuneCountInString(f[1])
+				if col >= 0 && end != col {
+					t.Errorf("line %q: value ends at %d, others at %d", l, end, col)
+				}
+				col = end
+			}
+		})
+	}
+}
+
+func TestDevicesTable(t *testing.T) {
+	var b bytes.Buffer
+	if err := DevicesTable(&b, fakeEval(t, "current-switch", objectives.Metrics{}, false)); err != nil {
+		t.Fatal(err)
+	}
+	out := b.String()
+	for _, w := range []string{"vcm = 900 mV", "name", "vdsat", "region",
+		"M1    nmos  nmos input", "20 µm", "1.333 µA", "0.500 V", "34.87 µS",
+		"2×80 µm", "-8.493 µA", "-0.556 V", "175.9 µS", "-1.256 V", "-0.529 V"} {
+		if !strings.Contains(out, w) {
+			t.Errorf("devices table lacks %q:\n%s", w, out)
+		}
+	}
+}
+
+// failWriter fails after n bytes.
+type failWriter struct{ n int }
+
+func (f *failWriter) Write(p []byte) (int, error) {
+	if len(p) > f.n {
+		return 0, errors.New("disk full")
+	}
+	f.n -= len(p)
+	return len(p), nil
+}
+
+func TestTablesReportWriteErrors(t *testing.T) {
+	ev := fakeEval(t, "zener", objectives.Metrics{}, false)
+	for name, f := range map[string]func() error{
+		"metrics":  func() error { return MetricsTable(&failWriter{n: 200}, ev) },
+		"devices":  func() error { return DevicesTable(&failWriter{n: 200}, ev) },
+		"families": func() error { return FamiliesTable(&failWriter{n: 200}, topologies.All()) },
+	} {
+		if err := f(); err == nil || !strings.Contains(err.Error(), "disk full") {
+			t.Errorf("%s: error %v, want the write error", name, err)
+		}
+	}
+}
+
+func TestFamiliesTable(t *testing.T) {
+	var b bytes.Buffer
+	if err := FamiliesTable(&b, topologies.All()); err != nil {
+		t.Fatal(err)
+	}
+	for _, f := range topologies.All() {
+		if !strings.Contains(b.String(), f.Name()+" — "+f.Summary()+"\n") {
+			t.Errorf("no line for %s", f.Name())
+		}
+	}
+}
+
+func TestSIFixed(t *testing.T) {
+	// As SI, keeping the trailing zeros of the significant figures.
+	tests := []struct {
+		v    float64
+		want string
+	}{
+		{9.9e-6, "9.900 µA"},
+		{-9.9e-6, "-9.900 µA"},
+		{1.72e-4, "172.0 µA"},
+		{2e-5, "20.00 µA"},
+		{999.96e-6, "1.000 mA"},
+	}
+	for _, tc := range tests {
+		if got := SIFixed(tc.v, "A", 4); got != tc.want {
+			t.Errorf("SIFixed(%g) = %q, want %q", tc.v, got, tc.want)
+		}
+	}
+}
