@@ -2,6 +2,7 @@ package objectives
 
 import (
 	"fmt"
+	"runtime"
 
 	"pairsmith/sim"
 	"pairsmith/topologies"
@@ -35,12 +36,14 @@ type Evaluation struct {
 	Stage   *topologies.Stage
 	Result  *sim.Result
 	Metrics Metrics
-	Curve   []CurvePoint
 	// Devices are at the middle point of the sweep.
 	Devices []DeviceReport
 	// MidVCM is the common mode at which Devices were taken.
 	MidVCM float64
 }
+
+// Curve returns the gm and pair-current curves of the sweep.
+func (ev *Evaluation) Curve() []CurvePoint { return Curve(ev.Stage, ev.Result) }
 
 // Build makes the stage of a design.
 func Build(d *Design) (*topologies.Stage, error) {
@@ -66,10 +69,10 @@ func Evaluate(d *Design) (*Evaluation, error) {
 		return nil, err
 	}
 	res := &sim.Result{}
-	if err := s.Sweep(d.Sweep, res); err != nil {
+	if err := s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0)); err != nil {
 		return nil, err
 	}
-	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: Measure(st, res), Curve: Curve(st, res)}
+	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: Measure(st, res)}
 	mid := res.Len() / 2
 	ev.MidVCM = res.VCM[mid]
 	for _, op := range s.Devices(s.PointAt(res, mid)) {
@@ -105,7 +108,7 @@ func (ev *Evaluation) Doc() JSON {
 	return JSON{
 		Topology: ev.Design.Topology, Process: ev.Design.Process.Name,
 		Supply: ev.Design.Supply, Temperature: ev.Design.TempK,
-		Curve: ev.Curve, Metrics: ev.Metrics, MidVCM: ev.MidVCM, Devices: ev.Devices,
+		Curve: ev.Curve(), Metrics: ev.Metrics, MidVCM: ev.MidVCM, Devices: ev.Devices,
 		Caution: Caution,
 	}
 }

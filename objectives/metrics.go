@@ -138,44 +138,53 @@ func Ripple(gmMin, gmMax float64) float64 {
 // span it needs: no net change of share for the switchover, a share that
 // never reaches 10 % or 90 % for the width.
 func Handover(vcm, in, ip []float64) (switchover, width float64) {
-	var xs, ss []float64
+	switchover, width = math.NaN(), math.NaN()
+	// One pass over the points where some pair conducts: the share's
+	// first and last values, the switchover's numerator, and the two
+	// crossings.
+	var (
+		first, prevX, prevS float64
+		num                 float64
+		lo, hi              = math.NaN(), math.NaN()
+		seen                int
+		crossHi             = math.NaN() // upward 90 % crossing after the last point below it
+	)
 	for i := range vcm {
 		tot := in[i] + ip[i]
-		if tot > 0 {
-			xs = append(xs, vcm[i])
-			ss = append(ss, in[i]/tot)
+		if !(tot > 0) {
+			continue
 		}
+		x, sh := vcm[i], in[i]/tot
+		if seen == 0 {
+			first = sh
+			if sh >= 0.1 {
+				lo = x
+			}
+		} else {
+			num += 0.5 * (prevX + x) * (sh - prevS)
+			if math.IsNaN(lo) && sh >= 0.1 {
+				lo = cross(prevX, prevS, x, sh, 0.1)
+			}
+			if prevS < 0.9 && sh >= 0.9 {
+				crossHi = cross(prevX, prevS, x, sh, 0.9)
+			}
+		}
+		if sh < 0.9 {
+			crossHi = math.NaN()
+		}
+		prevX, prevS = x, sh
+		seen++
 	}
-	switchover, width = math.NaN(), math.NaN()
-	if len(xs) < 2 {
+	if seen < 2 {
 		return switchover, width
 	}
-	total := ss[len(ss)-1] - ss[0]
-	if math.Abs(total) > 1e-3 {
-		num := 0.0
-		for i := 0; i+1 < len(xs); i++ {
-			num += 0.5 * (xs[i] + xs[i+1]) * (ss[i+1] - ss[i])
-		}
+	if total := prevS - first; math.Abs(total) > 1e-3 {
 		switchover = num / total
 	}
-	lo := math.NaN()
-	for i, s := range ss {
-		if s >= 0.1 {
-			lo = xs[i]
-			if i > 0 {
-				lo = cross(xs[i-1], ss[i-1], xs[i], s, 0.1)
-			}
-			break
-		}
-	}
-	hi := math.NaN()
-	if ss[len(ss)-1] >= 0.9 {
-		for i := len(ss) - 1; i >= 0; i-- {
-			if ss[i] < 0.9 {
-				hi = cross(xs[i], ss[i], xs[i+1], ss[i+1], 0.9)
-				break
-			}
-		}
+	// The highest vcm still below 90 % is where the share last crosses
+	// 90 % upwards; a share that ends below 90 % has no such point.
+	if prevS >= 0.9 {
+		hi = crossHi
 	}
 	if !math.IsNaN(lo) && !math.IsNaN(hi) && hi >= lo {
 		width = hi - lo

@@ -27,7 +27,7 @@ func ExampleMetricsTable() {
 			GMMin: 1.957e-4, GMMax: 2.211e-4, GMRipple: 0.13, Power: 8.014e-5, Area: 4.2e-10,
 			Switchover: 0.9833, TransitionWidth: math.NaN(),
 		},
-		Curve: make([]objectives.CurvePoint, 181),
+		Result: &sim.Result{VCM: make([]float64, 181)},
 	}
 	if err := report.MetricsTable(os.Stdout, ev); err != nil {
 		panic(err)

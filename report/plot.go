@@ -362,12 +362,13 @@ func markSwitchover(p *plot.Plot, at, top float64, legend string) error {
 // both y axes starting at zero so that the ripple reads true, and the
 // switchover marked when the stage has one.
 func CurvePanels(ev *objectives.Evaluation) (gm, currents *plot.Plot, err error) {
-	n := len(ev.Curve)
+	curve := ev.Curve()
+	n := len(curve)
 	if n == 0 {
 		return nil, nil, fmt.Errorf("plot %s: the evaluation has no curve", ev.Design.Topology)
 	}
 	vcm, g, in, ip := make([]float64, n), make([]float64, n), make([]float64, n), make([]float64, n)
-	for i, c := range ev.Curve {
+	for i, c := range curve {
 		vcm[i], g[i], in[i], ip[i] = c.VCM, c.GM, c.IN, c.IP
 	}
 	sw := ev.Metrics.Switchover

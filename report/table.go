@@ -92,7 +92,7 @@ func Conditions(ev *objectives.Evaluation) string {
 	return fmt.Sprintf("%s on %s, supply %s, %s, vcm %s to %s in %s steps (%d points)",
 		d.Topology, proc, SI(d.Supply, "V", tableDigits), Celsius(d.TempK),
 		SI(d.Sweep.Low, "V", tableDigits), SI(d.Sweep.High, "V", tableDigits),
-		SI(d.Sweep.Step, "V", tableDigits), len(ev.Curve))
+		SI(d.Sweep.Step, "V", tableDigits), ev.Result.Len())
 }
 
 // singlePair reports whether the evaluated stage has only one input pair.

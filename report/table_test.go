@@ -85,14 +85,24 @@ func fakeEval(t *testing.T, topology string, m objectives.Metrics, single bool) 
 	}
 	d := &objectives.Design{Topology: topology, ProcessRef: "demo18", Process: proc, Supply: 1.8, TempK: 300.15,
 		Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01}}
-	st := &topologies.Stage{Family: topology, PairN: [2]string{"M1", "M2"}, PairP: [2]string{"M3", "M4"}}
+	// A real sweep of the family (for the curve and point count), with
+	// the metrics and devices replaced by the case's own.
+	fam := "current-switch"
 	if single {
-		st.PairP = [2]string{}
+		fam = "n-pair"
 	}
-	ev := &objectives.Evaluation{Design: d, Stage: st, Metrics: m, MidVCM: 0.9}
-	for i := 0; i <= 180; i++ {
-		ev.Curve = append(ev.Curve, objectives.CurvePoint{VCM: 0.01 * float64(i), GM: 2e-4, IN: 1e-5, IP: 1e-5})
+	f, err := topologies.Lookup(fam)
+	if err != nil {
+		t.Fatal(err)
 	}
+	d.Topology = fam
+	d.Params = topologies.Defaults(f)
+	ev, err := objectives.Evaluate(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d.Topology = topology
+	ev.Metrics, ev.MidVCM = m, 0.9
 	ev.Devices = []objectives.DeviceReport{
 		{Name: "M1", Type: "nmos", Role: "nmos input", W: 20e-6, L: 1e-6, M: 1, ID: 1.333e-6, VGS: 0.5, VDS: 1.2, VTH: 0.551, VDSAT: 0.11, GM: 34.87e-6, Region: "moderate"},
 		{Name: "M3", Type: "pmos", Role: "pmos input", W: 80e-6, L: 1e-6, M: 2, ID: -8.493e-6, VGS: -0.556, VDS: -1.256, VTH: -0.529, VDSAT: -0.133, GM: 175.9e-6, Region: "moderate"},

@@ -8,8 +8,10 @@ import (
 
 // The compiled system orders its variables as
 //
-//	[0, nu)       node voltages that are unknowns
-//	[nu, n)       currents of floating voltage sources and VCVSs
+//	[0, nD)       unknowns (node voltages, currents of floating voltage
+//	              sources and VCVSs) that move with the sweep
+//	[nD, n)       unknowns that do not: bias branches whose equations
+//	              involve no input, solved once per sweep
 //	[n, N)        node voltages fixed by grounded (chains of) voltage sources,
 //	              ground first
 //
@@ -40,7 +42,9 @@ type fixedNode struct {
 
 type mosStamp struct {
 	inst       device.Instance
-	d, g, s, b int // variable indices
+	id         int  // instance number: equal for transistors sharing one
+	frozen     bool // all terminals constant during a sweep's continuation
+	d, g, s, b int  // variable indices
 	// work slots of the channel's eight Jacobian entries: rows d and s,
 	// columns d, g, s, b; and residual rows of d, s, b.
 	dd, dg, ds, db, sd, sg, ss, sb int
@@ -85,15 +89,29 @@ type probeTerm struct {
 	coef float64
 }
 
+// flatTerm is a probe term resolved to where its current is: coef times
+// the delivered current of needed fixed node q (see system.needed) or,
+// with q < 0, coef times the branch current variable v.
+type flatTerm struct {
+	q, v int
+	coef float64
+}
+
+// trashSlots is the size of the work and residual arrays' trash areas.
+const trashSlots = 8
+
 type eCol struct {
 	idx int     // variable
 	e   float64 // its d v / d vid
 }
 
 type system struct {
-	c        *Circuit
-	nu, n, N int
-	idx      []int // node → variable index
+	c      *Circuit
+	n, N   int
+	nu     int    // how many unknowns are node voltages
+	nD     int    // unknowns [0, nD) move with the sweep; [nD, n) do not
+	isNode []bool // for each unknown, whether it is a node voltage
+	idx    []int  // node → variable index
 
 	fixed    []fixedNode
 	mos      []mosStamp
@@ -104,19 +122,26 @@ type system struct {
 
 	srcOf      []sourceRef // for each VSource, where its current is found
 	probeTerms [][]probeTerm
-	output     int // probe index or -1
+	flat       [][]flatTerm // probeTerms resolved, per probe
+	output     int          // probe index or -1
 
 	// Compact layout (see the comment at the top of the file).
 	eCols  []eCol
 	needed []int // fixed nodes whose delivered current is read, parents first
-	nE, nF int
-	oJE    int
-	oF     int
-	oFE    int
-	trash  int // work slot
-	rTrash int // residual row
-	rowOf  []int
-	colOf  []int
+	// parentQ[q] is the position in needed of needed[q]'s parent, or -1;
+	// chains says whether any is not -1.
+	parentQ []int
+	chains  bool
+	eVal    []float64 // d v / d vid of each eCol
+	moves   []bool    // for each fixed node, whether it moves with the sweep
+	nE, nF  int
+	oJE     int
+	oF      int
+	oFE     int
+	trash   int // work slot
+	rTrash  int // residual row
+	rowOf   []int
+	colOf   []int
 	// base is the constant part of the work array: resistors, controlled
 	// sources, branch incidence (junction gmin is added per solver).
 	base []float64
@@ -191,17 +216,6 @@ func compile(c *Circuit) (*system, error) {
 		}
 	}
 
-	// Variable indices: unknown nodes, then branches, then fixed nodes.
-	s.idx = make([]int, nNodes)
-	nu := 0
-	for node := 0; node < nNodes; node++ {
-		if fixedOf[node] < 0 {
-			s.idx[node] = nu
-			nu++
-		}
-	}
-	s.nu = nu
-	s.srcOf = make([]sourceRef, len(c.VSources))
 	var floating []int
 	for i, v := range c.VSources {
 		if defines[i] {
@@ -218,7 +232,44 @@ func compile(c *Circuit) (*system, error) {
 			return nil, fmt.Errorf("circuit %q: VCVS %s drives two nodes already fixed by voltage sources", c.Title, e.Name)
 		}
 	}
-	s.n = nu + len(floating) + len(c.VCVSs)
+
+	// Variable indices: the unknowns that move with the sweep first, then
+	// those that do not (bias branches), then the fixed nodes. Unknowns
+	// are the unfixed nodes ("things" 0…nNodes−1) and the branch currents
+	// of floating sources and VCVSs (things nNodes…).
+	nb := len(floating) + len(c.VCVSs)
+	dyn := movingUnknowns(c, fixedOf, s.fixed, floating)
+	s.idx = make([]int, nNodes)
+	branchIdx := make([]int, nb)
+	var order []int
+	for pass := 0; pass < 2; pass++ {
+		want := pass == 0
+		for node := 0; node < nNodes; node++ {
+			if fixedOf[node] < 0 && dyn[node] == want {
+				order = append(order, node)
+			}
+		}
+		for k := 0; k < nb; k++ {
+			if dyn[nNodes+k] == want {
+				order = append(order, nNodes+k)
+			}
+		}
+		if pass == 0 {
+			s.nD = len(order)
+		}
+	}
+	s.isNode = make([]bool, len(order))
+	for v, th := range order {
+		if th < nNodes {
+			s.idx[th] = v
+			s.isNode[v] = true
+			s.nu++
+		} else {
+			branchIdx[th-nNodes] = v
+		}
+	}
+	s.srcOf = make([]sourceRef, len(c.VSources))
+	s.n = len(order)
 	s.N = s.n + len(s.fixed)
 	for node := 0; node < nNodes; node++ {
 		if f := fixedOf[node]; f >= 0 {
@@ -226,11 +277,13 @@ func compile(c *Circuit) (*system, error) {
 			s.fixed[f].idx = s.n + f
 		}
 	}
+	s.moves = make([]bool, len(s.fixed))
 	for k := range s.fixed {
 		f := &s.fixed[k]
 		if f.parent >= 0 {
 			f.dm = s.fixed[f.parent].dm + f.sign*f.drive.DM
 			s.srcOf[f.src] = sourceRef{kind: 0, index: k, sign: -f.sign}
+			s.moves[k] = s.moves[f.parent] || f.drive.CM != 0 || f.drive.DM != 0
 		}
 	}
 	if err := s.resolveProbes(); err != nil {
@@ -242,10 +295,10 @@ func compile(c *Circuit) (*system, error) {
 	for k, i := range floating {
 		v := c.VSources[i]
 		s.srcOf[i] = sourceRef{kind: 1, index: len(s.branches), sign: 1}
-		s.addBranch(nu+k, s.idx[v.P], s.idx[v.N], -1, -1, 0, v.Value, i)
+		s.addBranch(branchIdx[k], s.idx[v.P], s.idx[v.N], -1, -1, 0, v.Value, i)
 	}
 	for k, e := range c.VCVSs {
-		s.addBranch(nu+len(floating)+k, s.idx[e.P], s.idx[e.N], s.idx[e.CP], s.idx[e.CN], e.Gain, Drive{}, -1)
+		s.addBranch(branchIdx[len(floating)+k], s.idx[e.P], s.idx[e.N], s.idx[e.CP], s.idx[e.CN], e.Gain, Drive{}, -1)
 	}
 	// Transistors of the same card and size share one instance, so that
 	// load can recognise two evaluations with identical inputs (the two
@@ -255,6 +308,13 @@ func compile(c *Circuit) (*system, error) {
 		g device.Geometry
 	}
 	insts := map[instKey]device.Instance{}
+	ids := map[instKey]int{}
+	constant := func(v int) bool { // an unknown kept during continuation, or a fixed node that does not move
+		if v < s.n {
+			return v >= s.nD
+		}
+		return !s.moves[v-s.n]
+	}
 	for _, m := range c.Mosfets {
 		key := instKey{m.Model, m.Geom}
 		inst, ok := insts[key]
@@ -264,12 +324,29 @@ func compile(c *Circuit) (*system, error) {
 				return nil, fmt.Errorf("circuit %q: transistor %s: %w", c.Title, m.Name, err)
 			}
 			insts[key] = inst
+			ids[key] = len(ids)
 		}
 		d, g, so, b := s.idx[m.D], s.idx[m.G], s.idx[m.S], s.idx[m.B]
-		s.mos = append(s.mos, mosStamp{inst: inst, d: d, g: g, s: so, b: b,
-			dd: s.slot(d, d), dg: s.slot(d, g), ds: s.slot(d, so), db: s.slot(d, b),
-			sd: s.slot(so, d), sg: s.slot(so, g), ss: s.slot(so, so), sb: s.slot(so, b),
-			rd: s.rrow(d), rs: s.rrow(so), rb: s.rrow(b)})
+		// Stamps nobody reads go to trash slots, a different one for each
+		// position, so that they do not queue behind each other's stores.
+		sl := func(k, row, col int) int {
+			if x := s.slot(row, col); x != s.trash {
+				return x
+			}
+			return s.trash + k
+		}
+		rr := func(k, v int) int {
+			if x := s.rrow(v); x != s.rTrash {
+				return x
+			}
+			return s.rTrash + k
+		}
+		s.mos = append(s.mos, mosStamp{inst: inst, id: ids[key],
+			frozen: constant(d) && constant(g) && constant(so) && constant(b),
+			d:      d, g: g, s: so, b: b,
+			dd: sl(0, d, d), dg: sl(1, d, g), ds: sl(2, d, so), db: sl(3, d, b),
+			sd: sl(4, so, d), sg: sl(5, so, g), ss: sl(6, so, so), sb: sl(7, so, b),
+			rd: rr(0, d), rs: rr(1, so), rb: rr(2, b)})
 	}
 	for _, r := range c.Resistors {
 		if !(r.R > 0) {
@@ -299,6 +376,24 @@ func compile(c *Circuit) (*system, error) {
 		s.stamp(p, cn, -g.G)
 		s.stamp(n, cp, -g.G)
 		s.stamp(n, cn, g.G)
+	}
+	for _, terms := range s.probeTerms {
+		var ft []flatTerm
+		for _, t := range terms {
+			ref := s.srcOf[t.src]
+			if ref.kind == 0 {
+				q := -1
+				for qq, k := range s.needed {
+					if k == ref.index {
+						q = qq
+					}
+				}
+				ft = append(ft, flatTerm{q: q, coef: ref.sign * t.coef})
+			} else {
+				ft = append(ft, flatTerm{q: -1, v: s.branches[ref.index].idx, coef: t.coef})
+			}
+		}
+		s.flat = append(s.flat, ft)
 	}
 	return s, nil
 }
@@ -390,6 +485,19 @@ func (s *system) layout() {
 	}
 	for e, ec := range s.eCols {
 		s.colOf[ec.idx] = s.n + e
+		s.eVal = append(s.eVal, ec.e)
+	}
+	pos := map[int]int{}
+	for q, k := range s.needed {
+		pos[k] = q
+	}
+	for _, k := range s.needed {
+		pq, ok := pos[s.fixed[k].parent]
+		if !ok {
+			pq = -1
+		}
+		s.parentQ = append(s.parentQ, pq)
+		s.chains = s.chains || pq >= 0
 	}
 	s.nE, s.nF = len(s.eCols), len(s.needed)
 	s.oJE = s.n * s.n
@@ -397,10 +505,98 @@ func (s *system) layout() {
 	s.oFE = s.oF + s.nF*s.n
 	s.trash = s.oFE + s.nF*s.nE
 	s.rTrash = s.n + s.nF
-	s.base = make([]float64, s.trash+1)
+	s.base = make([]float64, s.trash+trashSlots)
 	for k := range s.fixed {
 		s.fixed[k].row = s.rrow(s.fixed[k].idx)
 	}
+}
+
+// movingUnknowns finds which unknowns can move with the sweep: those whose
+// equations involve, directly or through other unknowns, a node or source
+// driven by vcm or vid. The rest form a block that depends on constants
+// only (reference branches, bias chains), whose solution a sweep can keep
+// from its first point. Things are indexed as nodes 0…nNodes−1, then the
+// branch currents of the floating sources and VCVSs; the result is
+// meaningful for unknown things only.
+func movingUnknowns(c *Circuit, fixedOf []int, fixed []fixedNode, floating []int) []bool {
+	nNodes := len(c.names)
+	nThings := nNodes + len(floating) + len(c.VCVSs)
+	// A fixed node moves if any source on its chain to ground has a
+	// sweep-dependent drive.
+	moves := make([]bool, len(fixed))
+	for k := 1; k < len(fixed); k++ {
+		f := fixed[k]
+		moves[k] = moves[f.parent] || f.drive.CM != 0 || f.drive.DM != 0
+	}
+	dyn := make([]bool, nThings)
+	deps := make([][]int, nThings) // row thing → column things it depends on
+	dep := func(rows []int, cols ...int) {
+		for _, r := range rows {
+			if r < nNodes && fixedOf[r] >= 0 {
+				continue // a fixed node's row is not an equation
+			}
+			for _, col := range cols {
+				if col < nNodes && fixedOf[col] >= 0 {
+					if moves[fixedOf[col]] {
+						dyn[r] = true
+					}
+					continue
+				}
+				deps[r] = append(deps[r], col)
+			}
+		}
+	}
+	node := func(ns ...Node) []int {
+		out := make([]int, len(ns))
+		for i, n := range ns {
+			out[i] = int(n)
+		}
+		return out
+	}
+	for _, m := range c.Mosfets {
+		dep(node(m.D, m.S, m.B), node(m.D, m.G, m.S, m.B)...)
+	}
+	for _, r := range c.Resistors {
+		dep(node(r.A, r.B), node(r.A, r.B)...)
+	}
+	for _, i := range c.ISources {
+		if i.Value.CM != 0 || i.Value.DM != 0 {
+			for _, r := range node(i.P, i.N) {
+				dyn[r] = true
+			}
+		}
+	}
+	for _, g := range c.VCCSs {
+		dep(node(g.P, g.N), node(g.CP, g.CN)...)
+	}
+	for k, i := range floating {
+		v, b := c.VSources[i], nNodes+k
+		dep(node(v.P, v.N), b)
+		dep([]int{b}, node(v.P, v.N)...)
+		if v.Value.CM != 0 || v.Value.DM != 0 {
+			dyn[b] = true
+		}
+	}
+	for k, e := range c.VCVSs {
+		b := nNodes + len(floating) + k
+		dep(node(e.P, e.N), b)
+		dep([]int{b}, node(e.P, e.N, e.CP, e.CN)...)
+	}
+	for changed := true; changed; {
+		changed = false
+		for r := range deps {
+			if dyn[r] {
+				continue
+			}
+			for _, col := range deps[r] {
+				if dyn[col] {
+					dyn[r], changed = true, true
+					break
+				}
+			}
+		}
+	}
+	return dyn
 }
 
 // checkNodes rejects node indices out of range and nodes that no element

@@ -2,74 +2,101 @@ package sim
 
 import "math"
 
-// luFactor factors the row-major n×n matrix a in place into L·U with
-// partial (row) pivoting, the textbook Doolittle elimination (Golub and
-// Van Loan, Matrix Computations, algorithm 3.4.1). piv records the row
-// swapped into each position. It reports false when a pivot is exactly
-// zero or not finite, that is, when the matrix is singular to working
-// precision.
+// luFactor factors in place the leading n×n block of the row-major matrix
+// a, whose rows are ld apart (ld ≥ n), into L·U with partial (row)
+// pivoting: the textbook Doolittle elimination (Golub and Van Loan,
+// Matrix Computations, algorithm 3.4.1). piv records the row swapped into
+// each position; the diagonal keeps the reciprocals of U's pivots, so that
+// luSolve multiplies instead of dividing. It reports false when a pivot is
+// exactly zero or not finite, that is, when the block is singular to
+// working precision.
 //
 // The solver's Jacobians are small and dense (a handful of unknowns), where
 // gonum's general LU spends more time in set-up than in arithmetic;
 // BenchmarkLU in lu_test.go measures the difference and TestLUAgainstGonum
-// checks this kernel against gonum's mat.Dense.Solve.
-func luFactor(a []float64, n int, piv []int) bool {
+// checks this kernel against gonum's mat.Dense.Solve. The leading
+// dimension lets a sweep factor the block of its moving unknowns where it
+// lies, without a copy.
+func luFactor(a []float64, n, ld int, piv []int) bool {
+	if n == 0 {
+		return true
+	}
+	a = a[:(n-1)*ld+n]
+	piv = piv[:n]
 	for k := 0; k < n; k++ {
-		p := k
-		big := math.Abs(a[k*n+k])
+		kk := k*ld + k
+		p, big := k, math.Abs(a[kk])
 		for i := k + 1; i < n; i++ {
-			if v := math.Abs(a[i*n+k]); v > big {
+			if v := math.Abs(a[i*ld+k]); v > big {
 				big, p = v, i
 			}
 		}
 		piv[k] = p
-		if big == 0 || math.IsNaN(big) || math.IsInf(big, 0) {
+		if !(big > 0 && big <= math.MaxFloat64) { // zero, NaN or ±Inf
 			return false
 		}
 		if p != k {
-			rk, rp := a[k*n:k*n+n], a[p*n:p*n+n]
-			for j := range rk {
-				rk[j], rp[j] = rp[j], rk[j]
+			for j := 0; j < n; j++ {
+				a[k*ld+j], a[p*ld+j] = a[p*ld+j], a[k*ld+j]
 			}
 		}
-		inv := 1 / a[k*n+k]
-		rowk := a[k*n+k+1 : k*n+n]
+		inv := 1 / a[kk]
+		a[kk] = inv
 		for i := k + 1; i < n; i++ {
-			f := a[i*n+k] * inv
-			a[i*n+k] = f
-			if f == 0 {
-				continue
-			}
-			rowi := a[i*n+k+1 : i*n+n]
-			for j, v := range rowk {
-				rowi[j] -= f * v
+			ik := i*ld + k
+			f := a[ik] * inv
+			a[ik] = f
+			for j := k + 1; j < n; j++ {
+				a[i*ld+j] -= f * a[k*ld+j]
 			}
 		}
 	}
 	return true
 }
 
-// luSolve solves A·x = b in place (b becomes x) with the factors from
-// luFactor.
-func luSolve(a []float64, n int, piv []int, b []float64) {
-	for k := 0; k < n; k++ {
-		if p := piv[k]; p != k {
+// luSolve solves A·x = b in place (b becomes x) with the factors luFactor
+// left in a (leading dimension ld).
+func luSolve(a []float64, n, ld int, piv []int, b []float64) {
+	if n == 0 {
+		return
+	}
+	a = a[:(n-1)*ld+n]
+	b = b[:n]
+	for k, p := range piv[:n] {
+		if p != k {
 			b[k], b[p] = b[p], b[k]
 		}
 	}
-	for i := 1; i < n; i++ {
-		s := b[i]
-		row := a[i*n : i*n+i]
-		for j, v := range row {
-			s -= v * b[j]
+	switch n {
+	case 1:
+		b[0] *= a[0]
+	case 2:
+		b1 := b[1] - a[ld]*b[0]
+		x1 := b1 * a[ld+1]
+		b[0] = (b[0] - a[1]*x1) * a[0]
+		b[1] = x1
+	case 3:
+		r1, r2 := ld, 2*ld
+		b1 := b[1] - a[r1]*b[0]
+		b2 := b[2] - a[r2]*b[0] - a[r2+1]*b1
+		x2 := b2 * a[r2+2]
+		x1 := (b1 - a[r1+2]*x2) * a[r1+1]
+		b[0] = (b[0] - a[1]*x1 - a[2]*x2) * a[0]
+		b[1], b[2] = x1, x2
+	default:
+		for i := 1; i < n; i++ {
+			s := b[i]
+			for j := 0; j < i; j++ {
+				s -= a[i*ld+j] * b[j]
+			}
+			b[i] = s
 		}
-		b[i] = s
-	}
-	for i := n - 1; i >= 0; i-- {
-		s := b[i]
-		for j := i + 1; j < n; j++ {
-			s -= a[i*n+j] * b[j]
+		for i := n - 1; i >= 0; i-- {
+			s := b[i]
+			for j := i + 1; j < n; j++ {
+				s -= a[i*ld+j] * b[j]
+			}
+			b[i] = s * a[i*ld+i]
 		}
-		b[i] = s / a[i*n+i]
 	}
 }

@@ -42,10 +42,10 @@ func TestLUAgainstGonum(t *testing.T) {
 			lu := append([]float64(nil), a...)
 			x := append([]float64(nil), b...)
 			piv := make([]int, n)
-			if !luFactor(lu, n, piv) {
+			if !luFactor(lu, n, n, piv) {
 				t.Fatalf("n=%d trial %d: kernel says singular, gonum solved it", n, trial)
 			}
-			luSolve(lu, n, piv, x)
+			luSolve(lu, n, n, piv, x)
 			// Compare residuals, which both methods make small, and the
 			// solutions, scaled by the condition of the system.
 			c := mat.Cond(mat.NewDense(n, n, append([]float64(nil), a...)), 1)
@@ -60,11 +60,56 @@ func TestLUAgainstGonum(t *testing.T) {
 	}
 }
 
+// TestLULeadingBlock checks the factorisation of a leading block in
+// place (rows ld apart) against gonum's solve of the block alone; the
+// entries outside the block must not matter or change.
+func TestLULeadingBlock(t *testing.T) {
+	rng := rand.New(rand.NewPCG(5, 6))
+	for _, n := range []int{1, 2, 3, 4, 5} {
+		ld := n + 3
+		big := make([]float64, ld*ld)
+		for i := range big {
+			big[i] = rng.NormFloat64()
+		}
+		block := make([]float64, n*n)
+		for i := 0; i < n; i++ {
+			copy(block[i*n:i*n+n], big[i*ld:i*ld+n])
+		}
+		rhs := make([]float64, n)
+		for i := range rhs {
+			rhs[i] = rng.NormFloat64()
+		}
+		want := mat.NewVecDense(n, nil)
+		if err := want.SolveVec(mat.NewDense(n, n, block), mat.NewVecDense(n, append([]float64(nil), rhs...))); err != nil {
+			t.Fatal(err)
+		}
+		outside := append([]float64(nil), big...)
+		piv := make([]int, n)
+		if !luFactor(big, n, ld, piv) {
+			t.Fatalf("n=%d: singular", n)
+		}
+		x := append([]float64(nil), rhs...)
+		luSolve(big, n, ld, piv, x)
+		for i := 0; i < n; i++ {
+			if !near(x[i], want.AtVec(i), 1e-10, 1e-12) {
+				t.Errorf("n=%d: x[%d] = %g, gonum %g", n, i, x[i], want.AtVec(i))
+			}
+		}
+		for i := 0; i < ld; i++ {
+			for j := 0; j < ld; j++ {
+				if (i >= n || j >= n) && big[i*ld+j] != outside[i*ld+j] {
+					t.Fatalf("n=%d: entry (%d,%d) outside the block changed", n, i, j)
+				}
+			}
+		}
+	}
+}
+
 // TestLUSingular checks that an exactly singular matrix is reported.
 func TestLUSingular(t *testing.T) {
 	a := []float64{1, 2, 3, 2, 4, 6, 1, 0, 1} // row 2 = 2 × row 1
 	piv := make([]int, 3)
-	if luFactor(a, 3, piv) {
+	if luFactor(a, 3, 3, piv) {
 		t.Fatal("singular matrix factored without complaint")
 	}
 }
@@ -83,8 +128,8 @@ func BenchmarkLU(b *testing.B) {
 			for b.Loop() {
 				copy(lu, a)
 				copy(x, rhs)
-				luFactor(lu, n, piv)
-				luSolve(lu, n, piv, x)
+				luFactor(lu, n, n, piv)
+				luSolve(lu, n, n, piv, x)
 			}
 		})
 		b.Run(fmt.Sprintf("gonum/n=%d", n), func(b *testing.B) {

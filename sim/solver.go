@@ -75,12 +75,25 @@ type Solver struct {
 	rhs  []float64 // d x / d vid after post
 	base []float64 // constant part of w, junction gmin included
 
-	deliv  []float64 // current each fixed node's source delivers into it
-	dDeliv []float64
+	deliv []float64 // current delivered into each needed fixed node
+
+	// active is how many unknowns the last converged solve moved: n, or
+	// nD for a sweep's reduced step, whose factors are then the leading
+	// nD×nD block of J.
+	active int
+	// memo holds each transistor's last inputs and evaluation.
+	memo []mosMemo
 
 	save []float64 // scratch copy of v
 
 	iterations int // Newton iterations since the solver was made
+}
+
+// mosMemo is a transistor's last evaluation and its inputs.
+type mosMemo struct {
+	vd, vg, vs, vb float64
+	ev             device.Eval
+	ok             bool
 }
 
 // Iterations returns the number of Newton iterations (Jacobian loads and
@@ -97,13 +110,13 @@ func NewSolver(c *Circuit, opt Options) (*Solver, error) {
 	n, N := sys.n, sys.N
 	s.v = make([]float64, N)
 	s.w = make([]float64, len(sys.base))
-	s.r = make([]float64, sys.rTrash+1)
+	s.r = make([]float64, sys.rTrash+trashSlots)
 	s.piv = make([]int, n)
 	s.dx = make([]float64, n)
 	s.rhs = make([]float64, n)
-	s.deliv = make([]float64, len(sys.fixed))
-	s.dDeliv = make([]float64, len(sys.fixed))
+	s.deliv = make([]float64, len(sys.needed))
 	s.save = make([]float64, N)
+	s.memo = make([]mosMemo, len(sys.mos))
 	// The junction gmin of every transistor is constant: stamp it into the
 	// base once, for this solver's gmin.
 	s.base = append([]float64(nil), sys.base...)
@@ -118,8 +131,26 @@ func NewSolver(c *Circuit, opt Options) (*Solver, error) {
 		add(m.b, m.d, -g)
 		add(m.b, m.s, -g)
 	}
-	s.base[sys.trash] = 0
+	clear(s.base[sys.trash:])
 	return s, nil
+}
+
+// clone returns a solver of the same compiled circuit with buffers of its
+// own, for use on another goroutine (the compiled system and the device
+// instances are read-only once built).
+func (s *Solver) clone() *Solver {
+	sys := s.sys
+	c := &Solver{sys: sys, opt: s.opt, base: s.base}
+	c.v = append([]float64(nil), s.v...)
+	c.w = make([]float64, len(s.w))
+	c.r = make([]float64, len(s.r))
+	c.piv = make([]int, len(s.piv))
+	c.dx = make([]float64, len(s.dx))
+	c.rhs = make([]float64, len(s.rhs))
+	c.deliv = make([]float64, len(s.deliv))
+	c.save = make([]float64, len(s.save))
+	c.memo = make([]mosMemo, len(s.memo))
+	return c
 }
 
 // Circuit returns the circuit the solver was built from.
@@ -147,16 +178,27 @@ func (s *Solver) load(vcm, vid, scale, gshunt float64) {
 	copy(w, s.base)
 	clear(r)
 	gmin := s.opt.Gmin
-	var last device.Instance
+	// An evaluation is skipped, exactly, when its inputs are bitwise those
+	// of the transistor's last one (a bias branch frozen during a sweep's
+	// continuation) or of the transistor just evaluated with the same
+	// instance (the two halves of a pair at vid = 0).
+	last := -1
 	var lvd, lvg, lvs, lvb float64
 	var ev device.Eval
 	for i := range sys.mos {
 		m := &sys.mos[i]
 		vd, vg, vs, vb := v[m.d], v[m.g], v[m.s], v[m.b]
-		if m.inst != last || vd != lvd || vg != lvg || vs != lvs || vb != lvb {
+		if m.frozen {
+			me := &s.memo[i]
+			if !me.ok || vd != me.vd || vg != me.vg || vs != me.vs || vb != me.vb {
+				me.ev = m.inst.Eval(vd, vg, vs, vb)
+				me.vd, me.vg, me.vs, me.vb, me.ok = vd, vg, vs, vb, true
+			}
+			ev = me.ev
+		} else if m.id != last || vd != lvd || vg != lvg || vs != lvs || vb != lvb {
 			ev = m.inst.Eval(vd, vg, vs, vb)
-			last, lvd, lvg, lvs, lvb = m.inst, vd, vg, vs, vb
 		}
+		last, lvd, lvg, lvs, lvb = m.id, vd, vg, vs, vb
 		w[m.dd] += ev.GD
 		w[m.dg] += ev.GG
 		w[m.ds] += ev.GS
@@ -202,9 +244,11 @@ func (s *Solver) load(vcm, vid, scale, gshunt float64) {
 	}
 	if gshunt > 0 {
 		n := sys.n
-		for i := 0; i < sys.nu; i++ {
-			r[i] += gshunt * v[i]
-			w[i*n+i] += gshunt
+		for i := 0; i < n; i++ {
+			if sys.isNode[i] {
+				r[i] += gshunt * v[i]
+				w[i*n+i] += gshunt
+			}
 		}
 	}
 }
@@ -214,10 +258,11 @@ func (s *Solver) load(vcm, vid, scale, gshunt float64) {
 // s.w and s.r hold that evaluation, and s.dx the final (applied) step.
 func (s *Solver) newton(vcm, vid, scale, gshunt float64, maxIter int) bool {
 	sys := s.sys
-	n, nu := sys.n, sys.nu
+	n := sys.n
 	s.setFixed(vcm, vid, scale)
 	if n == 0 {
 		s.load(vcm, vid, scale, gshunt)
+		s.active = 0
 		return true
 	}
 	o := &s.opt
@@ -228,10 +273,10 @@ func (s *Solver) newton(vcm, vid, scale, gshunt float64, maxIter int) bool {
 		for i := 0; i < n; i++ {
 			s.dx[i] = -s.r[i]
 		}
-		if !luFactor(lu, n, s.piv) {
+		if !luFactor(lu, n, n, s.piv) {
 			return false
 		}
-		luSolve(lu, n, s.piv, s.dx)
+		luSolve(lu, n, n, s.piv, s.dx)
 		limited := false
 		converged := true
 		for i := 0; i < n; i++ {
@@ -240,7 +285,7 @@ func (s *Solver) newton(vcm, vid, scale, gshunt float64, maxIter int) bool {
 				return false
 			}
 			tol := o.AbsTol
-			if i < nu {
+			if sys.isNode[i] {
 				if d > o.MaxStep {
 					d, limited = o.MaxStep, true
 				} else if d < -o.MaxStep {
@@ -270,6 +315,58 @@ func (s *Solver) newton(vcm, vid, scale, gshunt float64, maxIter int) bool {
 			}
 		}
 		if converged && !limited {
+			s.active = n
+			return true
+		}
+	}
+	return false
+}
+
+// newtonMoving is newton over the unknowns that move with the sweep only,
+// the others kept at their values: the continuation step of a sweep once
+// its first point has solved the bias branches.
+func (s *Solver) newtonMoving(vcm, vid float64, maxIter int) bool {
+	sys := s.sys
+	n, m := sys.n, sys.nD
+	s.setFixed(vcm, vid, 1)
+	o := &s.opt
+	for it := 0; it < maxIter; it++ {
+		s.iterations++
+		s.load(vcm, vid, 1, 0)
+		dx, lu := s.dx[:m], s.w[:n*n]
+		for i := range dx {
+			dx[i] = -s.r[i]
+		}
+		if !luFactor(lu, m, n, s.piv) {
+			return false
+		}
+		luSolve(lu, m, n, s.piv, dx)
+		limited, converged := false, true
+		v := s.v[:m]
+		for i, d := range dx {
+			if d != d || d-d != 0 {
+				return false
+			}
+			tol := o.AbsTol
+			if sys.isNode[i] {
+				if d > o.MaxStep {
+					d, limited = o.MaxStep, true
+				} else if d < -o.MaxStep {
+					d, limited = -o.MaxStep, true
+				}
+				dx[i] = d
+				tol = o.VnTol
+			}
+			old := v[i]
+			nv := old + d
+			v[i] = nv
+			if math.Abs(d) > o.RelTol*max(math.Abs(old), math.Abs(nv))+tol {
+				converged = false
+			}
+		}
+		if converged && !limited {
+			clear(s.dx[m:n])
+			s.active = m
 			return true
 		}
 	}
@@ -285,7 +382,7 @@ func (s *Solver) solveFresh(vcm, vid float64) error {
 		clear(s.v[:sys.n])
 		for node, val := range sys.c.Guess {
 			if int(node) >= 0 && int(node) < len(sys.idx) {
-				if k := sys.idx[node]; k < sys.nu {
+				if k := sys.idx[node]; k < sys.n && sys.isNode[k] {
 					s.v[k] = val
 				}
 			}
@@ -352,81 +449,116 @@ func (s *Solver) sourceStepping(vcm, vid float64) bool {
 }
 
 // post computes, after a converged solve, the currents delivered by the
-// sources of fixed nodes that probes read, and their derivatives with
-// respect to vid, from the last evaluation corrected to first order by the
-// final step.
+// sources of the fixed nodes that probes read, corrected to first order by
+// the final step, and — for the gm — the derivative of the unknowns with
+// respect to vid. After a reduced solve only the moving unknowns take part:
+// the others neither moved nor depend on vid.
 func (s *Solver) post(wantGM bool) {
 	sys := s.sys
-	n, nE := sys.n, sys.nE
-	fx := sys.fixed
+	n, nE, m, nF := sys.n, sys.nE, s.active, len(sys.needed)
 	w := s.w
-	for q, k := range sys.needed {
-		row := w[sys.oF+q*n : sys.oF+q*n+n]
-		c := s.r[n+q]
-		for j, aj := range row {
-			c += aj * s.dx[j]
+	dx := s.dx[:m]
+	f := w[sys.oF : sys.oF+nF*n]
+	rF := s.r[n : n+nF]
+	dq := s.deliv[:nF]
+	for q := range dq {
+		row := f[q*n : q*n+m]
+		c := rF[q]
+		for j, x := range dx {
+			c += row[j] * x
 		}
-		s.deliv[k] = c
+		dq[q] = c
 	}
-	for q := len(sys.needed) - 1; q >= 0; q-- {
-		k := sys.needed[q]
-		if p := fx[k].parent; p >= 1 {
-			s.deliv[p] += s.deliv[k]
+	if sys.chains {
+		for q := nF - 1; q >= 0; q-- {
+			if p := sys.parentQ[q]; p >= 0 {
+				dq[p] += dq[q]
+			}
 		}
 	}
 	if !wantGM {
 		return
 	}
 	// J·dx/dvid = −(∂r/∂v_fixed · dv_fixed/dvid + ∂r/∂vid directly).
-	for i := 0; i < n; i++ {
+	ev := sys.eVal
+	je := w[sys.oJE : sys.oJE+n*nE]
+	rhs := s.rhs[:m]
+	for i := range rhs {
 		acc := sys.direct[i]
-		je := w[sys.oJE+i*nE : sys.oJE+i*nE+nE]
-		for e, c := range sys.eCols {
-			acc += je[e] * c.e
+		row := je[i*nE : i*nE+nE]
+		for e, x := range ev {
+			acc += row[e] * x
 		}
-		s.rhs[i] = -acc
+		rhs[i] = -acc
 	}
-	if n > 0 {
-		luSolve(w[:n*n], n, s.piv, s.rhs)
-	}
-	for q, k := range sys.needed {
-		row := w[sys.oF+q*n : sys.oF+q*n+n]
-		d := 0.0
-		for j, aj := range row {
-			d += aj * s.rhs[j]
-		}
-		fe := w[sys.oFE+q*nE : sys.oFE+q*nE+nE]
-		for e, c := range sys.eCols {
-			d += fe[e] * c.e
-		}
-		s.dDeliv[k] = d
-	}
-	for q := len(sys.needed) - 1; q >= 0; q-- {
-		k := sys.needed[q]
-		if p := fx[k].parent; p >= 1 {
-			s.dDeliv[p] += s.dDeliv[k]
-		}
-	}
+	clear(s.rhs[m:n])
+	luSolve(w[:n*n], m, n, s.piv, rhs)
 }
 
-// sourceCurrent returns the SPICE current of voltage source i (from P
-// through the source to N) and, when post computed it, its derivative
-// with respect to vid.
-func (s *Solver) sourceCurrent(i int) (cur, dcur float64) {
-	ref := s.sys.srcOf[i]
-	if ref.kind == 0 {
-		return ref.sign * s.deliv[ref.index], ref.sign * s.dDeliv[ref.index]
+// deliveredSlope returns d/dvid of the current delivered into needed
+// fixed node q (and every node hanging from it), from the rhs post left.
+func (s *Solver) deliveredSlope(q int) float64 {
+	sys := s.sys
+	n, nE, m := sys.n, sys.nE, s.active
+	row := s.w[sys.oF+q*n : sys.oF+q*n+m]
+	d := 0.0
+	for j, x := range s.rhs[:m] {
+		d += row[j] * x
 	}
-	b := s.sys.branches[ref.index]
-	return s.v[b.idx], s.rhs[b.idx]
+	rowE := s.w[sys.oFE+q*nE : sys.oFE+q*nE+nE]
+	for e, x := range sys.eVal {
+		d += rowE[e] * x
+	}
+	if sys.chains {
+		for c, p := range sys.parentQ {
+			if p == q {
+				d += s.deliveredSlope(c)
+			}
+		}
+	}
+	return d
 }
 
-// probe returns the value of probe p and its derivative with respect to vid.
+// probe returns the value of probe p and, after post computed the rhs,
+// its derivative with respect to vid.
 func (s *Solver) probe(p int) (val, dval float64) {
-	for _, t := range s.sys.probeTerms[p] {
-		c, dc := s.sourceCurrent(t.src)
-		val += t.coef * c
-		dval += t.coef * dc
+	sys := s.sys
+	n, nE, m := sys.n, sys.nE, s.active
+	rhs := s.rhs[:m]
+	for _, t := range sys.flat[p] {
+		if t.q >= 0 {
+			val += t.coef * s.deliv[t.q]
+			if sys.chains {
+				dval += t.coef * s.deliveredSlope(t.q)
+				continue
+			}
+			row := s.w[sys.oF+t.q*n : sys.oF+t.q*n+m]
+			d := 0.0
+			for j, x := range rhs {
+				d += row[j] * x
+			}
+			rowE := s.w[sys.oFE+t.q*nE : sys.oFE+t.q*nE+nE]
+			for e, x := range sys.eVal {
+				d += rowE[e] * x
+			}
+			dval += t.coef * d
+		} else {
+			val += t.coef * s.v[t.v]
+			dval += t.coef * s.rhs[t.v]
+		}
 	}
 	return val, dval
+}
+
+// probeValue returns the value of probe p.
+func (s *Solver) probeValue(p int) float64 {
+	val := 0.0
+	for _, t := range s.sys.flat[p] {
+		if t.q >= 0 {
+			val += t.coef * s.deliv[t.q]
+		} else {
+			val += t.coef * s.v[t.v]
+		}
+	}
+	return val
 }

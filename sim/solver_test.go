@@ -333,3 +333,43 @@ func TestSweepAllocations(t *testing.T) {
 		t.Errorf("a warm %d-point sweep allocates %v times, want 0", res.Len(), allocs)
 	}
 }
+
+// TestSweepParallel checks that a sweep split into segments gives the
+// points of a single sweep (to the Newton tolerance), and the same bits
+// whatever the number of workers.
+func TestSweepParallel(t *testing.T) {
+	c := diffPair(40e-6, 20e-6, 1e-6)
+	sp := SweepSpec{Low: 1.2, High: 2.0, Step: 0.8 / (3*SegmentPoints + 17)}
+	solve := func(workers int) *Result {
+		s, err := NewSolver(c, Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		res := &Result{}
+		if workers == 0 {
+			err = s.Sweep(sp, res)
+		} else {
+			err = s.SweepParallel(sp, res, workers)
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		return res
+	}
+	one, w1, w3 := solve(0), solve(1), solve(3)
+	if one.Len() != w1.Len() || one.Len() != w3.Len() {
+		t.Fatalf("point counts %d, %d, %d", one.Len(), w1.Len(), w3.Len())
+	}
+	for i := range one.VCM {
+		if w1.GM[i] != w3.GM[i] || w1.Probe[1][i] != w3.Probe[1][i] {
+			t.Fatalf("point %d: 1 and 3 workers differ: gm %v vs %v", i, w1.GM[i], w3.GM[i])
+		}
+		// Segments start from a solution one Newton step further
+		// converged than the single sweep's; both meet the voltage
+		// tolerance (1e-6·|v| + 1e-7 V), which moves gm by about
+		// δV/V_ov ≈ 1e-6 of itself.
+		if !near(w1.GM[i], one.GM[i], 1e-6, 0) || !near(w1.Probe[1][i], one.Probe[1][i], 1e-6, 1e-15) {
+			t.Fatalf("point %d: segmented gm %v, single sweep %v", i, w1.GM[i], one.GM[i])
+		}
+	}
+}

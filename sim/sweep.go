@@ -3,6 +3,7 @@ package sim
 import (
 	"fmt"
 	"math"
+	"sync"
 
 	"pairsmith/sim/device"
 )
@@ -45,15 +46,18 @@ func (sp SweepSpec) At(i, points int) float64 {
 // Result is a solved sweep. Its slices are reused by the next sweep into
 // the same Result.
 type Result struct {
+	VID float64 // the sweep's differential input, V
 	VCM []float64
 	// GM is d I_out / d V_id at every point (S), where I_out is the
 	// circuit's output probe; nil when the circuit names no output.
 	GM []float64
 	// Probe[k][i] is probe k at point i.
 	Probe [][]float64
-	// V holds every solver variable at every point, Vars per point.
-	V    []float64
-	Vars int
+	// X holds the solver's unknowns at every point, Unknowns per point
+	// (node voltages fixed by sources are not stored: they follow from
+	// the point).
+	X        []float64
+	Unknowns int
 }
 
 // Len returns the number of points.
@@ -68,19 +72,26 @@ func grow(s []float64, n int) []float64 {
 
 // Sweep solves the circuit at every point of sp into res. The first point
 // is found from scratch; each later one starts from the quadratic
-// extrapolation of the last three, falls back to sub-steps from the last solution and, only
-// then, to a fresh solve. A point without a solution ends the sweep with
-// a *ConvergenceError.
+// extrapolation of the last three, falls back to sub-steps from the last
+// solution and, only then, to a fresh solve. A point without a solution
+// ends the sweep with a *ConvergenceError.
 func (s *Solver) Sweep(sp SweepSpec, res *Result) error {
-	npts, err := sp.Points()
+	npts, err := s.prepare(sp, res)
 	if err != nil {
 		return err
 	}
+	return s.sweepRange(sp, npts, 0, npts, res, nil)
+}
+
+// prepare sizes res for the sweep.
+func (s *Solver) prepare(sp SweepSpec, res *Result) (int, error) {
+	npts, err := sp.Points()
+	if err != nil {
+		return 0, err
+	}
 	sys := s.sys
-	n, N := sys.n, sys.N
 	res.VCM = grow(res.VCM, npts)
-	wantGM := sys.output >= 0
-	if wantGM {
+	if sys.output >= 0 {
 		res.GM = grow(res.GM, npts)
 	} else {
 		res.GM = res.GM[:0]
@@ -91,27 +102,44 @@ func (s *Solver) Sweep(sp SweepSpec, res *Result) error {
 	for k := range res.Probe {
 		res.Probe[k] = grow(res.Probe[k], npts)
 	}
-	res.Vars = N
-	res.V = grow(res.V, npts*N)
+	res.Unknowns = sys.n
+	res.X = grow(res.X, npts*sys.n)
+	res.VID = sp.VID
+	return npts, nil
+}
 
-	for i := 0; i < npts; i++ {
+// sweepRange solves points [lo, hi) of a sweep of npts points. The first
+// starts from start, the unknowns of a solution near it, or from scratch
+// when start is nil.
+func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start []float64) error {
+	sys := s.sys
+	n := sys.n
+	wantGM := sys.output >= 0
+	for i := lo; i < hi; i++ {
 		vcm := sp.At(i, npts)
 		switch {
-		case i == 0:
+		case i == lo && start == nil:
 			if err := s.solveFresh(vcm, sp.VID); err != nil {
 				return err
 			}
+		case i == lo:
+			copy(s.v[:n], start)
+			if !s.newton(vcm, sp.VID, 1, 0, s.opt.MaxIter) {
+				if err := s.solveFresh(vcm, sp.VID); err != nil {
+					return err
+				}
+			}
 		default:
-			prev := res.V[(i-1)*N : i*N]
+			prev := res.X[(i-1)*n : i*n]
 			copy(s.v[:n], prev[:n])
-			if i >= 2 {
+			if i-lo >= 2 {
 				// Predict by the polynomial through the last two or three
 				// solutions (Lagrange form, uneven steps allowed).
 				x0, x1 := res.VCM[i-1], res.VCM[i-2]
-				p1 := res.V[(i-2)*N : (i-1)*N]
-				if i >= 3 {
+				p1 := res.X[(i-2)*n : (i-1)*n]
+				if i-lo >= 3 {
 					x2 := res.VCM[i-3]
-					p2 := res.V[(i-3)*N : (i-2)*N]
+					p2 := res.X[(i-3)*n : (i-2)*n]
 					l0 := (vcm - x1) * (vcm - x2) / ((x0 - x1) * (x0 - x2))
 					l1 := (vcm - x0) * (vcm - x2) / ((x1 - x0) * (x1 - x2))
 					l2 := (vcm - x0) * (vcm - x1) / ((x2 - x0) * (x2 - x1))
@@ -125,7 +153,13 @@ func (s *Solver) Sweep(sp SweepSpec, res *Result) error {
 					}
 				}
 			}
-			if !s.newton(vcm, sp.VID, 1, 0, s.opt.MaxIter) {
+			var ok bool
+			if sys.nD < n {
+				ok = s.newtonMoving(vcm, sp.VID, s.opt.MaxIter)
+			} else {
+				ok = s.newton(vcm, sp.VID, 1, 0, s.opt.MaxIter)
+			}
+			if !ok {
 				if err := s.recover(res.VCM[i-1], prev, vcm, sp.VID); err != nil {
 					return err
 				}
@@ -137,9 +171,85 @@ func (s *Solver) Sweep(sp SweepSpec, res *Result) error {
 			_, res.GM[i] = s.probe(sys.output)
 		}
 		for k := range res.Probe {
-			res.Probe[k][i], _ = s.probe(k)
+			res.Probe[k][i] = s.probeValue(k)
 		}
-		copy(res.V[i*N:(i+1)*N], s.v)
+		copy(res.X[i*n:(i+1)*n], s.v[:n])
+	}
+	return nil
+}
+
+// SegmentPoints is the number of points above which SweepParallel splits
+// a sweep into segments, and roughly their length.
+const SegmentPoints = 8192
+
+// SweepParallel solves the same sweep as Sweep, split into segments of
+// about SegmentPoints points solved concurrently on up to workers
+// goroutines (at least one). Every segment starts from the continuation
+// solution at its first point, found by stepping sequentially from the
+// start of the sweep from one segment start to the next, so each follows
+// the same branch of solutions a single sweep would. The number of
+// segments depends only on the number of points: the result is the same
+// whatever the number of workers.
+func (s *Solver) SweepParallel(sp SweepSpec, res *Result, workers int) error {
+	npts, err := s.prepare(sp, res)
+	if err != nil {
+		return err
+	}
+	segs := npts / SegmentPoints
+	if segs <= 1 {
+		return s.sweepRange(sp, npts, 0, npts, res, nil)
+	}
+	workers = max(workers, 1)
+	n := s.sys.n
+	bounds := make([]int, segs+1)
+	for k := range bounds {
+		bounds[k] = k * npts / segs
+	}
+	// Continuation from one segment start to the next.
+	starts := make([][]float64, segs)
+	for k := 0; k < segs; k++ {
+		vcm := sp.At(bounds[k], npts)
+		if k == 0 {
+			if err := s.solveFresh(vcm, sp.VID); err != nil {
+				return err
+			}
+		} else {
+			prev := starts[k-1]
+			from := sp.At(bounds[k-1], npts)
+			copy(s.v[:n], prev)
+			if !s.newton(vcm, sp.VID, 1, 0, s.opt.MaxIter) {
+				if err := s.recover(from, prev, vcm, sp.VID); err != nil {
+					return err
+				}
+			}
+		}
+		starts[k] = append([]float64(nil), s.v[:n]...)
+	}
+	if workers > segs {
+		workers = segs
+	}
+	errs := make([]error, segs)
+	iters := make([]int, workers)
+	var wg sync.WaitGroup
+	for wk := 0; wk < workers; wk++ {
+		wg.Add(1)
+		go func(wk int) {
+			defer wg.Done()
+			c := s.clone()
+			for k := wk; k < segs; k += workers {
+				errs[k] = c.sweepRange(sp, npts, bounds[k], bounds[k+1], res, starts[k])
+			}
+			iters[wk] = c.iterations
+		}(wk)
+	}
+	wg.Wait()
+	for _, it := range iters {
+		s.iterations += it
+	}
+	for _, e := range errs {
+		if e != nil {
+			return e
+		}
 	}
 	return nil
 }
@@ -197,8 +307,10 @@ func (s *Solver) Solve(vcm, vid float64) (*Point, error) {
 
 // PointAt returns point i of a sweep result as a Point.
 func (s *Solver) PointAt(res *Result, i int) *Point {
-	N := res.Vars
-	p := &Point{VCM: res.VCM[i], V: append([]float64(nil), res.V[i*N:(i+1)*N]...), sys: s.sys}
+	n := res.Unknowns
+	copy(s.v[:n], res.X[i*n:(i+1)*n])
+	s.setFixed(res.VCM[i], res.VID, 1)
+	p := &Point{VCM: res.VCM[i], VID: res.VID, V: append([]float64(nil), s.v...), sys: s.sys}
 	if len(res.GM) > i {
 		p.GM = res.GM[i]
 	}

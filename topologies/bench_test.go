@@ -72,3 +72,43 @@ func TestSweepAllocates(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkLongSweep times the 50 000-point sweep scripts/bench-vs-ngspice
+// runs, on one goroutine and split over two, for the level-1
+// current-switch demo: per point, continuation needs one Newton iteration.
+func BenchmarkLongSweep(b *testing.B) {
+	proc, _ := device.Builtin("demo18-l1")
+	f, _ := topologies.Lookup("current-switch")
+	st, err := f.Build(topologies.Defaults(f), topologies.Conditions{Process: proc, Supply: 1.8, TempK: 27 + device.ZeroC})
+	if err != nil {
+		b.Fatal(err)
+	}
+	sp := sim.SweepSpec{Low: 0, High: 1.8, Step: 1.8 / 49999}
+	for _, workers := range []int{1, 2} {
+		b.Run(fmt.Sprintf("workers=%d", workers), func(b *testing.B) {
+			s, err := sim.NewSolver(st.Circuit, sim.Options{})
+			if err != nil {
+				b.Fatal(err)
+			}
+			res := &sim.Result{}
+			run := func() error {
+				if workers == 1 {
+					return s.Sweep(sp, res)
+				}
+				return s.SweepParallel(sp, res, workers)
+			}
+			if err := run(); err != nil {
+				b.Fatal(err)
+			}
+			it0 := s.Iterations()
+			start := time.Now()
+			for b.Loop() {
+				if err := run(); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(time.Since(start).Nanoseconds())/float64(b.N*res.Len()), "ns/point")
+			b.ReportMetric(float64(s.Iterations()-it0)/float64(b.N*res.Len()), "iter/point")
+		})
+	}
+}
