@@ -103,6 +103,20 @@ func (b *builder) mos(t device.Type, role string, d, g, s sim.Node, w, l float64
 	return name
 }
 
+// mosInWell adds a transistor whose bulk is tied to its source: for a PMOS,
+// a well of its own, as translinear loops are laid out.
+func (b *builder) mosInWell(t device.Type, role string, d, g, s sim.Node, w, l float64) string {
+	b.count++
+	name := fmt.Sprintf("M%d", b.count)
+	m := b.nm
+	if t == device.PMOS {
+		m = b.pm
+	}
+	b.c.AddMosfet(name, d, g, s, s, m, device.Geometry{W: w, L: l})
+	b.roles[name] = role
+	return name
+}
+
 // nPair adds the NMOS input pair with common source tn and its drains on
 // summing nodes held at supply − vhead.
 func (b *builder) nPair(tn sim.Node) {

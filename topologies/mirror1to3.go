@@ -18,10 +18,10 @@ import (
 type mirror1to3 struct{}
 
 var (
-	pVRefN = Param{Name: "vrefn", Unit: units.Volt, Min: 0, Max: 5, Default: 0.75, Scale: Linear, Doc: "gate voltage of the NMOS switch: the lower handover"}
-	pVRefP = Param{Name: "vrefp", Unit: units.Volt, Min: 0, Max: 5, Default: 1.05, Scale: Linear, Doc: "gate voltage of the PMOS switch: the upper handover"}
-	pWSwN  = Param{Name: "wswn", Unit: units.Metre, Min: 0.5e-6, Max: 500e-6, Default: 20e-6, Scale: Log, Doc: "width of the NMOS switch (length ln)"}
-	pWSwP  = Param{Name: "wswp", Unit: units.Metre, Min: 0.5e-6, Max: 2000e-6, Default: 80e-6, Scale: Log, Doc: "width of the PMOS switch (length lp)"}
+	pVRefN = Param{Name: "vrefn", Unit: units.Volt, Min: 0, Max: 5, Default: 0.78, Scale: Linear, Doc: "gate voltage of the NMOS switch: the lower handover"}
+	pVRefP = Param{Name: "vrefp", Unit: units.Volt, Min: 0, Max: 5, Default: 0.89, Scale: Linear, Doc: "gate voltage of the PMOS switch: the upper handover"}
+	pWSwN  = Param{Name: "wswn", Unit: units.Metre, Min: 0.5e-6, Max: 500e-6, Default: 22e-6, Scale: Log, Doc: "width of the NMOS switch (length ln)"}
+	pWSwP  = Param{Name: "wswp", Unit: units.Metre, Min: 0.5e-6, Max: 2000e-6, Default: 92e-6, Scale: Log, Doc: "width of the PMOS switch (length lp)"}
 	pWMN   = Param{Name: "wmn", Unit: units.Metre, Min: 0.5e-6, Max: 500e-6, Default: 5e-6, Scale: Log, Doc: "width of the NMOS 1:3 mirror's input (its output is 3 × wmn)"}
 	pWMP   = Param{Name: "wmp", Unit: units.Metre, Min: 0.5e-6, Max: 2000e-6, Default: 20e-6, Scale: Log, Doc: "width of the PMOS 1:3 mirror's input (its output is 3 × wmp)"}
 )

@@ -125,6 +125,29 @@ func TestPublishedBehaviour(t *testing.T) {
 			t.Errorf("ripple %.3f, want 0.155 ± 0.05 (square law 2.309/2 − 1)", r)
 		}
 	})
+	t.Run("electronic zener holds the gate-source sum", func(t *testing.T) {
+		// Where the zener conducts, V_GS,n + V_SG,p is held constant, so in
+		// strong inversion √I_n + √I_p, and with matched pairs gm, stays
+		// constant (Hogervorst et al. 1994; square law, any analog text).
+		// An ideal zener gives 0; a real one has a finite knee, here
+		// stiff: allow 15 %, against the complementary pair's 100 %.
+		ev := evalOn(t, "zener", "demo33-l1", 3.3, zener33)
+		if r := ev.Metrics.GMRipple; r > 0.15 {
+			t.Errorf("ripple %.3f, want below 0.15", r)
+		}
+	})
+	t.Run("square-root bias keeps the root sum", func(t *testing.T) {
+		// The translinear loop holds √I_a + √I_b = √itail (square law,
+		// Gilbert's translinear principle), so with matched pairs gm is
+		// constant. The keep-alive current costs √(1/kkeep) of the root
+		// sum at the bottom (3 % of gm at kkeep = 1024), and the replica's
+		// handover is not quite the real pair's: allow 10 %, against the
+		// complementary pair's 100 %.
+		ev := evalOn(t, "sqrt-bias", "demo33-l1", 3.3, sqrt33)
+		if r := ev.Metrics.GMRipple; r > 0.10 {
+			t.Errorf("ripple %.3f, want below 0.10", r)
+		}
+	})
 	t.Run("current switch in weak inversion is flat", func(t *testing.T) {
 		// In weak inversion gm = I/(n·U_T) (Enz, Krummenacher, Vittoz
 		// 1995): a pair carrying I gives gm = I/(2·n·U_T), so handing the
@@ -153,6 +176,13 @@ var switch33 = with(strong33, topologies.Values{"wn": 20e-6, "wp": 60e-6, "wsw":
 // mirror33 places the two handovers at 1.3 V and 2.0 V on demo33-l1, with
 // switches matched to their pairs.
 var mirror33 = with(strong33, topologies.Values{"wswn": 8e-6, "wswp": 24e-6, "vrefn": 1.3, "vrefp": 2.0, "wmn": 8e-6, "wmp": 24e-6})
+
+// zener33 gives the zener a stiff shunt (W/L = 8000) and a small replica.
+var zener33 = with(strong33, topologies.Values{"wz": 4000e-6, "lz": 0.5e-6, "wr": 0.5e-6, "ir": 1.2e-6})
+
+// sqrt33 sizes the square-root loop on demo33-l1: wide loop devices, a
+// replica that starves early, a small keep-alive current.
+var sqrt33 = with(strong33, topologies.Values{"wl": 200e-6, "wq": 0.5e-6, "kr": 4, "kkeep": 1024})
 
 // weak18 puts the current switch deep in weak inversion on demo18 (EKV):
 // wide devices at 1 µA.
