@@ -49,6 +49,9 @@ func (o Options) withDefaults() Options {
 	return o
 }
 
+// dampAfter is the Newton iteration after which steps are halved.
+const dampAfter = 12
+
 // ConvergenceError reports a point where no DC solution was found. It
 // never becomes a number in a result.
 type ConvergenceError struct {
@@ -279,10 +282,35 @@ func (s *Solver) newton(vcm, vid, scale, gshunt float64, maxIter int) bool {
 		luSolve(lu, n, n, s.piv, s.dx)
 		limited := false
 		converged := true
+		// Damping: a solve that has not converged in its first iterations
+		// is likely cycling between regions of the device equations;
+		// shortening its steps breaks the cycle (damped Newton, as in
+		// Deuflhard, Newton Methods for Nonlinear Problems, 2004, ch. 3,
+		// in its simplest fixed-factor form).
+		damp := 1.0
+		if it >= dampAfter {
+			damp = 0.5
+		}
+		if damp != 1 {
+			// Converged steps are taken whole; the others are shortened.
+			small := true
+			for i := 0; i < n; i++ {
+				if math.Abs(s.dx[i]) > o.RelTol*math.Abs(s.v[i])+o.VnTol {
+					small = false
+					break
+				}
+			}
+			if small {
+				damp = 1
+			}
+		}
 		for i := 0; i < n; i++ {
-			d := s.dx[i]
+			d := s.dx[i] * damp
 			if d != d || d-d != 0 { // NaN or ±Inf
 				return false
+			}
+			if damp != 1 {
+				limited = true
 			}
 			tol := o.AbsTol
 			if sys.isNode[i] {
@@ -458,14 +486,12 @@ func (s *Solver) post(wantGM bool) {
 	n, nE, m, nF := sys.n, sys.nE, s.active, len(sys.needed)
 	w := s.w
 	dx := s.dx[:m]
-	f := w[sys.oF : sys.oF+nF*n]
-	rF := s.r[n : n+nF]
 	dq := s.deliv[:nF]
 	for q := range dq {
-		row := f[q*n : q*n+m]
-		c := rF[q]
-		for j, x := range dx {
-			c += row[j] * x
+		c := s.r[n+q]
+		base := sys.oF + q*n
+		for j := 0; j < m; j++ {
+			c += w[base+j] * dx[j]
 		}
 		dq[q] = c
 	}
@@ -524,28 +550,29 @@ func (s *Solver) deliveredSlope(q int) float64 {
 func (s *Solver) probe(p int) (val, dval float64) {
 	sys := s.sys
 	n, nE, m := sys.n, sys.nE, s.active
-	rhs := s.rhs[:m]
+	w, rhs, ev := s.w, s.rhs, sys.eVal
 	for _, t := range sys.flat[p] {
-		if t.q >= 0 {
-			val += t.coef * s.deliv[t.q]
-			if sys.chains {
-				dval += t.coef * s.deliveredSlope(t.q)
-				continue
-			}
-			row := s.w[sys.oF+t.q*n : sys.oF+t.q*n+m]
-			d := 0.0
-			for j, x := range rhs {
-				d += row[j] * x
-			}
-			rowE := s.w[sys.oFE+t.q*nE : sys.oFE+t.q*nE+nE]
-			for e, x := range sys.eVal {
-				d += rowE[e] * x
-			}
-			dval += t.coef * d
-		} else {
+		if t.q < 0 {
 			val += t.coef * s.v[t.v]
 			dval += t.coef * s.rhs[t.v]
+			continue
 		}
+		val += t.coef * s.deliv[t.q]
+		if sys.chains {
+			dval += t.coef * s.deliveredSlope(t.q)
+			continue
+		}
+		// d(delivered current)/dvid = F row · dx/dvid + FE row · dv_in/dvid.
+		d := 0.0
+		base := sys.oF + t.q*n
+		for j := 0; j < m; j++ {
+			d += w[base+j] * rhs[j]
+		}
+		base = sys.oFE + t.q*nE
+		for e := 0; e < nE; e++ {
+			d += w[base+e] * ev[e]
+		}
+		dval += t.coef * d
 	}
 	return val, dval
 }

@@ -130,8 +130,10 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 				}
 			}
 		default:
+			// s.v holds point i−1's solution (post leaves it alone); the
+			// predictor moves only the unknowns that move with the sweep.
 			prev := res.X[(i-1)*n : i*n]
-			copy(s.v[:n], prev[:n])
+			m := sys.nD
 			if i-lo >= 2 {
 				// Predict by the polynomial through the last two or three
 				// solutions (Lagrange form, uneven steps allowed).
@@ -143,12 +145,12 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 					l0 := (vcm - x1) * (vcm - x2) / ((x0 - x1) * (x0 - x2))
 					l1 := (vcm - x0) * (vcm - x2) / ((x1 - x0) * (x1 - x2))
 					l2 := (vcm - x0) * (vcm - x1) / ((x2 - x0) * (x2 - x1))
-					for j := 0; j < n; j++ {
+					for j := 0; j < m; j++ {
 						s.v[j] = l0*prev[j] + l1*p1[j] + l2*p2[j]
 					}
 				} else if x0 != x1 {
 					f := (vcm - x0) / (x0 - x1)
-					for j := 0; j < n; j++ {
+					for j := 0; j < m; j++ {
 						s.v[j] += f * (prev[j] - p1[j])
 					}
 				}
