@@ -6,7 +6,10 @@ import (
 	"fmt"
 	"path/filepath"
 	"sort"
+	"strconv"
 	"strings"
+
+	"gopkg.in/yaml.v3"
 
 	"pairsmith/sim"
 	"pairsmith/sim/device"
@@ -119,6 +122,16 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 		for _, p := range fam.Params() {
 			known = append(known, p.Name)
 		}
+		for _, k := range pm.Keys() {
+			if _, ok := topologies.ParamOf(fam, k); ok {
+				continue
+			}
+			if others := familiesWith(k); len(others) > 0 {
+				return nil, &units.Error{File: pm.File(), Line: pm.Line(k), Field: pm.Path() + "." + k,
+					Want: fmt.Sprintf("a parameter of %s (%s)", fam.Name(), strings.Join(known, ", ")),
+					Err:  fmt.Errorf("%w: %s is a parameter of %s", units.ErrUnknownField, k, strings.Join(others, ", "))}
+			}
+		}
 		if err := pm.Check(known...); err != nil {
 			return nil, err
 		}
@@ -143,6 +156,26 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 	return d, nil
 }
 
+// familiesWith returns the families that have a parameter called name.
+func familiesWith(name string) []string {
+	var out []string
+	for _, f := range topologies.All() {
+		if _, ok := topologies.ParamOf(f, name); ok {
+			out = append(out, f.Name())
+		}
+	}
+	return out
+}
+
+// yamlScalar writes s as a YAML scalar that reads back as s.
+func yamlScalar(s string) string {
+	out, err := yaml.Marshal(s)
+	if err != nil {
+		return strconv.Quote(s)
+	}
+	return strings.TrimSuffix(string(out), "\n")
+}
+
 func readSweep(sw *units.Map, sp *sim.SweepSpec, supply float64) error {
 	if err := sw.Check("low", "high", "step"); err != nil {
 		return err
@@ -162,7 +195,11 @@ func readSweep(sw *units.Map, sp *sim.SweepSpec, supply float64) error {
 		key = "low"
 	}
 	if sp.Low < -supply || sp.High > 2*supply {
-		return sw.Errorf(key, "a sweep within -supply … 2·supply (%s … %s)",
+		bad := "high"
+		if sp.Low < -supply || !sw.Has("high") {
+			bad = "low"
+		}
+		return sw.Errorf(bad, "a sweep within -supply … 2·supply (%s … %s)",
 			units.Format(-supply, units.Volt), units.Format(2*supply, units.Volt))
 	}
 	if !(sp.High > sp.Low) {
@@ -183,7 +220,7 @@ func readSweep(sw *units.Map, sp *sim.SweepSpec, supply float64) error {
 func (d *Design) Format() []byte {
 	var b bytes.Buffer
 	fmt.Fprintf(&b, "topology: %s\n", d.Topology)
-	fmt.Fprintf(&b, "process: %s\n", d.ProcessRef)
+	fmt.Fprintf(&b, "process: %s\n", yamlScalar(d.ProcessRef))
 	fmt.Fprintf(&b, "supply: %s\n", units.Format(d.Supply, units.Volt))
 	fmt.Fprintf(&b, "temperature: %s\n", units.Format(d.TempK, units.Temperature))
 	fmt.Fprintf(&b, "sweep: {low: %s, high: %s, step: %s}\n", units.Format(d.Sweep.Low, units.Volt),

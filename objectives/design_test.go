@@ -83,15 +83,13 @@ params:
 // bound at its rail, and every parameter left out at the family's default.
 func TestReadDesignDefaults(t *testing.T) {
 	tests := []struct {
-		name      string
-		text      string
-		supply    float64
-		sweep     sim.SweepSpec
-		given     topologies.Values
-		tempK     float64
-		topo      string
-		noParams  bool
-		shortHead bool
+		name   string
+		text   string
+		supply float64
+		sweep  sim.SweepSpec
+		given  topologies.Values
+		tempK  float64
+		topo   string
 	}{
 		{name: "no temperature, no sweep, no params", topo: "n-pair",
 			text:   "topology: n-pair\nprocess: demo18\nsupply: 1.8V\n",
@@ -245,8 +243,8 @@ func TestFormatRoundTrip(t *testing.T) {
 // TestFormatProcessPath checks the round trip for a design whose process is
 // a file given by a path, including paths that plain YAML would misread
 // unless quoted: a " #" starts a comment and ": " a mapping (YAML 1.2
-// spec, §6.6 and §7.3.3). A user's process directory may well hold such
-// names.
+// spec, §6.6 and §7.3.3; from memory). A user's process directory may
+// well hold such names.
 func TestFormatProcessPath(t *testing.T) {
 	data, err := os.ReadFile("../sim/device/processes/demo18-l1.yaml")
 	if err != nil {

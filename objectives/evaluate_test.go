@@ -34,6 +34,18 @@ func design(t *testing.T, family string, given topologies.Values) *objectives.De
 		TempK: 300.15, Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01}, Params: v}
 }
 
+// sameMetrics compares metrics bit for bit, NaN matching NaN.
+func sameMetrics(a, b objectives.Metrics) bool {
+	x := []float64{a.GMMin, a.GMMax, a.GMRipple, a.Power, a.Area, a.Switchover, a.TransitionWidth}
+	y := []float64{b.GMMin, b.GMMax, b.GMRipple, b.Power, b.Area, b.Switchover, b.TransitionWidth}
+	for i := range x {
+		if x[i] != y[i] && !(math.IsNaN(x[i]) && math.IsNaN(y[i])) {
+			return false
+		}
+	}
+	return true
+}
+
 func evaluate(t *testing.T, d *objectives.Design) *objectives.Evaluation {
 	t.Helper()
 	ev, err := objectives.Evaluate(d)
@@ -104,8 +116,8 @@ func TestMeasure(t *testing.T) {
 			if got, want := res.Len(), 181; got != want {
 				t.Fatalf("%d points, want %d", got, want)
 			}
-			if m != objectives.Measure(ev.Stage, res) && !(math.IsNaN(m.Switchover) || math.IsNaN(m.TransitionWidth)) {
-				t.Errorf("Evaluation.Metrics %+v differ from Measure", m)
+			if again := objectives.Measure(ev.Stage, res); !sameMetrics(m, again) {
+				t.Errorf("Evaluation.Metrics %+v, Measure of its sweep %+v", m, again)
 			}
 			if got, want := m.GMMin, slices.Min(res.GM); got != want {
 				t.Errorf("gm_min = %g, want the curve's minimum %g", got, want)
@@ -143,7 +155,7 @@ func TestMeasure(t *testing.T) {
 				vcm[i], in[i], ip[i] = p.VCM, p.IN, p.IP
 			}
 			sw, width := objectives.Handover(vcm, in, ip)
-			if !close(m.Switchover, sw, 0) || !close(m.TransitionWidth, width, 0) {
+			if !near(m.Switchover, sw, 0) || !near(m.TransitionWidth, width, 0) {
 				t.Errorf("switchover %g, width %g, want those of the curve's share: %g, %g",
 					m.Switchover, m.TransitionWidth, sw, width)
 			}
@@ -194,7 +206,10 @@ func TestMeasureRandomArea(t *testing.T) {
 // of width times (1 + λ·V_DS), giving
 // I_tail = itail·(1 + λ·V_DS,tail)/(1 + λ·V_DS,ref) (both saturated).
 // Without channel-length modulation that is V_DD·(itail + itail/kbias);
-// with it the tail runs λ·(V_DS,tail − V_DS,ref) above, about 2.6 % here.
+// with it (λ = 0.05/V on demo18-l1) the tail runs about
+// λ·(V_DS,tail − V_DS,ref) ≈ 2 % above itail at the top of the sweep and
+// the power about 1.7 % above V_DD·(itail + itail/kbias), so that simpler
+// form holds only to a few per cent.
 // Left over: the SPICE gmin of 1e-12 S across each junction (below 1e-11 A
 // in all) and the solver's convergence, so 1e-6 relative.
 func TestMeasurePowerNPair(t *testing.T) {
@@ -327,13 +342,8 @@ func TestEvaluateDoc(t *testing.T) {
 			if back.Topology != tt.family || len(back.Curve) != len(curve) || len(back.Devices) != len(devs) {
 				t.Errorf("read back: %s, %d points, %d devices", back.Topology, len(back.Curve), len(back.Devices))
 			}
-			bm, em := back.Metrics, ev.Metrics
-			for _, p := range [][2]float64{{bm.GMMin, em.GMMin}, {bm.GMMax, em.GMMax}, {bm.GMRipple, em.GMRipple},
-				{bm.Power, em.Power}, {bm.Area, em.Area}, {bm.Switchover, em.Switchover}, {bm.TransitionWidth, em.TransitionWidth}} {
-				if !(p[0] == p[1] || math.IsNaN(p[0]) && math.IsNaN(p[1])) {
-					t.Errorf("metrics read back %+v, want %+v", bm, em)
-					break
-				}
+			if !sameMetrics(back.Metrics, ev.Metrics) {
+				t.Errorf("metrics read back %+v, want %+v", back.Metrics, ev.Metrics)
 			}
 		})
 	}

@@ -14,17 +14,18 @@ import (
 // 1.0; gm falling to zero, below DeadGM·gm_max, gives an unbounded ripple).
 func TestRipple(t *testing.T) {
 	inf := math.Inf(1)
+	dead := objectives.DeadGM // a variable, so dead·gm_max rounds as in Ripple
 	tests := []struct {
 		name         string
 		gmMin, gmMax float64
 		want         float64
 	}{
 		{"flat", 1e-4, 1e-4, 0},
-		{"doubling is 1.0", 2e-4, 4e-4, 1},                              // design.md §4
-		{"42 percent", 1.9e-4, 1.9e-4 * 1.42, 0.42},                     // design.md §3/§4 example figure
-		{"root two bump", 1e-4, math.Sqrt2 * 1e-4, 0.41421356237309515}, // √2 − 1, design.md §7
+		{"doubling is 1.0", 2e-4, 4e-4, 1},                         // design.md §4
+		{"42 percent", 1.9e-4, 1.9e-4 * 1.42, 0.42},                // design.md §3/§4 example figure
+		{"root two bump", 1e-4, math.Sqrt2 * 1e-4, math.Sqrt2 - 1}, // current-switch peak, design.md §7
 		{"just above dead", 1.001e-3, 1, 1/1.001e-3 - 1},
-		{"at dead fraction", objectives.DeadGM * 3e-4, 3e-4, inf},
+		{"at dead fraction", dead * 3e-4, 3e-4, inf},
 		{"below dead fraction", 1e-9, 3e-4, inf},
 		{"gm zero", 0, 3e-4, inf},
 		{"gm negative", -1e-6, 3e-4, inf},
@@ -83,8 +84,8 @@ func rampShare(v []float64, a, b, s0, s1 float64) []float64 {
 	return out
 }
 
-// close reports whether got is within tol of want, NaN matching NaN.
-func close(got, want, tol float64) bool {
+// near reports whether got is within tol of want, NaN matching NaN.
+func near(got, want, tol float64) bool {
 	if math.IsNaN(want) {
 		return math.IsNaN(got)
 	}
@@ -124,10 +125,10 @@ func TestHandoverRamp(t *testing.T) {
 			a, b := v[tt.ka], v[tt.kb]
 			in, ip := pairCurrents(rampShare(v, a, b, 0, 1), 20e-6)
 			sw, width := objectives.Handover(v, in, ip)
-			if want := (a + b) / 2; !close(sw, want, 1e-12) {
+			if want := (a + b) / 2; !near(sw, want, 1e-12) {
 				t.Errorf("switchover = %.15g V, want (a+b)/2 = %.15g V", sw, want)
 			}
-			if want := 0.8 * (b - a); !close(width, want, 1e-12) {
+			if want := 0.8 * (b - a); !near(width, want, 1e-12) {
 				t.Errorf("width = %.15g V, want 0.8·(b−a) = %.15g V", width, want)
 			}
 		})
@@ -186,12 +187,12 @@ func TestHandoverLogistic(t *testing.T) {
 			sw, width := objectives.Handover(v, in, ip)
 			h2 := tt.h * tt.h
 			tolSw := h2 / (16 * tt.w)
-			if !close(sw, tt.c, tolSw) {
+			if !near(sw, tt.c, tolSw) {
 				t.Errorf("switchover = %.9g V, want c = %.9g V within h²/(16w) = %.3g V", sw, tt.c, tolSw)
 			}
 			exact := 2 * tt.w * math.Log(9)
 			tolW := 2 * h2 / (8 * 6 * math.Sqrt(3) * 0.09 * tt.w)
-			if !close(width, exact, tolW) {
+			if !near(width, exact, tolW) {
 				t.Errorf("width = %.9g V, want 2·w·ln 9 = %.9g V within %.3g V", width, exact, tolW)
 			}
 			t.Logf("switchover error %.3g V (bound %.3g), width error %.3g V (bound %.3g)", sw-tt.c, tolSw, width-exact, tolW)
@@ -227,11 +228,11 @@ func TestHandoverTwoStep(t *testing.T) {
 			}
 			in, ip := pairCurrents(share, 80e-6)
 			sw, width := objectives.Handover(v, in, ip)
-			if want := (b1 + a2) / 2; !close(sw, want, 1e-12) {
+			if want := (b1 + a2) / 2; !near(sw, want, 1e-12) {
 				t.Errorf("steps %v: switchover = %.15g V, want the plateau's middle %.15g V", k, sw, want)
 			}
 			lo, hi := a1+0.2*(b1-a1), a2+0.8*(b2-a2)
-			if want := hi - lo; !close(width, want, 1e-12) {
+			if want := hi - lo; !near(width, want, 1e-12) {
 				t.Errorf("steps %v: width = %.15g V, want %.15g V", k, width, want)
 			}
 		}
@@ -266,7 +267,7 @@ func TestHandoverTwoStep(t *testing.T) {
 			t.Fatalf("test setup: want share 0, 0.5, 1 at the ends and centre")
 		}
 		sw, width := objectives.Handover(v, in, ip)
-		if !close(sw, c, 1e-12) {
+		if !near(sw, c, 1e-12) {
 			t.Errorf("switchover = %.15g V, want the plateau's middle %.15g V", sw, c)
 		}
 		// Width (derived here): on the lower step s = (1−x)/(2(1+x)) is
@@ -277,7 +278,7 @@ func TestHandoverTwoStep(t *testing.T) {
 		// |s''| = 2·2.5²/(1+x)³ ≤ 2.78/V² and |s'| = 2.5/(1+x)² ≥ 0.891/V
 		// for x in [0.65, 0.675], so 3.9e-5 V per end.
 		want := 2 * (0.3 + 0.4*2.0/3)
-		if tol := 2 * 0.01 * 0.01 / 8 * 2.78 / 0.891; !close(width, want, tol) {
+		if tol := 2 * 0.01 * 0.01 / 8 * 2.78 / 0.891; !near(width, want, tol) {
 			t.Errorf("width = %.9g V, want %.9g V within %.2g V", width, want, tol)
 		}
 	})
@@ -327,6 +328,8 @@ func TestHandoverEdges(t *testing.T) {
 	pin, pip := pairCurrents(partial, 20e-6)
 	high := rampShare(v, v[30], v[70], 0.3, 1) // already above 10 % at the first point
 	hin, hip := pairCurrents(high, 20e-6)
+	oneIn, oneIP := make([]float64, len(v)), make([]float64, len(v)) // one conducting point
+	oneIn[50], oneIP[50] = 5e-6, 15e-6
 
 	tests := []struct {
 		name      string
@@ -337,6 +340,7 @@ func TestHandoverEdges(t *testing.T) {
 		{"n-pair only (i_p ≡ 0)", tail, zeros, nan, nan, true},
 		{"p-pair only (i_n ≡ 0)", zeros, tail, nan, nan, true},
 		{"nothing conducts", zeros, zeros, nan, nan, true},
+		{"one conducting point", oneIn, oneIP, nan, nan, true},
 		{"zero-current points skipped", sin, sip, 0.5, 0.32, true},
 		// A linear rise of any height has its centre as switchover
 		// (TestHandoverRamp), but a share that never reaches 90 % has no
@@ -352,10 +356,10 @@ func TestHandoverEdges(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			sw, width := objectives.Handover(v, tt.in, tt.ip)
-			if tt.checkSw && !close(sw, tt.sw, 1e-12) {
+			if tt.checkSw && !near(sw, tt.sw, 1e-12) {
 				t.Errorf("switchover = %.15g, want %.15g", sw, tt.sw)
 			}
-			if !close(width, tt.width, 1e-12) {
+			if !near(width, tt.width, 1e-12) {
 				t.Errorf("width = %.15g, want %.15g", width, tt.width)
 			}
 		})
@@ -386,7 +390,7 @@ func TestHandoverNonMonotoneSwitchover(t *testing.T) {
 	}
 	in, ip := pairCurrents(share, 20e-6)
 	sw, _ := objectives.Handover(v, in, ip)
-	if want := num / den; !close(sw, want, 1e-9) {
+	if want := num / den; !near(sw, want, 1e-9) {
 		t.Errorf("switchover = %.15g V, want %.15g V", sw, want)
 	}
 }

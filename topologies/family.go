@@ -125,7 +125,7 @@ func Lookup(name string) (Family, error) {
 	return nil, fmt.Errorf("%s", msg)
 }
 
-// Param returns the family's parameter called name.
+// ParamOf returns the family's parameter called name.
 func ParamOf(f Family, name string) (Param, bool) {
 	for _, p := range f.Params() {
 		if p.Name == name {

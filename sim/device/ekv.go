@@ -80,27 +80,14 @@ func (c *EKV) Instance(g Geometry, tempK float64) (Instance, error) {
 
 // check validates the card.
 func (c *EKV) check() error {
+	if err := checkCommon(c.Polarity, c.VTO, c.KP, c.Gamma, c.Phi, c.Lambda, c.LD, c.TnomK); err != nil {
+		return err
+	}
 	switch {
-	case c.Polarity != NMOS && c.Polarity != PMOS:
-		return fmt.Errorf("polarity %v, want nmos or pmos", c.Polarity)
-	case !isFiniteNum(c.VTO):
-		return fmt.Errorf("vto = %g V, want a finite value", c.VTO)
-	case !(c.KP > 0) || math.IsInf(c.KP, 0):
-		return fmt.Errorf("kp = %g A/V², want > 0", c.KP)
-	case !(c.Gamma >= 0) || math.IsInf(c.Gamma, 0):
-		return fmt.Errorf("gamma = %g √V, want ≥ 0", c.Gamma)
-	case !(c.Phi > 0) || math.IsInf(c.Phi, 0):
-		return fmt.Errorf("phi = %g V, want > 0", c.Phi)
-	case !isFiniteNum(c.Lambda) || c.Lambda < 0:
-		return fmt.Errorf("lambda = %g 1/V, want ≥ 0", c.Lambda)
-	case !isFiniteNum(c.LD) || c.LD < 0:
-		return fmt.Errorf("ld = %g m, want ≥ 0", c.LD)
 	case !isFiniteNum(c.TCV):
 		return fmt.Errorf("tcv = %g V/K, want a finite value", c.TCV)
 	case !isFiniteNum(c.BEX):
 		return fmt.Errorf("bex = %g, want a finite value", c.BEX)
-	case !(c.TnomK > 0) || math.IsInf(c.TnomK, 0):
-		return fmt.Errorf("tnom = %g K, want > 0 K", c.TnomK)
 	}
 	return nil
 }

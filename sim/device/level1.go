@@ -81,25 +81,34 @@ func (c *Level1) temperature(tempK float64) (vbi, vto, phi, kp float64) {
 
 // check validates the card itself.
 func (c *Level1) check() error {
-	switch {
-	case c.Polarity != NMOS && c.Polarity != PMOS:
-		return fmt.Errorf("polarity %v, want nmos or pmos", c.Polarity)
-	case !isFiniteNum(c.VTO):
-		return fmt.Errorf("vto = %g V, want a finite value", c.VTO)
-	case !(c.KP > 0) || math.IsInf(c.KP, 0):
-		return fmt.Errorf("kp = %g A/V², want > 0", c.KP)
-	case !(c.Gamma >= 0) || math.IsInf(c.Gamma, 0):
-		return fmt.Errorf("gamma = %g √V, want ≥ 0", c.Gamma)
-	case !(c.Phi > 0) || math.IsInf(c.Phi, 0):
-		return fmt.Errorf("phi = %g V, want > 0", c.Phi)
-	case !isFiniteNum(c.Lambda) || c.Lambda < 0:
-		return fmt.Errorf("lambda = %g 1/V, want ≥ 0", c.Lambda)
-	case !isFiniteNum(c.LD) || c.LD < 0:
-		return fmt.Errorf("ld = %g m, want ≥ 0", c.LD)
-	case !(c.TnomK > 0) || math.IsInf(c.TnomK, 0):
-		return fmt.Errorf("tnom = %g K, want > 0 K", c.TnomK)
-	case c.LinearTemp && (!isFiniteNum(c.TCV) || !isFiniteNum(c.BEX)):
+	if err := checkCommon(c.Polarity, c.VTO, c.KP, c.Gamma, c.Phi, c.Lambda, c.LD, c.TnomK); err != nil {
+		return err
+	}
+	if c.LinearTemp && (!isFiniteNum(c.TCV) || !isFiniteNum(c.BEX)) {
 		return fmt.Errorf("tcv = %g V/K, bex = %g, want finite values", c.TCV, c.BEX)
+	}
+	return nil
+}
+
+// checkCommon validates the parameters every card has.
+func checkCommon(pol Type, vto, kp, gamma, phi, lambda, ld, tnomK float64) error {
+	switch {
+	case pol != NMOS && pol != PMOS:
+		return fmt.Errorf("polarity %v, want nmos or pmos", pol)
+	case !isFiniteNum(vto):
+		return fmt.Errorf("vto = %g V, want a finite value", vto)
+	case !(kp > 0) || math.IsInf(kp, 0):
+		return fmt.Errorf("kp = %g A/V², want > 0", kp)
+	case !(gamma >= 0) || math.IsInf(gamma, 0):
+		return fmt.Errorf("gamma = %g √V, want ≥ 0", gamma)
+	case !(phi > 0) || math.IsInf(phi, 0):
+		return fmt.Errorf("phi = %g V, want > 0", phi)
+	case !isFiniteNum(lambda) || lambda < 0:
+		return fmt.Errorf("lambda = %g 1/V, want ≥ 0", lambda)
+	case !isFiniteNum(ld) || ld < 0:
+		return fmt.Errorf("ld = %g m, want ≥ 0", ld)
+	case !(tnomK > 0) || math.IsInf(tnomK, 0):
+		return fmt.Errorf("tnom = %g K, want > 0 K", tnomK)
 	}
 	return nil
 }
