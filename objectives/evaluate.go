@@ -58,18 +58,39 @@ func Build(d *Design) (*topologies.Stage, error) {
 	return st, nil
 }
 
-// Evaluate builds, sweeps and measures a design.
-func Evaluate(d *Design) (*Evaluation, error) {
+// sweep builds and sweeps a design: the one code path behind Evaluate
+// and MeasureDesign, so that both give the same metrics.
+func sweep(d *Design) (*topologies.Stage, *sim.Solver, *sim.Result, error) {
 	st, err := Build(d)
 	if err != nil {
-		return nil, err
+		return nil, nil, nil, err
 	}
 	s, err := sim.NewSolver(st.Circuit, sim.Options{})
 	if err != nil {
-		return nil, err
+		return nil, nil, nil, err
 	}
 	res := &sim.Result{}
 	if err := s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0)); err != nil {
+		return nil, nil, nil, err
+	}
+	return st, s, res, nil
+}
+
+// MeasureDesign builds, sweeps and measures a design without the rest of
+// an Evaluation: what a search needs of each candidate. Its metrics are
+// those Evaluate reports, bit for bit.
+func MeasureDesign(d *Design) (Metrics, error) {
+	st, _, res, err := sweep(d)
+	if err != nil {
+		return Metrics{}, err
+	}
+	return Measure(st, res), nil
+}
+
+// Evaluate builds, sweeps and measures a design.
+func Evaluate(d *Design) (*Evaluation, error) {
+	st, s, res, err := sweep(d)
+	if err != nil {
 		return nil, err
 	}
 	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: Measure(st, res)}

@@ -1,0 +1,656 @@
+package objectives
+
+import (
+	"encoding/json"
+	"errors"
+	"fmt"
+	"math"
+	"os"
+	"path/filepath"
+	"runtime"
+	"slices"
+	"strconv"
+	"strings"
+	"time"
+
+	"gopkg.in/yaml.v3"
+
+	"pairsmith/sim"
+	"pairsmith/sim/device"
+	"pairsmith/topologies"
+	"pairsmith/units"
+)
+
+// Defaults and limits of a spec sheet's search settings.
+const (
+	DefaultEvaluations = 20000 // the budget of a spec that sets none (issue 3)
+	DefaultSeed        = 1
+	MaxEvaluations     = 100_000_000 // more is a typo, not a budget
+	// MaxRippleTarget is the largest gm_ripple_max a spec may set: 1000 %.
+	// A bare 20 meant as 20 % would be 2000 % and is caught by it.
+	MaxRippleTarget = 10.0
+)
+
+// Range is the common-mode input range a stage must cover, in V.
+type Range struct {
+	Low, High float64
+}
+
+// Search holds the settings of the search.
+type Search struct {
+	Evaluations int           // the evaluation budget, ≥ 1
+	Seed        int64         // the random seed; the same seed gives the same result
+	Workers     int           // goroutines evaluating in parallel; 0 is one per core
+	Time        time.Duration // wall-clock budget; 0 is none
+}
+
+// DefaultSearch returns the search settings of a spec whose search
+// section sets nothing: 20 000 evaluations, seed 1, one worker per core,
+// no time limit.
+func DefaultSearch() Search {
+	return Search{Evaluations: DefaultEvaluations, Seed: DefaultSeed}
+}
+
+// Validate checks settings that came from elsewhere than a spec file
+// (command-line flags, say) against the limits ReadSpec enforces.
+func (s Search) Validate() error {
+	switch {
+	case s.Evaluations < 1 || s.Evaluations > MaxEvaluations:
+		return fmt.Errorf("evaluations %d: want a whole number from 1 to %d", s.Evaluations, MaxEvaluations)
+	case s.Workers < 0:
+		return fmt.Errorf("workers %d: want 0 (one per core) or more", s.Workers)
+	case s.Time < 0:
+		return fmt.Errorf("time %s: want a duration of 0 (none) or more", s.Time)
+	}
+	return nil
+}
+
+// WorkerCount returns the number of workers to run: Workers, or the
+// number of usable cores when Workers is 0.
+func (s Search) WorkerCount() int {
+	if s.Workers > 0 {
+		return s.Workers
+	}
+	return max(1, runtime.GOMAXPROCS(0))
+}
+
+// timeWant says what a time budget takes.
+const timeWant = "a duration such as 10m, 90s or 1h30m, or a number of seconds; 0 for none"
+
+// ParseTimeBudget reads a time budget as the spec's search.time and the
+// --time flag take it: a Go duration ("10m", "90s", "1h30m", see
+// time.ParseDuration) or a bare number of seconds ("90", "1.5"). Negative,
+// NaN, infinite and overlong values are errors.
+func ParseTimeBudget(text string) (time.Duration, error) {
+	s := strings.TrimSpace(text)
+	if s == "" {
+		return 0, errors.New("empty time budget")
+	}
+	if secs, err := strconv.ParseFloat(s, 64); err == nil {
+		switch {
+		case math.IsNaN(secs) || math.IsInf(secs, 0):
+			return 0, fmt.Errorf("time budget %q is not a finite number", text)
+		case secs < 0:
+			return 0, fmt.Errorf("time budget %q is negative", text)
+		case secs*float64(time.Second) >= math.MaxInt64:
+			return 0, fmt.Errorf("time budget %q is longer than %s", text, time.Duration(math.MaxInt64))
+		}
+		return time.Duration(math.Round(secs * float64(time.Second))), nil
+	}
+	d, err := time.ParseDuration(s)
+	if err != nil {
+		return 0, fmt.Errorf("time budget: %w", err)
+	}
+	if d < 0 {
+		return 0, fmt.Errorf("time budget %q is negative", text)
+	}
+	return d, nil
+}
+
+// Spec is a spec sheet read in: what a stage must do and how to search
+// for one (issue 3, "the spec sheet"). All values are SI.
+type Spec struct {
+	File string // the spec's path as given, for error messages
+	Name string // free text; the file name without extension if the spec gives none
+
+	ProcessRef string // as written: a built-in name or a path relative to the spec
+	// ProcessPath is the absolute path of the process file, "" for a
+	// built-in process.
+	ProcessPath string
+	Process     *device.Process
+
+	Supply float64 // V
+	TempK  float64 // K; default 27 °C
+	// Range is the common-mode range that must be covered (input_range
+	// low and high); default rail to rail, 0 … Supply.
+	Range Range
+	// Step is the sweep step of a fine evaluation (input_range.step, an
+	// extension of pairsmith's to the issue's spec sheet); default 10 mV.
+	Step float64
+
+	Targets Targets
+	// Pareto lists the trade-off axes (see AxisNames), each once; default
+	// DefaultPareto().
+	Pareto []string
+	// Topologies lists the families to search, each once, in the order of
+	// topologies.All() whatever the order written; "all" (the default)
+	// lists every family.
+	Topologies []string
+	Search     Search
+}
+
+// LoadSpec reads a spec sheet; see ReadSpec.
+func LoadSpec(path string) (*Spec, error) {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, fmt.Errorf("spec: %w", err)
+	}
+	return ReadSpec(path, data, filepath.Dir(path))
+}
+
+// ReadSpec reads a spec sheet's text; file names it in errors and baseDir
+// is where a relative process path starts (an empty baseDir is the working
+// directory). The sheet is YAML with units (design.md §3):
+//
+//	name: strain-gauge buffer           # free text
+//	process: demo18                     # built-in name, or a path relative to the spec
+//	supply: 1.8V
+//	temperature: 27C                    # default 27C
+//	input_range: {low: 0V, high: 1.8V}  # default rail to rail; optional step, default 10mV
+//	targets:                            # every target optional
+//	  gm_min: 150uS
+//	  gm_ripple_max: 20%
+//	  power_max: 200uW
+//	  area_max: 3000um2
+//	  switchover: {at: 0.9V, tolerance: 0.1V}
+//	  transition_width_max: 200mV
+//	pareto: [gm_ripple, power, area]    # the default; also gm_min, transition_width
+//	topologies: all                     # or a list of family names
+//	search: {evaluations: 20000, seed: 1, workers: 0, time: 10m}
+//
+// process and supply are required. Every problem is a *units.Error naming
+// the file, line and field, what was given and what was wanted.
+func ReadSpec(file string, data []byte, baseDir string) (*Spec, error) {
+	m, err := units.ReadBytes(file, data)
+	if err != nil {
+		return nil, err
+	}
+	return readSpec(m, data, baseDir)
+}
+
+// The fields of each section of a spec sheet.
+func specKeys() []string {
+	return []string{"name", "process", "supply", "temperature", "input_range", "targets", "pareto", "topologies", "search"}
+}
+func rangeKeys() []string  { return []string{"low", "high", "step"} }
+func targetKeys() []string { return targetOrder() }
+func searchKeys() []string { return []string{"evaluations", "seed", "workers", "time"} }
+
+func readSpec(m *units.Map, data []byte, baseDir string) (*Spec, error) {
+	if err := checkTop(m); err != nil {
+		return nil, err
+	}
+	if err := m.Require("process", "supply"); err != nil {
+		return nil, err
+	}
+	s := &Spec{File: m.File(), Name: strings.TrimSuffix(filepath.Base(m.File()), filepath.Ext(m.File()))}
+	if m.File() == "" {
+		s.Name = ""
+	}
+	if name, ok, err := m.String("name"); err != nil {
+		return nil, err
+	} else if ok {
+		s.Name = name
+	}
+	if err := s.readProcess(m, baseDir); err != nil {
+		return nil, err
+	}
+	var err error
+	if s.Supply, _, err = m.Quantity("supply", units.Volt); err != nil {
+		return nil, err
+	}
+	if !(s.Supply > 0) || s.Supply > 20 {
+		return nil, m.Errorf("supply", "a supply voltage above 0 V and at most 20 V")
+	}
+	if s.TempK, err = m.QuantityOr("temperature", units.Temperature, 27+units.ZeroCelsius); err != nil {
+		return nil, err
+	}
+	if s.TempK < 200 || s.TempK > 500 {
+		return nil, m.Errorf("temperature", "a temperature from -73C to 226C")
+	}
+	s.Range, s.Step = Range{Low: 0, High: s.Supply}, DefaultStep
+	if rm, ok, err := m.Map("input_range"); err != nil {
+		return nil, err
+	} else if ok {
+		if err := s.readRange(rm); err != nil {
+			return nil, err
+		}
+	}
+	s.Targets = NoTargets()
+	if tm, ok, err := m.Map("targets"); err != nil {
+		return nil, err
+	} else if ok {
+		if s.Targets, err = readTargets(tm, s.Range); err != nil {
+			return nil, err
+		}
+	}
+	if s.Pareto, err = readPareto(m, data); err != nil {
+		return nil, err
+	}
+	if s.Topologies, err = readTopologies(m, data); err != nil {
+		return nil, err
+	}
+	s.Search = DefaultSearch()
+	if sm, ok, err := m.Map("search"); err != nil {
+		return nil, err
+	} else if ok {
+		if err := readSearch(sm, &s.Search); err != nil {
+			return nil, err
+		}
+	}
+	return s, nil
+}
+
+// fieldPath is the dotted path of key in m.
+func fieldPath(m *units.Map, key string) string {
+	if m.Path() == "" {
+		return key
+	}
+	return m.Path() + "." + key
+}
+
+// checkTop rejects an unknown top-level field, saying where a field of a
+// section belongs when it is written at the top.
+func checkTop(m *units.Map) error {
+	sections := []struct {
+		name string
+		keys []string
+	}{{"targets", targetKeys()}, {"search", searchKeys()}, {"input_range", rangeKeys()}}
+	for _, k := range m.Keys() {
+		if slices.Contains(specKeys(), k) {
+			continue
+		}
+		for _, sec := range sections {
+			if slices.Contains(sec.keys, k) {
+				return &units.Error{File: m.File(), Line: m.Line(k), Field: k,
+					Err: fmt.Errorf("%w; %s belongs under %s", units.ErrUnknownField, k, sec.name)}
+			}
+		}
+	}
+	return m.Check(specKeys()...)
+}
+
+func (s *Spec) readProcess(m *units.Map, baseDir string) error {
+	var err error
+	if s.ProcessRef, _, err = m.String("process"); err != nil {
+		return err
+	}
+	s.Process, err = device.ResolveProcess(s.ProcessRef, baseDir)
+	if err != nil {
+		var ue *units.Error
+		if errors.As(err, &ue) {
+			return err // an error inside the process file names its own place
+		}
+		return &units.Error{File: m.File(), Line: m.Line("process"), Field: "process", Given: s.ProcessRef,
+			Want: "a built-in process (" + strings.Join(device.BuiltinNames(), ", ") + ") or the path of a process file", Err: err}
+	}
+	if _, builtin := device.Builtin(s.ProcessRef); !builtin {
+		path := s.ProcessRef
+		if !filepath.IsAbs(path) {
+			path = filepath.Join(baseDir, path)
+		}
+		if abs, err := filepath.Abs(path); err == nil {
+			path = abs
+		}
+		s.ProcessPath = path
+	}
+	return nil
+}
+
+func (s *Spec) readRange(rm *units.Map) error {
+	if err := rm.Check(rangeKeys()...); err != nil {
+		return err
+	}
+	r := &s.Range
+	var err error
+	if r.Low, err = rm.QuantityOr("low", units.Volt, 0); err != nil {
+		return err
+	}
+	if r.High, err = rm.QuantityOr("high", units.Volt, s.Supply); err != nil {
+		return err
+	}
+	if s.Step, err = rm.QuantityOr("step", units.Volt, DefaultStep); err != nil {
+		return err
+	}
+	v := func(x float64) string { return units.Format(x, units.Volt) }
+	if r.Low < -s.Supply {
+		return rm.Errorf("low", "a low end at most the supply below the negative rail (at least %s)", v(-s.Supply))
+	}
+	if r.High > 2*s.Supply {
+		return rm.Errorf("high", "a high end at most the supply above the positive rail (at most %s)", v(2*s.Supply))
+	}
+	if !(r.High > r.Low) {
+		key := "high"
+		if !rm.Has("high") {
+			key = "low"
+		}
+		return rm.Errorf(key, "low below high (low %s, high %s)", v(r.Low), v(r.High))
+	}
+	if !(s.Step > 0) {
+		return rm.Errorf("step", "a step above 0 V, for example 10mV")
+	}
+	if s.Step > r.High-r.Low {
+		return rm.Errorf("step", "a step no larger than the range (%s)", v(r.High-r.Low))
+	}
+	if (r.High-r.Low)/s.Step > 1e6 {
+		return rm.Errorf("step", "a step giving at most a million points")
+	}
+	return nil
+}
+
+// checkTargetKeys rejects an unknown target, suggesting the _max form of a
+// metric's name ("power" → "power_max") before falling back to Check.
+func checkTargetKeys(tm *units.Map) error {
+	known := targetKeys()
+	for _, k := range tm.Keys() {
+		if !slices.Contains(known, k) && slices.Contains(known, k+"_max") {
+			return &units.Error{File: tm.File(), Line: tm.Line(k), Field: fieldPath(tm, k),
+				Err: fmt.Errorf("%w; did you mean %q?", units.ErrUnknownField, k+"_max")}
+		}
+	}
+	return tm.Check(known...)
+}
+
+func readTargets(tm *units.Map, rng Range) (Targets, error) {
+	t := NoTargets()
+	if err := checkTargetKeys(tm); err != nil {
+		return t, err
+	}
+	fields := []struct {
+		key  string
+		dim  units.Dim
+		dst  *float64
+		ok   func(float64) bool
+		want string
+	}{
+		{TargetGMMin, units.Siemens, &t.GMMin, func(x float64) bool { return x > 0 },
+			"a conductance above 0 S, for example 150uS"},
+		{TargetGMRippleMax, units.Percent, &t.GMRippleMax, func(x float64) bool { return x > 0 && x <= MaxRippleTarget },
+			"a ripple above 0 and at most 1000%, for example 20% or 0.2"},
+		{TargetPowerMax, units.Watt, &t.PowerMax, func(x float64) bool { return x > 0 },
+			"a power above 0 W, for example 200uW"},
+		{TargetAreaMax, units.SquareMetre, &t.AreaMax, func(x float64) bool { return x > 0 },
+			"an area above 0 m², for example 3000um2"},
+		{TargetTransitionWidthMax, units.Volt, &t.TransitionWidthMax, func(x float64) bool { return x > 0 },
+			"a width above 0 V, for example 200mV"},
+	}
+	for _, f := range fields {
+		x, ok, err := tm.Quantity(f.key, f.dim)
+		if err != nil {
+			return t, err
+		}
+		if !ok {
+			continue
+		}
+		if !f.ok(x) {
+			return t, tm.Errorf(f.key, "%s", f.want)
+		}
+		*f.dst = x
+	}
+	sm, ok, err := tm.Map(TargetSwitchover)
+	if err != nil || !ok {
+		return t, err
+	}
+	if err := sm.Check("at", "tolerance"); err != nil {
+		return t, err
+	}
+	if err := sm.Require("at", "tolerance"); err != nil {
+		return t, err
+	}
+	at, _, err := sm.Quantity("at", units.Volt)
+	if err != nil {
+		return t, err
+	}
+	if at < rng.Low || at > rng.High {
+		return t, sm.Errorf("at", "a voltage within the input range (%s … %s)",
+			units.Format(rng.Low, units.Volt), units.Format(rng.High, units.Volt))
+	}
+	tol, _, err := sm.Quantity("tolerance", units.Volt)
+	if err != nil {
+		return t, err
+	}
+	if !(tol > 0) {
+		return t, sm.Errorf("tolerance", "a tolerance above 0 V, for example 0.1V")
+	}
+	t.Switchover = SwitchoverTarget{At: at, Tolerance: tol}
+	return t, nil
+}
+
+// listLines returns the line of every element of the top-level field key
+// when it is written as a YAML list; isList is false otherwise.
+func listLines(data []byte, key string) (lines []int, isList bool) {
+	var doc yaml.Node
+	if yaml.Unmarshal(data, &doc) != nil || len(doc.Content) != 1 {
+		return nil, false
+	}
+	root := doc.Content[0]
+	if root.Kind != yaml.MappingNode {
+		return nil, false
+	}
+	for i := 0; i+1 < len(root.Content); i += 2 {
+		if root.Content[i].Value != key {
+			continue
+		}
+		v := root.Content[i+1]
+		for v.Kind == yaml.AliasNode && v.Alias != nil {
+			v = v.Alias
+		}
+		if v.Kind != yaml.SequenceNode {
+			return nil, false
+		}
+		for _, c := range v.Content {
+			lines = append(lines, c.Line)
+		}
+		return lines, true
+	}
+	return nil, false
+}
+
+// nameList reads a top-level field holding a name or a list of names,
+// with a function that makes an error located at one of them.
+func nameList(m *units.Map, data []byte, key string) ([]string, bool, func(i int, want string) error, error) {
+	names, ok, err := m.Strings(key)
+	if err != nil || !ok {
+		return nil, ok, nil, err
+	}
+	lines, isList := listLines(data, key)
+	at := func(i int, want string) error {
+		e := &units.Error{File: m.File(), Line: m.Line(key), Field: key, Given: names[i], Want: want}
+		if isList {
+			e.Field = fmt.Sprintf("%s[%d]", key, i)
+			if i < len(lines) && lines[i] > 0 {
+				e.Line = lines[i]
+			}
+		}
+		return e
+	}
+	return names, true, at, nil
+}
+
+func readPareto(m *units.Map, data []byte) ([]string, error) {
+	names, ok, at, err := nameList(m, data, "pareto")
+	if err != nil {
+		return nil, err
+	}
+	if !ok {
+		return DefaultPareto(), nil
+	}
+	if len(names) == 0 {
+		return nil, m.Errorf("pareto", "at least one trade-off axis (%s)", strings.Join(AxisNames(), ", "))
+	}
+	axes := AxisNames()
+	for i, n := range names {
+		if !slices.Contains(axes, n) {
+			near, isNear := units.Nearest(n, axes)
+			if trimmed := strings.TrimSuffix(n, "_max"); trimmed != n && slices.Contains(axes, trimmed) {
+				near, isNear = trimmed, true
+			}
+			if isNear {
+				return nil, at(i, fmt.Sprintf("a trade-off axis (did you mean %q?)", near))
+			}
+			return nil, at(i, "a trade-off axis: one of "+strings.Join(axes, ", "))
+		}
+		if j := slices.Index(names, n); j < i {
+			return nil, at(i, fmt.Sprintf("each axis once (%s is also pareto[%d])", n, j))
+		}
+	}
+	return names, nil
+}
+
+func readTopologies(m *units.Map, data []byte) ([]string, error) {
+	names, ok, at, err := nameList(m, data, "topologies")
+	if err != nil {
+		return nil, err
+	}
+	known := topologies.Names()
+	if !ok || (len(names) == 1 && names[0] == "all") {
+		return known, nil
+	}
+	if len(names) == 0 {
+		return nil, m.Errorf("topologies", "at least one family name, or all")
+	}
+	for i, n := range names {
+		if n == "all" {
+			return nil, at(i, "either all on its own or a list of family names, not both")
+		}
+		if !slices.Contains(known, n) {
+			if near, ok := units.Nearest(n, known); ok {
+				return nil, at(i, fmt.Sprintf("a known family (did you mean %q?)", near))
+			}
+			return nil, at(i, "a family: all, or some of "+strings.Join(known, ", "))
+		}
+		if j := slices.Index(names, n); j < i {
+			return nil, at(i, fmt.Sprintf("each family once (%s is also topologies[%d])", n, j))
+		}
+	}
+	var out []string
+	for _, k := range known {
+		if slices.Contains(names, k) {
+			out = append(out, k)
+		}
+	}
+	return out, nil
+}
+
+func readSearch(sm *units.Map, se *Search) error {
+	if err := sm.Check(searchKeys()...); err != nil {
+		return err
+	}
+	if n, ok, err := sm.Int("evaluations"); err != nil {
+		return err
+	} else if ok {
+		if n < 1 || n > MaxEvaluations {
+			return sm.Errorf("evaluations", "a number of evaluations from 1 to %d", MaxEvaluations)
+		}
+		se.Evaluations = n
+	}
+	if n, ok, err := sm.Int("seed"); err != nil {
+		return err
+	} else if ok {
+		se.Seed = int64(n)
+	}
+	if n, ok, err := sm.Int("workers"); err != nil {
+		return err
+	} else if ok {
+		if n < 0 {
+			return sm.Errorf("workers", "0 (one per core) or a positive number of workers")
+		}
+		se.Workers = n
+	}
+	if text, ok, err := sm.String("time"); err != nil {
+		return err
+	} else if ok {
+		d, err := ParseTimeBudget(text)
+		if err != nil {
+			return &units.Error{File: sm.File(), Line: sm.Line("time"), Field: fieldPath(sm, "time"),
+				Given: text, Want: timeWant, Err: err}
+		}
+		se.Time = d
+	}
+	return nil
+}
+
+// Sweep returns the fine sweep of the input range at the spec's step.
+func (s *Spec) Sweep() sim.SweepSpec {
+	return sim.SweepSpec{Low: s.Range.Low, High: s.Range.High, Step: s.Step}
+}
+
+// Conditions returns the conditions the spec asks a stage to work at.
+func (s *Spec) Conditions() topologies.Conditions {
+	return topologies.Conditions{Process: s.Process, Supply: s.Supply, TempK: s.TempK}
+}
+
+// Families returns the families of s.Topologies.
+func (s *Spec) Families() ([]topologies.Family, error) {
+	out := make([]topologies.Family, 0, len(s.Topologies))
+	for _, n := range s.Topologies {
+		f, err := topologies.Lookup(n)
+		if err != nil {
+			return nil, fmt.Errorf("spec %s: %w", s.File, err)
+		}
+		out = append(out, f)
+	}
+	return out, nil
+}
+
+// Design returns a candidate of the family topology with the given
+// parameter values (copied) at the spec's conditions and fine sweep. Its
+// ProcessRef is the built-in name, or the absolute ProcessPath of a
+// process file, so that the design reads back from any directory; a
+// writer that wants a relative path rewrites it.
+func (s *Spec) Design(topology string, params topologies.Values) *Design {
+	ref := s.ProcessRef
+	if s.ProcessPath != "" {
+		ref = s.ProcessPath
+	}
+	v := make(topologies.Values, len(params))
+	for k, x := range params {
+		v[k] = x
+	}
+	return &Design{Topology: topology, ProcessRef: ref, Process: s.Process, Supply: s.Supply,
+		TempK: s.TempK, Sweep: s.Sweep(), Params: v}
+}
+
+// MarshalJSON writes the spec as summary.json's "spec": the spec sheet's
+// keys with SI values (temperature in K, search.time in seconds, left out
+// when there is none) and only the targets that are set. It leaves out
+// search.workers, because the result does not depend on it, and the
+// file's path, so that the same spec gives the same JSON wherever it is.
+func (s Spec) MarshalJSON() ([]byte, error) {
+	type rng struct {
+		Low  float64 `json:"low"`
+		High float64 `json:"high"`
+		Step float64 `json:"step"`
+	}
+	type search struct {
+		Evaluations int     `json:"evaluations"`
+		Seed        int64   `json:"seed"`
+		Time        float64 `json:"time,omitempty"`
+	}
+	return json.Marshal(struct {
+		Name        string   `json:"name"`
+		Process     string   `json:"process"`
+		Supply      float64  `json:"supply"`
+		Temperature float64  `json:"temperature"`
+		InputRange  rng      `json:"input_range"`
+		Targets     Targets  `json:"targets"`
+		Pareto      []string `json:"pareto"`
+		Topologies  []string `json:"topologies"`
+		Search      search   `json:"search"`
+	}{
+		Name: s.Name, Process: s.ProcessRef, Supply: s.Supply, Temperature: s.TempK,
+		InputRange: rng{s.Range.Low, s.Range.High, s.Step},
+		Targets:    s.Targets, Pareto: s.Pareto, Topologies: s.Topologies,
+		Search: search{s.Search.Evaluations, s.Search.Seed, s.Search.Time.Seconds()},
+	})
+}

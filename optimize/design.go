@@ -1,0 +1,225 @@
+package optimize
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"sort"
+	"time"
+
+	"pairsmith/objectives"
+)
+
+// StageCandidate is one reported candidate of a spec's search, evaluated
+// again through objectives.Evaluate — the path `eval` takes — so that its
+// design file reproduces its metrics exactly.
+type StageCandidate struct {
+	ID         string // c01, c02, … in report order
+	Topology   string
+	Design     *objectives.Design
+	Eval       *objectives.Evaluation
+	Metrics    objectives.Metrics
+	Violations []objectives.Violation // one per target the spec sets
+	Feasible   bool
+	Pareto     bool    // on the front of the feasible candidates
+	Score      float64 // Score of its trade-off axes (lower is better)
+	Key        Key     // which evaluation of the search found it
+}
+
+// FamilyRank is one family's place in a search.
+type FamilyRank struct {
+	Topology    string
+	Rank        int // 1 best
+	Feasible    bool
+	Best        *StageCandidate // nil when every candidate of the family failed
+	Evaluations int
+}
+
+// StageResult is the outcome of a spec's search.
+type StageResult struct {
+	Spec       *objectives.Spec
+	Search     *Result
+	Families   []FamilyRank
+	Candidates []*StageCandidate // the front, then each family's best, then the nearest misses
+	// Best is the feasible candidate of lowest Score; nil when none is.
+	Best *StageCandidate
+	// Binding names, when nothing is feasible, the targets the least
+	// violating candidate misses, worst first.
+	Binding     []string
+	Evaluations int
+	Elapsed     time.Duration
+}
+
+// SearchOptions tune Search beyond the spec.
+type SearchOptions struct {
+	Strategy Strategy
+	Progress func(Progress)
+	// Evaluations, Seed, Workers and Time override the spec's search
+	// settings when set (non-zero).
+	Evaluations int
+	Seed        *int64
+	Workers     int
+	Time        time.Duration
+}
+
+// Search runs the spec's search and gathers the reported candidates.
+func Search(ctx context.Context, spec *objectives.Spec, opt SearchOptions) (*StageResult, error) {
+	prob, err := NewStageProblem(spec)
+	if err != nil {
+		return nil, err
+	}
+	set := Settings{
+		Evaluations: spec.Search.Evaluations, Seed: spec.Search.Seed, Workers: spec.Search.Workers,
+		Strategy: opt.Strategy, Progress: opt.Progress,
+	}
+	limit := spec.Search.Time
+	if opt.Evaluations > 0 {
+		set.Evaluations = opt.Evaluations
+	}
+	if opt.Seed != nil {
+		set.Seed = *opt.Seed
+	}
+	if opt.Workers > 0 {
+		set.Workers = opt.Workers
+	}
+	if opt.Time > 0 {
+		limit = opt.Time
+	}
+	if limit > 0 {
+		set.Deadline = time.Now().Add(limit)
+		if spec.Search.Evaluations == 0 && opt.Evaluations == 0 {
+			set.Evaluations = math.MaxInt32 // a time budget alone
+		}
+	}
+	res, err := Run(ctx, prob, set)
+	if err != nil {
+		return nil, err
+	}
+	return gather(prob, res)
+}
+
+// MaxReportedFront bounds how many members of the front a result reports
+// (with design files and netlists); a larger front is thinned to its most
+// spread members by crowding distance, the extremes always kept.
+const MaxReportedFront = 200
+
+// thinFront keeps at most n members of a front (sorted by Score), the most
+// crowding-distant ones, in their original order.
+func thinFront(front []Candidate, n int) []Candidate {
+	if len(front) <= n {
+		return front
+	}
+	objs := make([][]float64, len(front))
+	idx := make([]int, len(front))
+	for i, c := range front {
+		objs[i], idx[i] = c.Outcome.Objectives, i
+	}
+	cd := CrowdingDistance(objs, idx)
+	order := append([]int(nil), idx...)
+	sort.SliceStable(order, func(a, b int) bool { return cd[order[a]] > cd[order[b]] })
+	keep := order[:n]
+	sort.Ints(keep)
+	out := make([]Candidate, 0, n)
+	for _, i := range keep {
+		out = append(out, front[i])
+	}
+	return out
+}
+
+// gather re-evaluates the candidates worth reporting and ranks the
+// families.
+func gather(prob *StageProblem, res *Result) (*StageResult, error) {
+	out := &StageResult{Spec: prob.Spec, Search: res, Evaluations: res.Evaluations, Elapsed: res.Elapsed}
+	scales := prob.Scales()
+	seen := map[Key]*StageCandidate{}
+	add := func(c Candidate, pareto bool) (*StageCandidate, error) {
+		if sc, ok := seen[c.Key]; ok {
+			sc.Pareto = sc.Pareto || pareto
+			return sc, nil
+		}
+		d := prob.Design(c.Point)
+		ev, err := objectives.Evaluate(d)
+		if err != nil {
+			return nil, fmt.Errorf("re-evaluate %s: %w", d.Topology, err)
+		}
+		vs := prob.Spec.Targets.Check(ev.Metrics)
+		sc := &StageCandidate{
+			Topology: d.Topology, Design: d, Eval: ev, Metrics: ev.Metrics, Violations: vs,
+			Feasible: objectives.TotalViolation(vs) == 0, Pareto: pareto,
+			Score: Score(prob.Spec.Axes(ev.Metrics), scales, nil), Key: c.Key,
+		}
+		seen[c.Key] = sc
+		out.Candidates = append(out.Candidates, sc)
+		return sc, nil
+	}
+	for _, c := range thinFront(res.Front, MaxReportedFront) {
+		if _, err := add(c, true); err != nil {
+			return nil, err
+		}
+	}
+	counts := map[int]int{}
+	for _, c := range res.All {
+		counts[c.Point.Family]++
+	}
+	for _, fb := range res.BestOf {
+		fr := FamilyRank{Topology: prob.Family(fb.Family).Name(), Evaluations: counts[fb.Family]}
+		if fb.OK {
+			sc, err := add(fb.Candidate, false)
+			if err != nil {
+				return nil, err
+			}
+			fr.Best, fr.Feasible = sc, sc.Feasible
+		}
+		out.Families = append(out.Families, fr)
+	}
+	for _, c := range res.Nearest {
+		if _, err := add(c, false); err != nil {
+			return nil, err
+		}
+	}
+	for i, sc := range out.Candidates {
+		sc.ID = fmt.Sprintf("c%02d", i+1)
+	}
+	// Families: feasible ones by their best score, then the others by
+	// their least violation, then those that never evaluated.
+	sort.SliceStable(out.Families, func(i, j int) bool {
+		a, b := out.Families[i], out.Families[j]
+		switch {
+		case (a.Best != nil) != (b.Best != nil):
+			return a.Best != nil
+		case a.Best == nil:
+			return false
+		case a.Feasible != b.Feasible:
+			return a.Feasible
+		case a.Feasible:
+			return a.Best.Score < b.Best.Score
+		}
+		return objectives.TotalViolation(a.Best.Violations) < objectives.TotalViolation(b.Best.Violations)
+	})
+	for i := range out.Families {
+		out.Families[i].Rank = i + 1
+	}
+	for _, sc := range out.Candidates {
+		if sc.Feasible && (out.Best == nil || sc.Score < out.Best.Score) {
+			out.Best = sc
+		}
+	}
+	if out.Best == nil {
+		var nearest *StageCandidate
+		for _, sc := range out.Candidates {
+			if nearest == nil || objectives.TotalViolation(sc.Violations) < objectives.TotalViolation(nearest.Violations) {
+				nearest = sc
+			}
+		}
+		if nearest != nil {
+			vs := append([]objectives.Violation(nil), nearest.Violations...)
+			sort.SliceStable(vs, func(i, j int) bool { return vs[i].Amount > vs[j].Amount })
+			for _, v := range vs {
+				if v.Amount > 0 {
+					out.Binding = append(out.Binding, v.Target)
+				}
+			}
+		}
+	}
+	return out, nil
+}

@@ -1,0 +1,478 @@
+package optimize
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"math/rand"
+	"runtime"
+	"sort"
+	"sync"
+	"time"
+
+	"github.com/MaxHalford/eaopt"
+)
+
+// Strategy chooses how the budget is spent.
+type Strategy int
+
+// The strategies: the hybrid is the product's; the others are the
+// baselines scripts/bench-search compares it with.
+const (
+	Hybrid     Strategy = iota // genetic islands, then Nelder–Mead on promising candidates
+	Genetic                    // the genetic part alone
+	NelderMead                 // multi-start Nelder–Mead alone, from the defaults and random points
+	Random                     // uniform random points
+)
+
+// String names the strategy.
+func (s Strategy) String() string {
+	switch s {
+	case Hybrid:
+		return "hybrid"
+	case Genetic:
+		return "genetic"
+	case NelderMead:
+		return "nelder-mead"
+	case Random:
+		return "random"
+	}
+	return fmt.Sprintf("Strategy(%d)", int(s))
+}
+
+// Settings bound a search.
+type Settings struct {
+	// Evaluations is the budget of point evaluations (at least 1).
+	Evaluations int
+	// Deadline, when not zero, stops the search early (the result then
+	// depends on the machine's speed).
+	Deadline time.Time
+	Seed     int64
+	// Workers is the number of evaluations run at once; 0 means one per
+	// core. It does not change the result.
+	Workers  int
+	Strategy Strategy
+	// Progress, when set, is called after every evaluation with the state
+	// of the search, from the evaluating goroutine.
+	Progress func(Progress)
+}
+
+// Progress is the state of a running search.
+type Progress struct {
+	Evaluations int
+	Budget      int
+	Feasible    int     // feasible candidates so far
+	Best        float64 // best score so far (see Score); +Inf before a feasible one
+	Nearest     float64 // smallest total violation so far
+	Elapsed     time.Duration
+	Phase       string // "genetic", "refine", "random"
+}
+
+// Key orders evaluations independently of the order they finish in.
+type Key struct {
+	Phase  int // 0 genetic (or random), 1 refinement
+	Gen    int // generation, or refinement run
+	Island int // family island, or -1
+	Slot   int // index within the generation or run
+}
+
+func (k Key) less(o Key) bool {
+	if k.Phase != o.Phase {
+		return k.Phase < o.Phase
+	}
+	if k.Gen != o.Gen {
+		return k.Gen < o.Gen
+	}
+	if k.Island != o.Island {
+		return k.Island < o.Island
+	}
+	return k.Slot < o.Slot
+}
+
+// Candidate is one evaluated point.
+type Candidate struct {
+	Key     Key
+	Point   Point
+	Outcome Outcome
+}
+
+// Result is what a search found.
+type Result struct {
+	// All holds every evaluation, in Key order.
+	All []Candidate
+	// Front is the non-dominated set of the feasible candidates, sorted
+	// by Score.
+	Front []Candidate
+	// Nearest are the least-violating infeasible candidates (at most
+	// NearestKept), least violation first.
+	Nearest []Candidate
+	// BestOf holds, for every family, its best feasible candidate by
+	// Score or, if none is feasible, its least-violating one; a family
+	// whose every point failed has none (ok false).
+	BestOf []FamilyBest
+	// FirstFeasible is the number of evaluations, in Key order, up to and
+	// including the first feasible one; 0 if none.
+	FirstFeasible int
+	Evaluations   int
+	Elapsed       time.Duration
+	Stopped       bool // the deadline ended the search early
+}
+
+// FamilyBest is the best candidate of one family.
+type FamilyBest struct {
+	Family    int
+	Candidate Candidate
+	OK        bool
+}
+
+// NearestKept is how many infeasible candidates a result keeps.
+const NearestKept = 10
+
+// Scaler is implemented by problems whose objectives have natural scales
+// (a target limit, say); Score and the refinement divide by them. Without
+// it every scale is 1.
+type Scaler interface {
+	Scales() []float64
+}
+
+// Starter is implemented by problems that know a good point of a family
+// (its defaults), which the search puts in the first generation and among
+// the refinement starts.
+type Starter interface {
+	Start(family int) ([]float64, bool)
+}
+
+// Namer is implemented by problems whose families name their parameters,
+// so that migrants between islands keep the values of the parameters two
+// families share.
+type Namer interface {
+	ParamNames(family int) []string
+}
+
+// rhoTchebycheff is the augmentation of the Tchebycheff scalarisation.
+const rhoTchebycheff = 0.01
+
+// Score scalarises objectives by the augmented weighted Tchebycheff
+// function with the ideal point at zero (R. E. Steuer, E.-U. Choo, "An
+// interactive weighted Tchebycheff procedure for multiple objective
+// programming", Mathematical Programming 26, 1983):
+// max_i w_i·f_i/s_i + ρ·Σ_i w_i·f_i/s_i, with ρ = 0.01. With the weights
+// all 1 and the scales the budgets, a score below 1 means every objective
+// is within its budget, and the score is the largest fraction used.
+func Score(obj, scales, weights []float64) float64 {
+	mx, sum := math.Inf(-1), 0.0
+	for i, f := range obj {
+		s, w := 1.0, 1.0
+		if i < len(scales) && scales[i] > 0 {
+			s = scales[i]
+		}
+		if i < len(weights) {
+			w = weights[i]
+		}
+		v := w * f / s
+		mx = math.Max(mx, v)
+		sum += v
+	}
+	return mx + rhoTchebycheff*sum
+}
+
+// runner carries one search.
+type runner struct {
+	ctx      context.Context
+	prob     Problem
+	fams     []Family
+	scales   []float64
+	set      Settings
+	start    time.Time
+	sem      chan struct{}
+	mu       sync.Mutex
+	all      []Candidate
+	feasible int
+	best     float64
+	nearest  float64
+	stopped  bool
+}
+
+// Run searches the problem within the settings.
+func Run(ctx context.Context, prob Problem, set Settings) (*Result, error) {
+	fams := prob.Families()
+	if len(fams) == 0 {
+		return nil, errors.New("optimize: the problem has no families")
+	}
+	for _, f := range fams {
+		if f.Dim < 1 {
+			return nil, fmt.Errorf("optimize: family %s has no parameters", f.Name)
+		}
+	}
+	if set.Evaluations < 1 {
+		return nil, fmt.Errorf("optimize: budget of %d evaluations, want at least 1", set.Evaluations)
+	}
+	workers := set.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	r := &runner{
+		ctx:  ctx,
+		prob: prob, fams: fams, set: set, start: time.Now(),
+		sem: make(chan struct{}, workers), best: math.Inf(1), nearest: math.Inf(1),
+	}
+	r.scales = make([]float64, prob.Objectives())
+	for i := range r.scales {
+		r.scales[i] = 1
+	}
+	if sc, ok := prob.(Scaler); ok {
+		copy(r.scales, sc.Scales())
+	}
+	var err error
+	switch set.Strategy {
+	case Hybrid:
+		ga := set.Evaluations * 3 / 4
+		if ga < 2*len(fams)*minPop {
+			ga = set.Evaluations // too small a budget to share
+		}
+		if err = r.genetic(ctx, ga); err == nil {
+			err = r.refine(ctx, set.Evaluations-r.count())
+		}
+	case Genetic:
+		err = r.genetic(ctx, set.Evaluations)
+	case NelderMead:
+		err = r.refine(ctx, set.Evaluations)
+	case Random:
+		err = r.random(ctx, set.Evaluations)
+	default:
+		err = fmt.Errorf("optimize: unknown strategy %v", set.Strategy)
+	}
+	if err != nil {
+		return nil, err
+	}
+	return r.result(), nil
+}
+
+// count returns the number of evaluations so far.
+func (r *runner) count() int {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	return len(r.all)
+}
+
+// expired reports whether the context or the deadline ends the search.
+func (r *runner) expired(ctx context.Context) bool {
+	if ctx == nil {
+		ctx = r.ctx
+	}
+	if ctx.Err() != nil {
+		return true
+	}
+	if !r.set.Deadline.IsZero() && time.Now().After(r.set.Deadline) {
+		r.mu.Lock()
+		r.stopped = true
+		r.mu.Unlock()
+		return true
+	}
+	return false
+}
+
+// evaluate evaluates one point on a worker slot and records it.
+func (r *runner) evaluate(key Key, p Point) Outcome {
+	r.sem <- struct{}{}
+	o := r.prob.Evaluate(p)
+	<-r.sem
+	r.mu.Lock()
+	r.all = append(r.all, Candidate{Key: key, Point: p.Clone(), Outcome: o})
+	if o.Feasible() {
+		r.feasible++
+		r.best = math.Min(r.best, Score(o.Objectives, r.scales, nil))
+	} else if !o.Failed {
+		r.nearest = math.Min(r.nearest, o.Violation())
+	}
+	pr := Progress{Evaluations: len(r.all), Budget: r.set.Evaluations, Feasible: r.feasible,
+		Best: r.best, Nearest: r.nearest, Elapsed: time.Since(r.start), Phase: phaseName(key.Phase, r.set.Strategy)}
+	r.mu.Unlock()
+	if r.set.Progress != nil {
+		r.set.Progress(pr)
+	}
+	return o
+}
+
+func phaseName(phase int, s Strategy) string {
+	switch {
+	case s == Random:
+		return "random"
+	case phase == 1:
+		return "refine"
+	}
+	return "genetic"
+}
+
+// evaluateAll evaluates genomes concurrently (up to the worker limit).
+func (r *runner) evaluateAll(gs []*genome) {
+	var wg sync.WaitGroup
+	for _, g := range gs {
+		if g.out != nil {
+			continue
+		}
+		wg.Add(1)
+		go func(g *genome) {
+			defer wg.Done()
+			o := r.evaluate(g.key, g.pt)
+			g.out = &o
+		}(g)
+	}
+	wg.Wait()
+}
+
+// random spends the budget on uniform random points, round robin over
+// the families.
+func (r *runner) random(ctx context.Context, budget int) error {
+	rng := rand.New(rand.NewSource(r.set.Seed))
+	const batch = 64
+	for done := 0; done < budget && !r.expired(ctx); done += batch {
+		var gs []*genome
+		for k := done; k < min(done+batch, budget); k++ {
+			f := k % len(r.fams)
+			x := make([]float64, r.fams[f].Dim)
+			for i := range x {
+				x[i] = rng.Float64()
+			}
+			gs = append(gs, &genome{run: r, key: Key{Phase: 0, Gen: k / batch, Island: -1, Slot: k % batch}, pt: Point{Family: f, X: x}})
+		}
+		r.evaluateAll(gs)
+	}
+	return nil
+}
+
+// result assembles the Result from every evaluation, in Key order.
+func (r *runner) result() *Result {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	all := append([]Candidate(nil), r.all...)
+	sort.Slice(all, func(i, j int) bool { return all[i].Key.less(all[j].Key) })
+	res := &Result{All: all, Evaluations: len(all), Elapsed: time.Since(r.start), Stopped: r.stopped}
+	var feas []Candidate
+	var infeas []Candidate
+	for i, c := range all {
+		switch {
+		case c.Outcome.Feasible():
+			if res.FirstFeasible == 0 {
+				res.FirstFeasible = i + 1
+			}
+			feas = append(feas, c)
+		case !c.Outcome.Failed:
+			infeas = append(infeas, c)
+		}
+	}
+	objs := make([][]float64, len(feas))
+	for i, c := range feas {
+		objs[i] = c.Outcome.Objectives
+	}
+	if len(feas) > 0 {
+		fronts := NonDominatedSort(objs, nil)
+		seen := map[string]bool{}
+		for _, i := range fronts[0] {
+			k := fmt.Sprint(feas[i].Outcome.Objectives)
+			if seen[k] {
+				continue // the same trade-off twice: keep the first found
+			}
+			seen[k] = true
+			res.Front = append(res.Front, feas[i])
+		}
+		sort.SliceStable(res.Front, func(i, j int) bool {
+			return Score(res.Front[i].Outcome.Objectives, r.scales, nil) < Score(res.Front[j].Outcome.Objectives, r.scales, nil)
+		})
+	}
+	sort.SliceStable(infeas, func(i, j int) bool { return infeas[i].Outcome.Violation() < infeas[j].Outcome.Violation() })
+	res.Nearest = infeas[:min(len(infeas), NearestKept)]
+	for f := range r.fams {
+		fb := FamilyBest{Family: f}
+		for _, c := range all {
+			if c.Point.Family != f || c.Outcome.Failed {
+				continue
+			}
+			if !fb.OK || better(c.Outcome, fb.Candidate.Outcome, r.scales) {
+				fb.Candidate, fb.OK = c, true
+			}
+		}
+		res.BestOf = append(res.BestOf, fb)
+	}
+	return res
+}
+
+// better reports whether a is preferable to b under Deb's feasibility
+// rules, feasible ones compared by Score.
+func better(a, b Outcome, scales []float64) bool {
+	af, bf := a.Feasible(), b.Feasible()
+	switch {
+	case af && !bf:
+		return true
+	case !af && bf:
+		return false
+	case !af:
+		return a.Violation() < b.Violation()
+	}
+	return Score(a.Objectives, scales, nil) < Score(b.Objectives, scales, nil)
+}
+
+// minPop is the smallest island population.
+const minPop = 8
+
+// genetic runs the islands with eaopt within the budget.
+func (r *runner) genetic(ctx context.Context, budget int) error {
+	nf := len(r.fams)
+	// Population ~ 1.2·√(budget per island): enough generations to converge
+	// and enough members to spread along a front.
+	pop := int(math.Round(1.2 * math.Sqrt(float64(budget)/float64(nf))))
+	pop = max(minPop, min(100, pop))
+	pop += pop % 2
+	if pop*nf > budget {
+		// Not even one generation: spend the budget on the first one.
+		pop = max(2, budget/nf)
+		pop -= pop % 2
+	}
+	gens := (budget - pop*nf) / (pop * nf)
+	made := 0
+	newGenome := func(rng *rand.Rand) eaopt.Genome {
+		island := made / pop
+		slot := made % pop
+		made++
+		f := r.fams[island]
+		x := make([]float64, f.Dim)
+		if st, ok := r.prob.(Starter); ok && slot == 0 {
+			if s, ok := st.Start(island); ok && len(s) == f.Dim {
+				copy(x, s)
+			}
+		} else {
+			for i := range x {
+				x[i] = rng.Float64()
+			}
+		}
+		return &genome{run: r, key: Key{Phase: 0, Gen: 0, Island: island, Slot: slot}, pt: Point{Family: island, X: x}}
+	}
+	conf := eaopt.GAConfig{
+		NPops:        uint(nf),
+		PopSize:      uint(pop),
+		NGenerations: uint(max(gens, 1)),
+		HofSize:      1,
+		Model:        &nsgaModel{run: r},
+		ParallelEval: true,
+		RNG:          rand.New(rand.NewSource(r.set.Seed)),
+		EarlyStop: func(ga *eaopt.GA) bool {
+			return r.expired(ctx) || gens < 1
+		},
+	}
+	if n, ok := r.prob.(Namer); ok && nf > 1 {
+		conf.Migrator = &translatingMigrator{run: r, names: n}
+		conf.MigFrequency = 5
+	}
+	ga, err := conf.NewGA()
+	if err != nil {
+		return fmt.Errorf("optimize: genetic search: %w", err)
+	}
+	if err := ga.Minimize(newGenome); err != nil {
+		return fmt.Errorf("optimize: genetic search: %w", err)
+	}
+	return nil
+}

@@ -1,0 +1,185 @@
+package optimize
+
+import (
+	"errors"
+	"fmt"
+	"math"
+
+	"pairsmith/objectives"
+	"pairsmith/topologies"
+)
+
+// CoarseStep is the sweep step of the first, cheap look at a candidate.
+const CoarseStep = 50e-3
+
+// CoarseReject is the violation, on any one target, beyond which a coarse
+// look rejects a candidate without the fine sweep. The coarse sweep can
+// miss a narrow gm peak or dip by up to a few per cent of the ripple, so
+// only a candidate missing a target by half its limit or more is judged
+// on it.
+const CoarseReject = 0.5
+
+// StageProblem is the input-stage design problem of a spec sheet: one
+// family of the spec's topologies per island, each parameter mapped from
+// [0, 1] onto its bounds (log or linear, as the family declares).
+type StageProblem struct {
+	Spec   *objectives.Spec
+	fams   []topologies.Family
+	params [][]topologies.Param
+}
+
+var (
+	_ Problem = (*StageProblem)(nil)
+	_ Scaler  = (*StageProblem)(nil)
+	_ Starter = (*StageProblem)(nil)
+	_ Namer   = (*StageProblem)(nil)
+)
+
+// NewStageProblem sets up the search of a spec.
+func NewStageProblem(spec *objectives.Spec) (*StageProblem, error) {
+	if spec == nil || spec.Process == nil {
+		return nil, errors.New("optimize: a spec with a process is needed")
+	}
+	p := &StageProblem{Spec: spec}
+	for _, name := range spec.Topologies {
+		f, err := topologies.Lookup(name)
+		if err != nil {
+			return nil, err
+		}
+		p.fams = append(p.fams, f)
+		p.params = append(p.params, f.Params())
+	}
+	if len(p.fams) == 0 {
+		return nil, errors.New("optimize: the spec names no topology")
+	}
+	return p, nil
+}
+
+// Families implements Problem.
+func (p *StageProblem) Families() []Family {
+	out := make([]Family, len(p.fams))
+	for i, f := range p.fams {
+		out[i] = Family{Name: f.Name(), Dim: len(p.params[i])}
+	}
+	return out
+}
+
+// Family returns the topology family of index i.
+func (p *StageProblem) Family(i int) topologies.Family { return p.fams[i] }
+
+// Objectives implements Problem: the spec's trade-off axes.
+func (p *StageProblem) Objectives() int { return len(p.Spec.Pareto) }
+
+// Scales implements Scaler: the spec's natural unit of each axis.
+func (p *StageProblem) Scales() []float64 {
+	out := make([]float64, len(p.Spec.Pareto))
+	for i, a := range p.Spec.Pareto {
+		out[i] = p.Spec.AxisScale(a)
+	}
+	return out
+}
+
+// Start implements Starter: the family's defaults.
+func (p *StageProblem) Start(f int) ([]float64, bool) {
+	return p.Normalize(f, topologies.Defaults(p.fams[f])), true
+}
+
+// ParamNames implements Namer.
+func (p *StageProblem) ParamNames(f int) []string {
+	out := make([]string, len(p.params[f]))
+	for i, q := range p.params[f] {
+		out[i] = q.Name
+	}
+	return out
+}
+
+// Values maps normalised coordinates of family f to parameter values.
+func (p *StageProblem) Values(f int, x []float64) topologies.Values {
+	v := topologies.Values{}
+	for i, q := range p.params[f] {
+		u := clamp01(x[i])
+		var val float64
+		if q.Scale == topologies.Log {
+			val = q.Min * math.Pow(q.Max/q.Min, u)
+		} else {
+			val = q.Min + u*(q.Max-q.Min)
+		}
+		// Exactly on the bounds at the box's faces, whatever the rounding.
+		v[q.Name] = math.Min(q.Max, math.Max(q.Min, val))
+	}
+	return v
+}
+
+// Normalize maps parameter values of family f to [0, 1] coordinates.
+func (p *StageProblem) Normalize(f int, v topologies.Values) []float64 {
+	x := make([]float64, len(p.params[f]))
+	for i, q := range p.params[f] {
+		val := v[q.Name]
+		if q.Scale == topologies.Log {
+			x[i] = math.Log(val/q.Min) / math.Log(q.Max/q.Min)
+		} else {
+			x[i] = (val - q.Min) / (q.Max - q.Min)
+		}
+		x[i] = clamp01(x[i])
+	}
+	return x
+}
+
+// Design returns the design file of a point: the spec's process and
+// conditions, the input range swept at the spec's step.
+func (p *StageProblem) Design(pt Point) *objectives.Design {
+	return p.Spec.Design(p.fams[pt.Family].Name(), p.Values(pt.Family, pt.X))
+}
+
+// StageOutcome is the payload of an evaluated stage.
+type StageOutcome struct {
+	Metrics    objectives.Metrics
+	Violations []objectives.Violation
+	// Coarse marks a candidate judged on the coarse sweep alone.
+	Coarse bool
+	// Err is why an evaluation failed (no DC solution, say).
+	Err string
+}
+
+// Evaluate implements Problem: a coarse sweep first; a candidate missing
+// a target by CoarseReject or more is judged on it, the others are swept
+// at the spec's step.
+func (p *StageProblem) Evaluate(pt Point) Outcome {
+	d := p.Design(pt)
+	coarse := *d
+	coarse.Sweep.Step = math.Max(CoarseStep, d.Sweep.Step)
+	out, ok := p.measure(&coarse, true)
+	if !ok || coarse.Sweep.Step == d.Sweep.Step {
+		return out
+	}
+	for _, v := range out.Payload.(*StageOutcome).Violations {
+		if v.Amount >= CoarseReject {
+			return out
+		}
+	}
+	out, _ = p.measure(d, false)
+	return out
+}
+
+// measure sweeps a design and turns its metrics into an outcome.
+func (p *StageProblem) measure(d *objectives.Design, coarse bool) (Outcome, bool) {
+	m, err := objectives.MeasureDesign(d)
+	if err != nil {
+		return Outcome{Failed: true, Payload: &StageOutcome{Coarse: coarse, Err: err.Error()}}, false
+	}
+	vs := p.Spec.Targets.Check(m)
+	amounts := make([]float64, len(vs))
+	for i, v := range vs {
+		amounts[i] = v.Amount
+	}
+	return Outcome{
+		Objectives: p.Spec.Axes(m),
+		Violations: amounts,
+		Payload:    &StageOutcome{Metrics: m, Violations: vs, Coarse: coarse},
+	}, true
+}
+
+// String describes the problem.
+func (p *StageProblem) String() string {
+	return fmt.Sprintf("%s: %d families on %s at %g V", p.Spec.Name, len(p.fams), p.Spec.Process.Name, p.Spec.Supply)
+}
