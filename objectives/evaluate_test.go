@@ -310,10 +310,10 @@ func TestEvaluateDoc(t *testing.T) {
 				}
 			}
 			metrics, _ := doc["metrics"].(map[string]any)
-			if len(metrics) != 7 {
-				t.Errorf("metrics %v, want the seven of design.md §3", metrics)
+			if len(metrics) != 8 {
+				t.Errorf("metrics %v, want the seven of design.md §3 and gm_id_min", metrics)
 			}
-			for _, k := range []string{"gm_min", "gm_max", "gm_ripple", "power", "area", "switchover", "transition_width"} {
+			for _, k := range []string{"gm_min", "gm_max", "gm_ripple", "power", "area", "switchover", "transition_width", "gm_id_min"} {
 				val, ok := metrics[k]
 				if !ok {
 					t.Errorf("metrics lack %s", k)
@@ -405,5 +405,34 @@ func TestEvaluateDevices(t *testing.T) {
 				}
 			}
 		})
+	}
+}
+
+// TestGMOverIDSquareLaw checks gm_id_min's quantity, 2·gm/(i_n + i_p), at
+// the middle of a level-1 n-pair's sweep against the square law, where a
+// saturated transistor has gm/I_D = 2/(V_GS − V_T) (any analog design
+// text, e.g. Razavi, ch. 2; exact for level 1 with channel-length
+// modulation too), and that the metric is the smallest over the range.
+func TestGMOverIDSquareLaw(t *testing.T) {
+	proc, _ := device.Builtin("demo18-l1")
+	f, _ := topologies.Lookup("n-pair")
+	d := &objectives.Design{Topology: "n-pair", ProcessRef: "demo18-l1", Process: proc, Supply: 1.8, TempK: 300.15,
+		Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01}, Params: topologies.Defaults(f)}
+	ev, err := objectives.Evaluate(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mid := ev.Result.Len() / 2
+	c := ev.Curve()[mid]
+	got := 2 * c.GM / (c.IN + c.IP)
+	m1 := ev.Devices[0]
+	want := 2 / (m1.VGS - m1.VTH)
+	// The solver's voltage tolerance (1e-6·|v| + 1e-7 V) moves the
+	// overdrive of about 60 mV by up to 1e-5 of itself.
+	if math.Abs(got-want) > 1e-5*want {
+		t.Errorf("2·gm/i_n = %.9g /V at vcm %.3g, square law 2/(V_GS − V_T) = %.9g /V", got, c.VCM, want)
+	}
+	if ev.Metrics.GMOverIDMin > got {
+		t.Errorf("gm_id_min %.6g above the mid-range value %.6g", ev.Metrics.GMOverIDMin, got)
 	}
 }

@@ -31,6 +31,13 @@ type Metrics struct {
 	Area            float64 // m², Σ W·L·M
 	Switchover      float64 // V, centre of the handover; NaN without one
 	TransitionWidth float64 // V, 10 % to 90 % of the NMOS share; NaN without one
+	// GMOverIDMin is the smallest 2·gm/(i_n + i_p) over the range, 1/V:
+	// the gm/I_D of the input transistors where they are most strongly
+	// inverted (exactly theirs where one pair conducts). Physics bounds
+	// gm/I_D by 1/(n·U_T), its weak-inversion value; the level-1 model,
+	// which has no weak inversion, can exceed that, so a large value flags
+	// a design outside the model's validity. NaN when no pair conducts.
+	GMOverIDMin float64
 }
 
 // MarshalJSON writes the metrics with their design.md names, NaN and Inf
@@ -44,6 +51,7 @@ func (m Metrics) MarshalJSON() ([]byte, error) {
 		"area":             finite(m.Area),
 		"switchover":       finite(m.Switchover),
 		"transition_width": finite(m.TransitionWidth),
+		"gm_id_min":        finite(m.GMOverIDMin),
 	})
 }
 
@@ -65,6 +73,7 @@ func (m *Metrics) UnmarshalJSON(b []byte) error {
 		GMMin: get("gm_min", nan), GMMax: get("gm_max", nan), GMRipple: get("gm_ripple", math.Inf(1)),
 		Power: get("power", nan), Area: get("area", nan),
 		Switchover: get("switchover", nan), TransitionWidth: get("transition_width", nan),
+		GMOverIDMin: get("gm_id_min", nan),
 	}
 	return nil
 }
@@ -113,9 +122,18 @@ func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 	for _, t := range c.Mosfets {
 		m.Area += t.Geom.Area()
 	}
+	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
+	m.GMOverIDMin = math.Inf(1)
+	for i, g := range res.GM {
+		if tot := in[i] + ip[i]; tot > 0 {
+			m.GMOverIDMin = math.Min(m.GMOverIDMin, 2*g/tot)
+		}
+	}
+	if math.IsInf(m.GMOverIDMin, 1) {
+		m.GMOverIDMin = math.NaN()
+	}
 	m.Switchover, m.TransitionWidth = math.NaN(), math.NaN()
 	if st.PairN[0] != "" && st.PairP[0] != "" {
-		in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
 		m.Switchover, m.TransitionWidth = Handover(res.VCM, in, ip)
 	}
 	return m

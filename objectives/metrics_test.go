@@ -396,11 +396,11 @@ func TestHandoverNonMonotoneSwitchover(t *testing.T) {
 }
 
 // TestMetricsJSON checks the JSON of Metrics: the seven keys of design.md
-// §3, null for NaN and ±Inf, and UnmarshalJSON reading it back (null as
+// §3 plus gm_id_min (added by issue 3's search), null for NaN and ±Inf, and UnmarshalJSON reading it back (null as
 // +Inf for gm_ripple, NaN elsewhere; finite values bit for bit, since
 // encoding/json writes the shortest decimal that reads back exactly).
 func TestMetricsJSON(t *testing.T) {
-	keys := []string{"area", "gm_max", "gm_min", "gm_ripple", "power", "switchover", "transition_width"}
+	keys := []string{"area", "gm_id_min", "gm_max", "gm_min", "gm_ripple", "power", "switchover", "transition_width"}
 	nan, inf := math.NaN(), math.Inf(1)
 	tests := []struct {
 		name  string
@@ -408,13 +408,13 @@ func TestMetricsJSON(t *testing.T) {
 		nulls []string
 	}{
 		{"all finite", objectives.Metrics{GMMin: 1.9e-4, GMMax: 2.7e-4, GMRipple: 0.42105263157894735,
-			Power: 7.2e-5, Area: 1.6e-10, Switchover: 1.02, TransitionWidth: 0.11}, nil},
+			Power: 7.2e-5, Area: 1.6e-10, Switchover: 1.02, TransitionWidth: 0.11, GMOverIDMin: 12.5}, nil},
 		{"single pair", objectives.Metrics{GMMin: 0, GMMax: 3.1e-4, GMRipple: inf,
-			Power: 4.5e-5, Area: 5.6e-11, Switchover: nan, TransitionWidth: nan},
+			Power: 4.5e-5, Area: 5.6e-11, Switchover: nan, TransitionWidth: nan, GMOverIDMin: 14},
 			[]string{"gm_ripple", "switchover", "transition_width"}},
 		{"odd values", objectives.Metrics{GMMin: math.SmallestNonzeroFloat64, GMMax: math.MaxFloat64,
-			GMRipple: math.Inf(-1), Power: nan, Area: 1.0000000000000002, Switchover: -0.1, TransitionWidth: 0},
-			[]string{"gm_ripple", "power"}},
+			GMRipple: math.Inf(-1), Power: nan, Area: 1.0000000000000002, Switchover: -0.1, TransitionWidth: 0, GMOverIDMin: nan},
+			[]string{"gm_ripple", "power", "gm_id_min"}},
 		{"zero value", objectives.Metrics{}, nil},
 	}
 	for _, tt := range tests {
@@ -443,9 +443,9 @@ func TestMetricsJSON(t *testing.T) {
 				t.Fatal(err)
 			}
 			fields := func(m objectives.Metrics) []float64 {
-				return []float64{m.GMMin, m.GMMax, m.GMRipple, m.Power, m.Area, m.Switchover, m.TransitionWidth}
+				return []float64{m.GMMin, m.GMMax, m.GMRipple, m.Power, m.Area, m.Switchover, m.TransitionWidth, m.GMOverIDMin}
 			}
-			names := []string{"gm_min", "gm_max", "gm_ripple", "power", "area", "switchover", "transition_width"}
+			names := []string{"gm_min", "gm_max", "gm_ripple", "power", "area", "switchover", "transition_width", "gm_id_min"}
 			in, out := fields(tt.m), fields(back)
 			for i := range in {
 				switch {

@@ -344,3 +344,31 @@ func (s *Spec) AxisScale(axis string) float64 {
 	}
 	return defaultScaleUnknown
 }
+
+// Tightened returns the targets moved inwards by the fraction margin: the
+// gm floor raised by it, every maximum and the switchover tolerance
+// lowered by it. A search that meets the tightened targets leaves that
+// much room for the difference between its models and the designer's
+// simulator (a guard band: common practice, no source).
+func (t Targets) Tightened(margin float64) Targets {
+	u := t
+	if t.Has(TargetGMMin) {
+		u.GMMin = t.GMMin * (1 + margin)
+	}
+	if t.Has(TargetGMRippleMax) {
+		u.GMRippleMax = t.GMRippleMax * (1 - margin)
+	}
+	if t.Has(TargetPowerMax) {
+		u.PowerMax = t.PowerMax * (1 - margin)
+	}
+	if t.Has(TargetAreaMax) {
+		u.AreaMax = t.AreaMax * (1 - margin)
+	}
+	if t.Has(TargetSwitchover) {
+		u.Switchover.Tolerance = t.Switchover.Tolerance * (1 - margin)
+	}
+	if t.Has(TargetTransitionWidthMax) {
+		u.TransitionWidthMax = t.TransitionWidthMax * (1 - margin)
+	}
+	return u
+}

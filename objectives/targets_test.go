@@ -302,3 +302,28 @@ func ExampleTargets_Check() {
 	// gm_min: 0.00012 against 0.00015, violated by 0.20
 	// gm_ripple_max: 0.5 against 0.2, violated by 1.50
 }
+
+// TestTightened checks the guard band: a stage that just meets the
+// targets fails the tightened ones, one with the margin to spare meets
+// them, and the violations are measured against the moved limits.
+func TestTightened(t *testing.T) {
+	tg := objectives.Targets{GMMin: 100e-6, GMRippleMax: 0.2, PowerMax: 1e-4, AreaMax: 1e-9,
+		Switchover: objectives.SwitchoverTarget{At: 0.9, Tolerance: 0.1}, TransitionWidthMax: 0.2}
+	tt := tg.Tightened(0.01)
+	just := objectives.Metrics{GMMin: 100e-6, GMMax: 120e-6, GMRipple: 0.2, Power: 1e-4, Area: 1e-9, Switchover: 1.0, TransitionWidth: 0.2}
+	if v := objectives.TotalViolation(tg.Check(just)); v != 0 {
+		t.Fatalf("a stage on every limit violates the exact targets by %g", v)
+	}
+	for _, v := range tt.Check(just) {
+		if v.Amount <= 0 {
+			t.Errorf("%s: a stage on the exact limit meets the tightened target", v.Target)
+		}
+	}
+	roomy := objectives.Metrics{GMMin: 101.5e-6, GMMax: 120e-6, GMRipple: 0.197, Power: 0.985e-4, Area: 0.985e-9, Switchover: 0.9985, TransitionWidth: 0.197}
+	if v := objectives.TotalViolation(tt.Check(roomy)); v != 0 {
+		t.Errorf("a stage with 1.5 %% to spare violates 1 %%-tightened targets by %g: %+v", v, tt.Check(roomy))
+	}
+	if got := tt.Check(just)[0].Limit; math.Abs(got-101e-6) > 1e-18 {
+		t.Errorf("tightened gm_min limit %g, want 101 µS", got)
+	}
+}

@@ -14,12 +14,12 @@ import (
 // again through objectives.Evaluate — the path `eval` takes — so that its
 // design file reproduces its metrics exactly.
 type StageCandidate struct {
-	ID         string // c01, c02, … in report order
+	ID         string // c01, c02, … (c001, … past 99) in report order
 	Topology   string
 	Design     *objectives.Design
 	Eval       *objectives.Evaluation
 	Metrics    objectives.Metrics
-	Violations []objectives.Violation // one per target the spec sets
+	Violations []objectives.Violation // one per target the spec sets (and Level1Validity on level 1)
 	Feasible   bool
 	Pareto     bool    // on the front of the feasible candidates
 	Score      float64 // Score of its trade-off axes (lower is better)
@@ -41,7 +41,8 @@ type StageResult struct {
 	Search     *Result
 	Families   []FamilyRank
 	Candidates []*StageCandidate // the front, then each family's best, then the nearest misses
-	// Best is the feasible candidate of lowest Score; nil when none is.
+	// Best is the candidate of lowest Score among those that meet every
+	// target with the guard band (Margin) to spare; nil when none does.
 	Best *StageCandidate
 	// Binding names, when nothing is feasible, the targets the least
 	// violating candidate misses, worst first.
@@ -142,7 +143,7 @@ func gather(prob *StageProblem, res *Result) (*StageResult, error) {
 		if err != nil {
 			return nil, fmt.Errorf("re-evaluate %s: %w", d.Topology, err)
 		}
-		vs := prob.Spec.Targets.Check(ev.Metrics)
+		vs := prob.Checks(ev.Metrics, prob.Spec.Targets)
 		sc := &StageCandidate{
 			Topology: d.Topology, Design: d, Eval: ev, Metrics: ev.Metrics, Violations: vs,
 			Feasible: objectives.TotalViolation(vs) == 0, Pareto: pareto,
@@ -177,8 +178,10 @@ func gather(prob *StageProblem, res *Result) (*StageResult, error) {
 			return nil, err
 		}
 	}
+	// Ids of one width, so that they sort as text too.
+	width := max(2, len(fmt.Sprint(len(out.Candidates))))
 	for i, sc := range out.Candidates {
-		sc.ID = fmt.Sprintf("c%02d", i+1)
+		sc.ID = fmt.Sprintf("c%0*d", width, i+1)
 	}
 	// Families: feasible ones by their best score, then the others by
 	// their least violation, then those that never evaluated.
@@ -199,8 +202,9 @@ func gather(prob *StageProblem, res *Result) (*StageResult, error) {
 	for i := range out.Families {
 		out.Families[i].Rank = i + 1
 	}
+	// The best is a member of the front, feasible with the guard band.
 	for _, sc := range out.Candidates {
-		if sc.Feasible && (out.Best == nil || sc.Score < out.Best.Score) {
+		if sc.Pareto && sc.Feasible && (out.Best == nil || sc.Score < out.Best.Score) {
 			out.Best = sc
 		}
 	}

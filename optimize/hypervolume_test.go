@@ -274,7 +274,10 @@ func TestHypervolumeAgainstInclusionExclusion(t *testing.T) {
 				pts[i][k] = math.Round(rng.Float64()*12) / 10 // some ties, some ≥ ref
 			}
 		}
-		ref := slices.Repeat([]float64{1}, d)
+		ref := make([]float64, d) // unequal sides, so that coordinates cannot be mixed up
+		for k := range ref {
+			ref[k] = 0.8 + 0.1*float64(rng.IntN(5))
+		}
 		want := inclusionExclusion(pts, ref)
 		if got := Hypervolume(pts, ref); !closeRel(got, want, 1e-12) {
 			t.Errorf("trial %d (d=%d, n=%d): Hypervolume = %.15g, inclusion–exclusion %.15g", trial, d, n, got, want)
@@ -364,7 +367,7 @@ func TestHypervolumeFastPathsAgree(t *testing.T) {
 				q[0] += 0.1
 				pts = append(pts, q)
 			}
-			ref := slices.Repeat([]float64{1}, d)
+			ref := []float64{1, 1.3, 1.1}[:d] // unequal sides
 			fast := Hypervolume(pts, ref)
 			var in [][]float64
 			for _, p := range pts {

@@ -45,12 +45,16 @@ func (m *nsgaModel) Apply(pop *eaopt.Population) error {
 		}
 		parents[i] = g
 	}
+	island := parents[0].pt.Family
+	if m.run.retired != nil && m.run.retired[island] {
+		return nil // the island is retired: it keeps its population
+	}
 	m.run.evaluateAll(parents) // migrants arrive unevaluated
-	if m.run.expired(nil) {
+	if m.run.expired(m.run.ctx) {
 		return nil
 	}
 	rank, crowd := rankCrowd(parents)
-	island, gen := parents[0].pt.Family, int(pop.Generations)+1
+	gen := int(pop.Generations) + 1
 	rng := pop.RNG
 	pick := func() *genome {
 		a, b := rng.Intn(n), rng.Intn(n)
@@ -71,7 +75,7 @@ func (m *nsgaModel) Apply(pop *eaopt.Population) error {
 		for _, c := range []*genome{c1, c2} {
 			if len(children) < n {
 				c.out = nil // a child is a new candidate, even if unchanged
-				c.key = Key{Phase: 0, Gen: gen, Island: island, Slot: len(children)}
+				c.key = Key{Phase: m.run.phase, Gen: gen, Island: island, Slot: len(children)}
 				children = append(children, c)
 			}
 		}
@@ -217,6 +221,9 @@ func (m *translatingMigrator) Apply(pops eaopt.Populations, _ *rand.Rand) {
 		bests[i] = p.Individuals[0].Genome.(*genome)
 	}
 	for i := range pops {
+		if r := m.run.retired; r != nil && r[i] {
+			continue // a retired island takes no migrants
+		}
 		from := bests[(i+np-1)%np]
 		to := pops[i]
 		host := bests[i]
@@ -239,7 +246,7 @@ func (m *translatingMigrator) Apply(pops eaopt.Populations, _ *rand.Rand) {
 		}
 		last := len(to.Individuals) - 1
 		mig := &genome{run: m.run, pt: Point{Family: host.pt.Family, X: x},
-			key: Key{Phase: 0, Gen: int(to.Generations) + 1, Island: host.pt.Family, Slot: -1 - m.round}}
+			key: Key{Phase: m.run.phase, Gen: int(to.Generations) + 1, Island: host.pt.Family, Slot: -1 - m.round}}
 		to.Individuals[last] = eaopt.Individual{Genome: mig, Fitness: math.Inf(1), Evaluated: false, ID: to.Individuals[last].ID}
 	}
 }

@@ -13,8 +13,6 @@ import (
 // elitist multiobjective genetic algorithm: NSGA-II", IEEE Trans. Evol.
 // Comput. 6(2), 2002 ("Deb et al. 2002"), applied by hand.
 
-var inf = math.Inf(1)
-
 func TestDominates(t *testing.T) {
 	// Source: Deb et al. 2002, definition of Pareto dominance under
 	// minimisation (no worse everywhere, strictly better somewhere).
@@ -44,6 +42,7 @@ func TestDominates(t *testing.T) {
 }
 
 func TestConstrainedDominates(t *testing.T) {
+	inf := math.Inf(1)
 	// Source: Deb et al. 2002, §VI, constrained domination: (1) a feasible
 	// point beats an infeasible one; (2) of two infeasible points the
 	// smaller overall violation wins; (3) two feasible points compare by
@@ -82,6 +81,7 @@ func TestConstrainedDominates(t *testing.T) {
 }
 
 func TestNonDominatedSortHandWorked(t *testing.T) {
+	inf := math.Inf(1)
 	cases := []struct {
 		name string
 		objs [][]float64
@@ -161,6 +161,7 @@ func TestNonDominatedSortHandWorked(t *testing.T) {
 // violations from a small set (ties again) and 10 % failed (nil
 // objectives, +Inf violation).
 func randomPopulation(rng *rand.Rand, n, m int) ([][]float64, []float64) {
+	inf := math.Inf(1)
 	objs := make([][]float64, n)
 	viol := make([]float64, n)
 	for i := range objs {
@@ -203,6 +204,9 @@ func naiveFronts(objs [][]float64, viol []float64) [][]int {
 			} else {
 				front = append(front, p)
 			}
+		}
+		if len(front) == 0 {
+			panic("naiveFronts: every remaining point is dominated; the relation has a cycle")
 		}
 		fronts = append(fronts, front)
 		left = rest
@@ -283,6 +287,7 @@ func TestNonDominatedSortNilViolations(t *testing.T) {
 }
 
 func TestCrowdingDistanceHandWorked(t *testing.T) {
+	inf := math.Inf(1)
 	third := 1.0 / 3
 	cases := []struct {
 		name  string
@@ -448,6 +453,7 @@ func TestCrowdingDistanceProperties(t *testing.T) {
 }
 
 func TestCrowdedLess(t *testing.T) {
+	inf := math.Inf(1)
 	// Source: Deb et al. 2002, §III-B, crowded comparison operator: lower
 	// rank wins; in the same rank, the larger crowding distance wins.
 	cases := []struct {

@@ -47,11 +47,17 @@ type start struct {
 // candidates (the Nelder–Mead-only strategy) the starts are each family's
 // defaults and random points. The refined objective is Score plus a penalty
 // on the violation.
-func (r *runner) refine(ctx context.Context, budget int) error {
+func (r *runner) refine(ctx context.Context, budget int, fromDefaults bool) error {
 	if budget <= 0 || r.expired(ctx) {
 		return nil
 	}
-	starts := r.refineStarts(budget)
+	var starts []start
+	if fromDefaults {
+		starts = r.defaultStarts(ctx)
+		budget -= len(r.fams) // the probes of the defaults
+	} else {
+		starts = r.refineStarts(budget)
+	}
 	if len(starts) == 0 {
 		return nil
 	}
@@ -69,11 +75,50 @@ func (r *runner) refine(ctx context.Context, budget int) error {
 		go func(i int, st start, b int) {
 			defer wg.Done()
 			defer func() { <-sem }()
-			r.nelderMead(ctx, i, st, b)
+			run := i
+			r.nelderMead(ctx, st, b, func(step int) Key { return Key{Phase: r.phase, Gen: step, Island: run} })
 		}(i, st, b)
 	}
 	wg.Wait()
 	return nil
+}
+
+// defaultStarts evaluates every family at its defaults (a random point
+// for a family without them) and returns a start, weighted equally, for
+// each family that is not hopeless: when some default is feasible, the
+// families whose default misses by more than retireRatio are left to the
+// islands, which will retire them unless they improve.
+func (r *runner) defaultStarts(ctx context.Context) []start {
+	rng := rand.New(rand.NewSource(r.set.Seed))
+	st, isStarter := r.prob.(Starter)
+	probes := make([]*genome, len(r.fams))
+	for f := range r.fams {
+		x := make([]float64, r.fams[f].Dim)
+		if def, ok := r.starterPoint(st, isStarter, f); ok {
+			copy(x, def)
+		} else {
+			for i := range x {
+				x[i] = rng.Float64()
+			}
+		}
+		probes[f] = &genome{run: r, key: Key{Phase: r.phase, Gen: -1, Island: f}, pt: Point{Family: f, X: x}}
+	}
+	if r.expired(ctx) {
+		return nil
+	}
+	r.evaluateAll(probes)
+	anyFeasible := false
+	for _, g := range probes {
+		anyFeasible = anyFeasible || g.out.Feasible()
+	}
+	var starts []start
+	for _, g := range probes {
+		if anyFeasible && (g.out.Failed || g.out.Violation() > retireRatio) {
+			continue
+		}
+		starts = append(starts, start{pt: g.pt.Clone()})
+	}
+	return starts
 }
 
 // refineStarts chooses the starts for a budget.
@@ -173,11 +218,12 @@ func (r *runner) refined(o Outcome, weights []float64) float64 {
 // from the start and, each time it converges with budget left, again from
 // the best point with a fresh, smaller simplex (a restart recovers from a
 // collapsed simplex, a known weakness of the method).
-func (r *runner) nelderMead(ctx context.Context, run int, st start, budget int) {
+func (r *runner) nelderMead(ctx context.Context, st start, budget int, keyOf func(step int) Key) ([]float64, *Outcome) {
 	fam := st.pt.Family
 	d := len(st.pt.X)
 	evals := 0
 	best, bestX := math.Inf(1), append([]float64(nil), st.pt.X...)
+	var bestOut *Outcome
 	cache := map[string]float64{}
 	f := func(y []float64) float64 {
 		x := make([]float64, d)
@@ -192,10 +238,13 @@ func (r *runner) nelderMead(ctx context.Context, run int, st start, budget int) 
 			if evals >= budget || r.expired(ctx) {
 				return best + boxWeight*out + 1 // out of budget: no better than the best
 			}
-			o := r.evaluate(Key{Phase: 1, Gen: run, Island: -1, Slot: evals}, Point{Family: fam, X: x})
+			o := r.evaluate(keyOf(evals), Point{Family: fam, X: x})
 			evals++
 			v = r.refined(o, st.weights)
 			cache[k] = v
+			if v < best {
+				bestOut = &o
+			}
 		}
 		if v < best {
 			best = v
@@ -217,6 +266,7 @@ func (r *runner) nelderMead(ctx context.Context, run int, st start, budget int) 
 			size /= 4 // no progress: look closer
 		}
 	}
+	return bestX, bestOut
 }
 
 // pointKey identifies a point exactly, for the per-run cache.

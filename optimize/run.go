@@ -69,12 +69,14 @@ type Progress struct {
 	Phase       string // "genetic", "refine", "random"
 }
 
-// Key orders evaluations independently of the order they finish in.
+// Key orders evaluations independently of the order they finish in. The
+// runs of a refinement, which proceed side by side, interleave: step k of
+// every run comes before step k+1 of any.
 type Key struct {
-	Phase  int // 0 genetic (or random), 1 refinement
-	Gen    int // generation, or refinement run
-	Island int // family island, or -1
-	Slot   int // index within the generation or run
+	Phase  int // the strategy's phase (the hybrid: 0, 1, 2)
+	Gen    int // generation, or step within a refinement run
+	Island int // family island, refinement run, or -1
+	Slot   int // index within the generation
 }
 
 func (k Key) less(o Key) bool {
@@ -150,6 +152,15 @@ type Namer interface {
 	ParamNames(family int) []string
 }
 
+// How the hybrid shares its budget: each refinement takes at most a
+// quarter, the first at most hybridFirstPerFamily evaluations a family and
+// the last at most hybridFinalMax; the islands take the rest. (Measured
+// with scripts/bench-search; see DEVELOPERS.md.)
+const (
+	hybridFirstPerFamily = 120
+	hybridFinalMax       = 500
+)
+
 // rhoTchebycheff is the augmentation of the Tchebycheff scalarisation.
 const rhoTchebycheff = 0.01
 
@@ -192,6 +203,10 @@ type runner struct {
 	best     float64
 	nearest  float64
 	stopped  bool
+	// retired marks islands the genetic search no longer spends on.
+	retired []bool
+	// phase numbers the keys of the current phase of the strategy.
+	phase int
 }
 
 // Run searches the problem within the settings.
@@ -230,17 +245,31 @@ func Run(ctx context.Context, prob Problem, set Settings) (*Result, error) {
 	var err error
 	switch set.Strategy {
 	case Hybrid:
-		ga := set.Evaluations * 3 / 4
-		if ga < 2*len(fams)*minPop {
-			ga = set.Evaluations // too small a budget to share
+		// Exploit, explore, exploit: Nelder–Mead from every family's
+		// defaults; the islands, seeded with what it found; Nelder–Mead
+		// again from the families' bests and along the front.
+		first := min(set.Evaluations/4, hybridFirstPerFamily*len(fams))
+		ga := set.Evaluations - first - min(set.Evaluations/4, hybridFinalMax)
+		if _, ok := prob.(Starter); !ok {
+			// Without defaults to start from, the islands take the
+			// first share too.
+			first, ga = 0, first+ga
 		}
-		if err = r.genetic(ctx, ga); err == nil {
-			err = r.refine(ctx, set.Evaluations-r.count())
+		if ga < 2*len(fams)*minPop {
+			first, ga = 0, set.Evaluations // too small a budget to share
+		}
+		r.phase = 0
+		if err = r.refine(ctx, first, true); err == nil {
+			r.phase = 1
+			if err = r.genetic(ctx, ga); err == nil {
+				r.phase = 2
+				err = r.refine(ctx, set.Evaluations-r.count(), false)
+			}
 		}
 	case Genetic:
 		err = r.genetic(ctx, set.Evaluations)
 	case NelderMead:
-		err = r.refine(ctx, set.Evaluations)
+		err = r.refine(ctx, set.Evaluations, false)
 	case Random:
 		err = r.random(ctx, set.Evaluations)
 	default:
@@ -299,13 +328,15 @@ func (r *runner) evaluate(key Key, p Point) Outcome {
 }
 
 func phaseName(phase int, s Strategy) string {
-	switch {
-	case s == Random:
+	switch s {
+	case Random:
 		return "random"
-	case phase == 1:
+	case Genetic:
+		return "genetic"
+	case NelderMead:
 		return "refine"
 	}
-	return "genetic"
+	return [...]string{"refine (defaults)", "genetic", "refine"}[min(phase, 2)]
 }
 
 // evaluateAll evaluates genomes concurrently (up to the worker limit).
@@ -338,7 +369,7 @@ func (r *runner) random(ctx context.Context, budget int) error {
 			for i := range x {
 				x[i] = rng.Float64()
 			}
-			gs = append(gs, &genome{run: r, key: Key{Phase: 0, Gen: k / batch, Island: -1, Slot: k % batch}, pt: Point{Family: f, X: x}})
+			gs = append(gs, &genome{run: r, key: Key{Phase: r.phase, Gen: k / batch, Island: -1, Slot: k % batch}, pt: Point{Family: f, X: x}})
 		}
 		r.evaluateAll(gs)
 	}
@@ -416,6 +447,109 @@ func better(a, b Outcome, scales []float64) bool {
 	return Score(a.Objectives, scales, nil) < Score(b.Objectives, scales, nil)
 }
 
+// seedPoints returns, for every family, up to k points to start its
+// island from: its best earlier candidates (Deb's rules, then Score), or
+// without any its defaults.
+func (r *runner) seedPoints(k int) [][][]float64 {
+	r.mu.Lock()
+	all := append([]Candidate(nil), r.all...)
+	r.mu.Unlock()
+	sort.Slice(all, func(i, j int) bool { return all[i].Key.less(all[j].Key) })
+	out := make([][][]float64, len(r.fams))
+	st, isStarter := r.prob.(Starter)
+	for f := range r.fams {
+		var mine []Candidate
+		for _, c := range all {
+			if c.Point.Family == f && !c.Outcome.Failed {
+				mine = append(mine, c)
+			}
+		}
+		sort.SliceStable(mine, func(i, j int) bool { return better(mine[i].Outcome, mine[j].Outcome, r.scales) })
+		for _, c := range mine[:min(len(mine), max(k, 1))] {
+			out[f] = append(out[f], append([]float64(nil), c.Point.X...))
+		}
+		if len(out[f]) == 0 {
+			if def, ok := r.starterPoint(st, isStarter, f); ok {
+				out[f] = append(out[f], def)
+			}
+		}
+	}
+	return out
+}
+
+// retireFromHistory retires, before the islands start, the families that
+// earlier phases showed hopeless (see retire).
+func (r *runner) retireFromHistory() {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	least := make([]float64, len(r.fams))
+	seen := make([]bool, len(r.fams))
+	for i := range least {
+		least[i] = math.Inf(1)
+	}
+	anyFeasible := false
+	for _, c := range r.all {
+		if c.Outcome.Failed {
+			continue
+		}
+		f := c.Point.Family
+		seen[f] = true
+		least[f] = math.Min(least[f], c.Outcome.Violation())
+		anyFeasible = anyFeasible || c.Outcome.Violation() == 0
+	}
+	if !anyFeasible {
+		return
+	}
+	for f := range r.fams {
+		if seen[f] && least[f] > retireRatio {
+			r.retired[f] = true
+		}
+	}
+}
+
+// retireAfter is the generation from which hopeless islands retire, and
+// retireRatio how much worse than the best island's an island's least
+// violation must be, with another island feasible, to be hopeless.
+const (
+	retireAfter = 3
+	retireRatio = 10
+)
+
+// retire, called between generations (so deterministically), stops
+// spending on islands that have found nothing feasible while another has,
+// and whose least violation is far from feasible (retireRatio times the
+// violation of a target missed by its whole limit): a single pair asked
+// for a rail-to-rail range, say.
+func (r *runner) retire(ga *eaopt.GA) {
+	if int(ga.Generations) < retireAfter {
+		return
+	}
+	anyFeasible := false
+	least := make([]float64, len(ga.Populations))
+	for i, p := range ga.Populations {
+		least[i] = math.Inf(1)
+		for _, ind := range p.Individuals {
+			g := ind.Genome.(*genome)
+			if g.out == nil || g.out.Failed {
+				continue
+			}
+			v := g.out.Violation()
+			least[i] = math.Min(least[i], v)
+			if v == 0 {
+				anyFeasible = true
+			}
+		}
+	}
+	if !anyFeasible {
+		return
+	}
+	for i := range ga.Populations {
+		if least[i] > retireRatio {
+			r.retired[i] = true
+		}
+	}
+}
+
 // minPop is the smallest island population.
 const minPop = 8
 
@@ -433,6 +567,10 @@ func (r *runner) genetic(ctx context.Context, budget int) error {
 		pop -= pop % 2
 	}
 	gens := (budget - pop*nf) / (pop * nf)
+	r.retired = make([]bool, nf)
+	limit := r.count() + budget
+	seeds := r.seedPoints(2)
+	r.retireFromHistory()
 	made := 0
 	newGenome := func(rng *rand.Rand) eaopt.Genome {
 		island := made / pop
@@ -440,28 +578,37 @@ func (r *runner) genetic(ctx context.Context, budget int) error {
 		made++
 		f := r.fams[island]
 		x := make([]float64, f.Dim)
-		if st, ok := r.prob.(Starter); ok && slot == 0 {
-			if s, ok := st.Start(island); ok && len(s) == f.Dim {
-				copy(x, s)
-			}
-		} else {
+		switch {
+		case slot < len(seeds[island]):
+			copy(x, seeds[island][slot])
+		default:
 			for i := range x {
 				x[i] = rng.Float64()
 			}
 		}
-		return &genome{run: r, key: Key{Phase: 0, Gen: 0, Island: island, Slot: slot}, pt: Point{Family: island, X: x}}
+		return &genome{run: r, key: Key{Phase: r.phase, Gen: 0, Island: island, Slot: slot}, pt: Point{Family: island, X: x}}
 	}
 	conf := eaopt.GAConfig{
 		NPops:        uint(nf),
 		PopSize:      uint(pop),
-		NGenerations: uint(max(gens, 1)),
+		// As many generations as the budget allows: retiring hopeless
+		// islands leaves more for the others, and EarlyStop ends the
+		// search once a generation could overrun the budget.
+		NGenerations: uint(max(gens, 1) * nf),
 		HofSize:      1,
 		Model:        &nsgaModel{run: r},
 		ParallelEval: true,
 		RNG:          rand.New(rand.NewSource(r.set.Seed)),
 		EarlyStop: func(ga *eaopt.GA) bool {
-			return r.expired(ctx) || gens < 1
+			active := 0
+			for _, ret := range r.retired {
+				if !ret {
+					active++
+				}
+			}
+			return r.expired(ctx) || gens < 1 || r.count()+active*pop > limit
 		},
+		Callback: func(ga *eaopt.GA) { r.retire(ga) },
 	}
 	if n, ok := r.prob.(Namer); ok && nf > 1 {
 		conf.Migrator = &translatingMigrator{run: r, names: n}

@@ -6,6 +6,7 @@ import (
 	"math"
 
 	"pairsmith/objectives"
+	"pairsmith/sim/device"
 	"pairsmith/topologies"
 )
 
@@ -19,13 +20,30 @@ const CoarseStep = 50e-3
 // on it.
 const CoarseReject = 0.5
 
+// Margin is the guard band the search keeps from every target: it judges
+// candidates against the spec's targets tightened by this fraction
+// (objectives.Targets.Tightened), so that what it reports as feasible
+// stays feasible in a simulator whose numbers differ from pairsmith's by
+// less than that (ngspice on level-1 decks agrees to about 0.1 %).
+const Margin = 0.005
+
+// Level1Validity names the check a search on a level-1 process adds to
+// the spec's targets: the input transistors must be in strong inversion
+// somewhere in the range, gm/I_D ≤ 1/(2·U_T), an overdrive of at least
+// 4·U_T (≈ 100 mV at 27 °C), where the square law is trusted (common
+// practice, no source). Without it the search exploits the level-1
+// model's lack of weak inversion, where its gm/I_D grows without the
+// bound 1/(n·U_T) physics sets.
+const Level1Validity = "level1_strong_inversion"
+
 // StageProblem is the input-stage design problem of a spec sheet: one
 // family of the spec's topologies per island, each parameter mapped from
 // [0, 1] onto its bounds (log or linear, as the family declares).
 type StageProblem struct {
-	Spec   *objectives.Spec
-	fams   []topologies.Family
-	params [][]topologies.Param
+	Spec    *objectives.Spec
+	fams    []topologies.Family
+	params  [][]topologies.Param
+	targets objectives.Targets // the spec's, tightened by Margin
 }
 
 var (
@@ -40,7 +58,7 @@ func NewStageProblem(spec *objectives.Spec) (*StageProblem, error) {
 	if spec == nil || spec.Process == nil {
 		return nil, errors.New("optimize: a spec with a process is needed")
 	}
-	p := &StageProblem{Spec: spec}
+	p := &StageProblem{Spec: spec, targets: spec.Targets.Tightened(Margin)}
 	for _, name := range spec.Topologies {
 		f, err := topologies.Lookup(name)
 		if err != nil {
@@ -133,7 +151,8 @@ func (p *StageProblem) Design(pt Point) *objectives.Design {
 
 // StageOutcome is the payload of an evaluated stage.
 type StageOutcome struct {
-	Metrics    objectives.Metrics
+	Metrics objectives.Metrics
+	// Violations are against the tightened targets the search uses.
 	Violations []objectives.Violation
 	// Coarse marks a candidate judged on the coarse sweep alone.
 	Coarse bool
@@ -167,7 +186,7 @@ func (p *StageProblem) measure(d *objectives.Design, coarse bool) (Outcome, bool
 	if err != nil {
 		return Outcome{Failed: true, Payload: &StageOutcome{Coarse: coarse, Err: err.Error()}}, false
 	}
-	vs := p.Spec.Targets.Check(m)
+	vs := p.Checks(m, p.targets)
 	amounts := make([]float64, len(vs))
 	for i, v := range vs {
 		amounts[i] = v.Amount
@@ -177,6 +196,21 @@ func (p *StageProblem) measure(d *objectives.Design, coarse bool) (Outcome, bool
 		Violations: amounts,
 		Payload:    &StageOutcome{Metrics: m, Violations: vs, Coarse: coarse},
 	}, true
+}
+
+// Checks returns the violations of a stage's metrics against targets,
+// with the level-1 validity check on a level-1 process.
+func (p *StageProblem) Checks(m objectives.Metrics, t objectives.Targets) []objectives.Violation {
+	vs := t.Check(m)
+	if p.Spec.Process.Kind == "level1" {
+		lim := 1 / (2 * device.ThermalVoltage(p.Spec.TempK))
+		amt := objectives.MissingAmount
+		if !math.IsNaN(m.GMOverIDMin) && !math.IsInf(m.GMOverIDMin, 0) {
+			amt = math.Max(0, (m.GMOverIDMin-lim)/lim)
+		}
+		vs = append(vs, objectives.Violation{Target: Level1Validity, Value: m.GMOverIDMin, Limit: lim, Amount: amt})
+	}
+	return vs
 }
 
 // String describes the problem.

@@ -70,8 +70,12 @@ type Figure struct {
 	Caption  string
 	Panels   []*plot.Plot
 	SharedX  bool
-	Width    vg.Length // 0: 18 cm
-	Height   vg.Length // 0: 7 cm per panel plus the titles
+	// Legend, when set, is drawn to the right of the panels, outside
+	// them, for entries the panels share (families, say) and that would
+	// hide data inside a panel.
+	Legend *plot.Legend
+	Width  vg.Length // 0: 18 cm
+	Height vg.Length // 0: 7 cm per panel plus the titles
 }
 
 // Size returns the page size of the figure, defaults filled in.
@@ -128,6 +132,15 @@ func (f *Figure) Draw(dc draw.Canvas) {
 		shareX(f.Panels)
 	}
 	area := draw.Crop(dc, 0, 0, bottom-dc.Min.Y, top-dc.Max.Y)
+	if f.Legend != nil {
+		r := f.Legend.Rectangle(area)
+		w := r.Max.X - r.Min.X + 2*pad
+		side := draw.Crop(area, area.Max.X-area.Min.X-w+pad, -pad, 0, -2*vg.Millimeter)
+		lg := *f.Legend
+		lg.Top, lg.Left = true, true
+		lg.Draw(side)
+		area = draw.Crop(area, 0, -w, 0, 0)
+	}
 	rows := make([][]*plot.Plot, len(f.Panels))
 	for i, p := range f.Panels {
 		rows[i] = []*plot.Plot{p}

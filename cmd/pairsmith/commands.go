@@ -36,7 +36,8 @@ func newRoot(stdout, stderr io.Writer) *cobra.Command {
 		Short: "Design rail-to-rail op-amp input stages with flat gm",
 		Long: "pairsmith evaluates sized rail-to-rail input stages (an NMOS and a PMOS\n" +
 			"differential pair and the circuit that keeps their summed gm flat) with a DC\n" +
-			"circuit solver and compact MOSFET models, and writes SPICE netlists of them.\n\n" +
+			"circuit solver and compact MOSFET models, searches topology and sizing for the\n" +
+			"stages that meet a spec sheet, and writes SPICE netlists of them.\n\n" +
 			objectives.Caution,
 		SilenceErrors:     true,
 		SilenceUsage:      true,
@@ -44,7 +45,7 @@ func newRoot(stdout, stderr io.Writer) *cobra.Command {
 	}
 	root.SetOut(stdout)
 	root.SetErr(stderr)
-	root.AddCommand(newTopologiesCmd(stdout), newEvalCmd(stdout, stderr), newNetlistCmd(stdout, stderr))
+	root.AddCommand(newRunCmd(stdout, stderr), newTopologiesCmd(stdout), newEvalCmd(stdout, stderr), newNetlistCmd(stdout, stderr))
 	return root
 }
 

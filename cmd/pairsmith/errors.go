@@ -19,6 +19,9 @@ const (
 	exitOK       = 0
 	exitFailed   = 1 // anything else: a solver failure, an unwritable output
 	exitBadInput = 2 // a bad file, flag, argument or value
+	// exitInfeasible: `run` found no candidate that meets the spec; its
+	// results, with the nearest candidates, are still written.
+	exitInfeasible = 3
 )
 
 // runError marks an error returned by a command's own work, as opposed to
@@ -40,6 +43,22 @@ func badInput(format string, args ...any) error {
 	return &inputError{fmt.Errorf(format, args...)}
 }
 
+// infeasibleError is the outcome of a run in which no candidate met the
+// spec: not a failure of the program, but an answer a script tells apart
+// by the exit code (exitInfeasible).
+type infeasibleError struct {
+	binding []string // the targets that bind, worst first
+	dir     string   // where the results are
+}
+
+func (e *infeasibleError) Error() string {
+	msg := "no candidate meets the spec"
+	if len(e.binding) > 0 {
+		msg += "; the targets that bind: " + strings.Join(e.binding, ", ")
+	}
+	return msg + " (the nearest candidates are in " + e.dir + ")"
+}
+
 // exitCode says how the program ends for an error from a command's work.
 func exitCode(err error) int {
 	var (
@@ -47,7 +66,11 @@ func exitCode(err error) int {
 		re *topologies.RangeError
 		fe *report.FormatError
 		ie *inputError
+		ne *infeasibleError
 	)
+	if errors.As(err, &ne) {
+		return exitInfeasible
+	}
 	if errors.As(err, &ue) || errors.As(err, &re) || errors.As(err, &fe) || errors.As(err, &ie) {
 		return exitBadInput
 	}

@@ -1,0 +1,179 @@
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"path/filepath"
+	"time"
+
+	"github.com/spf13/cobra"
+
+	"pairsmith/objectives"
+	"pairsmith/optimize"
+	"pairsmith/report"
+	"pairsmith/units"
+)
+
+// runFlags are the settings of `run` given on the command line.
+type runFlags struct {
+	out         string
+	evaluations int
+	time        string
+	seed        int64
+	workers     int
+}
+
+// oneSpec accepts exactly one argument, the spec sheet.
+func oneSpec(cmd *cobra.Command, args []string) error {
+	if len(args) != 1 {
+		return fmt.Errorf("%s: want one spec sheet (SPEC.yaml), got %d arguments", cmd.Name(), len(args))
+	}
+	return nil
+}
+
+// check validates the flags that were given; an error here is a usage
+// error (exit 2, with the usage after it).
+func (f *runFlags) check(cmd *cobra.Command) error {
+	fl := cmd.Flags()
+	if f.out == "" {
+		return errors.New("run: want an output directory (-o DIR)")
+	}
+	if fl.Changed("evaluations") && (f.evaluations < 1 || f.evaluations > objectives.MaxEvaluations) {
+		return fmt.Errorf("--evaluations %d: want a whole number from 1 to %d", f.evaluations, objectives.MaxEvaluations)
+	}
+	if fl.Changed("workers") && f.workers < 0 {
+		return fmt.Errorf("--workers %d: want 0 (one per core) or a positive number", f.workers)
+	}
+	if fl.Changed("time") {
+		if _, err := objectives.ParseTimeBudget(f.time); err != nil {
+			return fmt.Errorf("--time %q: %w; want a duration such as 10m, 90s or 1h30m, or a number of seconds", f.time, err)
+		}
+	}
+	return nil
+}
+
+// apply overrides the spec's search settings with the flags given, so
+// that summary.json's spec records what was run.
+func (f *runFlags) apply(cmd *cobra.Command, spec *objectives.Spec) error {
+	fl := cmd.Flags()
+	if fl.Changed("evaluations") {
+		spec.Search.Evaluations = f.evaluations
+	}
+	if fl.Changed("seed") {
+		spec.Search.Seed = f.seed
+	}
+	if fl.Changed("workers") {
+		spec.Search.Workers = f.workers
+	}
+	if fl.Changed("time") {
+		d, err := objectives.ParseTimeBudget(f.time)
+		if err != nil {
+			return badInput("--time %q: %w", f.time, err)
+		}
+		spec.Search.Time = d
+	}
+	if err := spec.Search.Validate(); err != nil {
+		return badInput("search settings: %w", err)
+	}
+	return nil
+}
+
+// loadSpec reads a spec sheet; any failure is bad input.
+func loadSpec(path string) (*objectives.Spec, error) {
+	spec, err := objectives.LoadSpec(path)
+	if err != nil {
+		var ue *units.Error
+		if errors.As(err, &ue) {
+			return nil, err // names its own file, line and field
+		}
+		return nil, badInput("%w", err) // "spec: open PATH: …"
+	}
+	return spec, nil
+}
+
+func newRunCmd(stdout, stderr io.Writer) *cobra.Command {
+	f := &runFlags{}
+	c := &cobra.Command{
+		Use:   "run SPEC.yaml -o DIR",
+		Short: "Search the families for stages that meet a spec sheet",
+		Long: "Read a spec sheet (targets, budgets, the families to try and the search budget),\n" +
+			"search topology and sizing with a genetic algorithm and Nelder-Mead refinement,\n" +
+			"and write into DIR: summary.json, every reported candidate as a design file and\n" +
+			"a testbench deck (candidates/), pareto.csv, pareto.svg, curves.svg and\n" +
+			"report.html. stdout gets the families ranked with each one's best candidate;\n" +
+			"stderr shows progress. The flags override the spec's search settings.\n\n" +
+			"Exit codes: 0 a candidate meets the spec, 3 none does (everything is still\n" +
+			"written, with the nearest candidates and the targets that bind), 2 bad input,\n" +
+			"1 anything else.",
+		Args: oneSpec,
+		PreRunE: func(cmd *cobra.Command, _ []string) error {
+			return f.check(cmd)
+		},
+	}
+	c.RunE = work(func(args []string) error { return runSearch(c, f, args[0], stdout, stderr) })
+	fl := c.Flags()
+	fl.StringVarP(&f.out, "output", "o", "", "write the results into `DIR` (created if missing)")
+	fl.IntVar(&f.evaluations, "evaluations", 0, "evaluation budget `N` (overrides the spec's search.evaluations)")
+	fl.StringVar(&f.time, "time", "", "time budget `D` such as 10m or 1h30m; the search stops at whichever budget ends first")
+	fl.Int64Var(&f.seed, "seed", 0, "random seed `S` (overrides search.seed); the same seed gives the same result")
+	fl.IntVar(&f.workers, "workers", 0, "evaluate on `W` goroutines, 0 for one per core (does not change the result)")
+	return c
+}
+
+// runSearch is the work of `run`.
+func runSearch(cmd *cobra.Command, f *runFlags, specPath string, stdout, stderr io.Writer) error {
+	spec, err := loadSpec(specPath)
+	if err != nil {
+		return err
+	}
+	if err := f.apply(cmd, spec); err != nil {
+		return err
+	}
+	// Fail on an unusable output directory now, not after the search.
+	if err := os.MkdirAll(filepath.Join(f.out, report.CandidatesDir), 0o755); err != nil {
+		return badInput("output directory %s: %w", f.out, err)
+	}
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer stop()
+	go func() {
+		<-ctx.Done()
+		stop() // a second interrupt ends the program at once
+	}()
+
+	workers := spec.Search.WorkerCount()
+	var deadline time.Time
+	if spec.Search.Time > 0 {
+		deadline = time.Now().Add(spec.Search.Time)
+	}
+	budget := fmt.Sprintf("%d evaluations", spec.Search.Evaluations)
+	if spec.Search.Time > 0 {
+		budget += " or " + spec.Search.Time.String()
+	}
+	fmt.Fprintf(stderr, "pairsmith run: %q, %d families, budget %s, seed %d, %d workers\n",
+		spec.Name, len(spec.Topologies), budget, spec.Search.Seed, workers)
+	pr := newProgress(stderr, deadline)
+	pr.start()
+	res, err := optimize.Search(ctx, spec, optimize.SearchOptions{Strategy: optimize.Hybrid, Progress: pr.update})
+	pr.finish()
+	if err != nil {
+		return fmt.Errorf("run %s: %w", specPath, err)
+	}
+	interrupted := ctx.Err() != nil && res.Evaluations < spec.Search.Evaluations
+	if interrupted {
+		fmt.Fprintf(stderr, "pairsmith run: interrupted after %d evaluations; writing what was found\n", res.Evaluations)
+	}
+	if err := report.WriteRun(f.out, res, report.RunOptions{Strategy: optimize.Hybrid, Workers: workers, Interrupted: interrupted}); err != nil {
+		return err
+	}
+	if err := report.RunTable(stdout, res, f.out); err != nil {
+		return err
+	}
+	if res.Best == nil {
+		return &infeasibleError{binding: res.Binding, dir: f.out}
+	}
+	return nil
+}

@@ -1,0 +1,485 @@
+package report
+
+import (
+	"bytes"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"math"
+	"os"
+	"path"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"pairsmith/objectives"
+	"pairsmith/optimize"
+	"pairsmith/topologies"
+)
+
+// The files of a run directory (issue 3, "What pairsmith run delivers").
+// Candidate files live under CandidatesDir as <id>.yaml and <id>.cir.
+const (
+	SummaryFile    = "summary.json"
+	ParetoCSVFile  = "pareto.csv"
+	ParetoPlotFile = "pareto.svg"
+	CurvesPlotFile = "curves.svg"
+	ReportFile     = "report.html"
+	CandidatesDir  = "candidates"
+)
+
+// CandidateDesign returns the path of a candidate's design file relative
+// to the run directory, with forward slashes: "candidates/c01.yaml".
+func CandidateDesign(id string) string { return path.Join(CandidatesDir, id+".yaml") }
+
+// CandidateNetlist returns the path of a candidate's testbench deck
+// relative to the run directory: "candidates/c01.cir".
+func CandidateNetlist(id string) string { return path.Join(CandidatesDir, id+".cir") }
+
+// Why a search ended before it had spent its evaluation budget, as
+// summary.json's "stopped" gives it.
+const (
+	StoppedTime      = "time"      // the time budget ran out
+	StoppedInterrupt = "interrupt" // the user stopped the run
+)
+
+// RunOptions say how a run was made, for what WriteRun writes beyond the
+// result itself.
+type RunOptions struct {
+	// Strategy is the search strategy the result came from.
+	Strategy optimize.Strategy
+	// Workers is the number of workers the search ran on. report.html
+	// shows it; summary.json leaves it out, since the result does not
+	// depend on it.
+	Workers int
+	// Interrupted says the user stopped the search before its budget was
+	// spent.
+	Interrupted bool
+}
+
+// stopped says why the search ended early, "" when it spent its budget.
+func (o RunOptions) stopped(res *optimize.StageResult) string {
+	switch {
+	case o.Interrupted:
+		return StoppedInterrupt
+	case res.Search != nil && res.Search.Stopped:
+		return StoppedTime
+	}
+	return ""
+}
+
+// WriteRun writes the outcome of a spec's search into dir, which is
+// created if missing: summary.json, every reported candidate as a design
+// file and a testbench deck under candidates/, pareto.csv, the plots
+// pareto.svg and curves.svg, and report.html, a page that shows it all
+// offline. Files of those names are overwritten; other files in dir are
+// left alone. summary.json is the same, byte for byte, for the same
+// result, except for "seconds" and "evaluations_per_second".
+func WriteRun(dir string, res *optimize.StageResult, opt RunOptions) error {
+	if res == nil || res.Spec == nil {
+		return fmt.Errorf("write run %s: no result", dir)
+	}
+	if err := os.MkdirAll(filepath.Join(dir, CandidatesDir), 0o755); err != nil {
+		return fmt.Errorf("write run: %w", err)
+	}
+	write := func(rel string, data []byte) error {
+		if err := os.WriteFile(filepath.Join(dir, filepath.FromSlash(rel)), data, 0o644); err != nil {
+			return fmt.Errorf("write run: %w", err)
+		}
+		return nil
+	}
+	for _, c := range res.Candidates {
+		if err := write(CandidateDesign(c.ID), CandidateFile(res.Spec, c)); err != nil {
+			return err
+		}
+		var deck bytes.Buffer
+		st := c.Eval.Stage
+		if st == nil {
+			var err error
+			if st, err = objectives.Build(c.Design); err != nil {
+				return fmt.Errorf("write run: candidate %s: %w", c.ID, err)
+			}
+		}
+		if err := Testbench(&deck, c.Design, st, TestbenchOptions{DC: true}); err != nil {
+			return fmt.Errorf("write run: candidate %s: %w", c.ID, err)
+		}
+		if err := write(CandidateNetlist(c.ID), deck.Bytes()); err != nil {
+			return err
+		}
+	}
+	summary, err := Summary(res, opt)
+	if err != nil {
+		return err
+	}
+	if err := write(SummaryFile, summary); err != nil {
+		return err
+	}
+	csvData, err := ParetoCSV(res)
+	if err != nil {
+		return err
+	}
+	if err := write(ParetoCSVFile, csvData); err != nil {
+		return err
+	}
+	pareto, err := ParetoFigure(res)
+	if err != nil {
+		return fmt.Errorf("write run: %s: %w", ParetoPlotFile, err)
+	}
+	paretoSVG, err := pareto.Render("svg")
+	if err != nil {
+		return fmt.Errorf("write run: %s: %w", ParetoPlotFile, err)
+	}
+	if err := write(ParetoPlotFile, paretoSVG); err != nil {
+		return err
+	}
+	curves, err := CurvesFigure(res)
+	if err != nil {
+		return fmt.Errorf("write run: %s: %w", CurvesPlotFile, err)
+	}
+	curvesSVG, err := curves.Render("svg")
+	if err != nil {
+		return fmt.Errorf("write run: %s: %w", CurvesPlotFile, err)
+	}
+	if err := write(CurvesPlotFile, curvesSVG); err != nil {
+		return err
+	}
+	page, err := RunPage(res, opt, paretoSVG, curvesSVG)
+	if err != nil {
+		return err
+	}
+	return write(ReportFile, page)
+}
+
+// oneLine turns free text (a spec's name) into one line that is safe in a
+// comment: control characters and line breaks become spaces.
+func oneLine(s string) string {
+	return strings.Join(strings.FieldsFunc(s, func(r rune) bool {
+		return r < 0x20 || r == 0x7f || r == '\u2028' || r == '\u2029' || r == '\u0085'
+	}), " ")
+}
+
+// CandidateFile returns a candidate's design file: a comment header
+// saying it comes from a pairsmith run of the spec, whether it meets the
+// spec (and what it misses), and the caution, then Design.Format, which
+// `pairsmith eval` reads back into the same design bit for bit.
+func CandidateFile(spec *objectives.Spec, c *optimize.StageCandidate) []byte {
+	var b bytes.Buffer
+	fmt.Fprintf(&b, "# Candidate %s from `pairsmith run` of the spec sheet %q.\n", c.ID, oneLine(spec.Name))
+	switch {
+	case c.Feasible && c.Pareto:
+		fmt.Fprintf(&b, "# %s; meets every target of the spec and lies on the Pareto front.\n", c.Topology)
+	case c.Feasible:
+		fmt.Fprintf(&b, "# %s; meets every target of the spec.\n", c.Topology)
+	default:
+		fmt.Fprintf(&b, "# %s; misses %s.\n", c.Topology, strings.Join(MissTexts(spec, c.Violations), "; "))
+	}
+	b.WriteString("# Evaluate it with `pairsmith eval` (the process is a built-in name or an absolute path).\n")
+	fmt.Fprintf(&b, "# %s\n", objectives.Caution)
+	b.Write(c.Design.Format())
+	return b.Bytes()
+}
+
+// jnum is a float for JSON: null when NaN or infinite.
+func jnum(v float64) *float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return nil
+	}
+	return &v
+}
+
+// Misses returns the violations of targets that are not met.
+func Misses(vs []objectives.Violation) []objectives.Violation {
+	out := []objectives.Violation{}
+	for _, v := range vs {
+		if !v.Met() {
+			out = append(out, v)
+		}
+	}
+	return out
+}
+
+type familyJSON struct {
+	Topology    string  `json:"topology"`
+	Rank        int     `json:"rank"`
+	Feasible    bool    `json:"feasible"`
+	Best        *string `json:"best"`
+	Evaluations int     `json:"evaluations"`
+}
+
+type candidateJSON struct {
+	ID             string                 `json:"id"`
+	Topology       string                 `json:"topology"`
+	Design         string                 `json:"design"`
+	Netlist        string                 `json:"netlist"`
+	Feasible       bool                   `json:"feasible"`
+	Pareto         bool                   `json:"pareto"`
+	Score          *float64               `json:"score"`
+	TotalViolation float64                `json:"total_violation"`
+	Axes           map[string]*float64    `json:"axes"`
+	Params         map[string]float64     `json:"params"`
+	Metrics        objectives.Metrics     `json:"metrics"`
+	Violations     []objectives.Violation `json:"violations"`
+}
+
+type summaryJSON struct {
+	Spec                 *objectives.Spec `json:"spec"`
+	Strategy             string           `json:"strategy"`
+	Feasible             bool             `json:"feasible"`
+	Best                 *string          `json:"best"`
+	Binding              []string         `json:"binding"`
+	Evaluations          int              `json:"evaluations"`
+	FirstFeasible        *int             `json:"first_feasible"`
+	Stopped              *string          `json:"stopped"`
+	Seconds              float64          `json:"seconds"`
+	EvaluationsPerSecond float64          `json:"evaluations_per_second"`
+	Caution              string           `json:"caution"`
+	Families             []familyJSON     `json:"families"`
+	Candidates           []candidateJSON  `json:"candidates"`
+}
+
+// Rate returns the evaluations per second of a result, 0 when no time
+// was measured.
+func Rate(res *optimize.StageResult) float64 {
+	if s := res.Elapsed.Seconds(); s > 0 {
+		return float64(res.Evaluations) / s
+	}
+	return 0
+}
+
+// Summary returns summary.json of a result:
+//
+//	{"spec", "strategy", "feasible", "best", "binding", "evaluations",
+//	 "first_feasible", "stopped", "seconds", "evaluations_per_second",
+//	 "caution",
+//	 "families": [{"topology", "rank", "feasible", "best", "evaluations"}],
+//	 "candidates": [{"id", "topology", "design", "netlist", "feasible",
+//	   "pareto", "score", "total_violation", "axes", "params", "metrics",
+//	   "violations": [{"target", "value", "limit", "amount"}]}]}
+//
+// "best" is the best feasible candidate's id, null when none is;
+// "binding" names the targets the least-violating candidate misses when
+// none is feasible, worst first ([] otherwise); a family's "best" is the
+// id of its best feasible or least-violating candidate, null when every
+// evaluation of it failed. "design" and "netlist" are paths relative to
+// the run directory, "metrics" are as `eval --json` writes them and
+// "violations" lists the targets a candidate misses ([] when it meets
+// them all). "stopped" is null when the search spent its budget, else
+// "time" or "interrupt". Every value is in SI units; NaN and infinities
+// are null. "seconds" and "evaluations_per_second" are the only values
+// that depend on the machine's speed.
+func Summary(res *optimize.StageResult, opt RunOptions) ([]byte, error) {
+	spec := res.Spec
+	s := summaryJSON{
+		Spec: spec, Strategy: opt.Strategy.String(), Feasible: res.Best != nil,
+		Binding: append([]string{}, res.Binding...), Evaluations: res.Evaluations,
+		Seconds: res.Elapsed.Seconds(), EvaluationsPerSecond: Rate(res),
+		Caution: objectives.Caution, Families: []familyJSON{}, Candidates: []candidateJSON{},
+	}
+	if res.Best != nil {
+		s.Best = &res.Best.ID
+		s.Binding = []string{}
+	}
+	if res.Search != nil && res.Search.FirstFeasible > 0 {
+		n := res.Search.FirstFeasible
+		s.FirstFeasible = &n
+	}
+	if st := opt.stopped(res); st != "" {
+		s.Stopped = &st
+	}
+	for _, f := range res.Families {
+		fj := familyJSON{Topology: f.Topology, Rank: f.Rank, Feasible: f.Feasible, Evaluations: f.Evaluations}
+		if f.Best != nil {
+			id := f.Best.ID
+			fj.Best = &id
+		}
+		s.Families = append(s.Families, fj)
+	}
+	for _, c := range res.Candidates {
+		cj := candidateJSON{
+			ID: c.ID, Topology: c.Topology, Design: CandidateDesign(c.ID), Netlist: CandidateNetlist(c.ID),
+			Feasible: c.Feasible, Pareto: c.Pareto, Score: jnum(c.Score),
+			TotalViolation: objectives.TotalViolation(c.Violations),
+			Axes:           map[string]*float64{}, Params: map[string]float64{},
+			Metrics: c.Metrics, Violations: Misses(c.Violations),
+		}
+		for i, v := range spec.Axes(c.Metrics) {
+			cj.Axes[spec.Pareto[i]] = jnum(v)
+		}
+		for k, v := range c.Design.Params {
+			cj.Params[k] = v
+		}
+		s.Candidates = append(s.Candidates, cj)
+	}
+	var b bytes.Buffer
+	enc := json.NewEncoder(&b)
+	enc.SetIndent("", "  ")
+	if err := enc.Encode(s); err != nil {
+		return nil, fmt.Errorf("write %s: %w", SummaryFile, err)
+	}
+	return b.Bytes(), nil
+}
+
+// MetricColumns are the metric columns of pareto.csv, with their SI units
+// in the names.
+func MetricColumns() []string {
+	return []string{"gm_min_S", "gm_max_S", "gm_ripple", "power_W", "area_m2", "switchover_V", "transition_width_V", "gm_id_min_per_V"}
+}
+
+// axisColumn names the column of a trade-off axis's value in pareto.csv:
+// "axis_power_W". gm_min is minimised as −gm_min (see Spec.Axes), so its
+// column is "axis_neg_gm_min_S".
+func axisColumn(axis string) string {
+	switch axis {
+	case objectives.AxisPower:
+		return "axis_power_W"
+	case objectives.AxisArea:
+		return "axis_area_m2"
+	case objectives.AxisGMMin:
+		return "axis_neg_gm_min_S"
+	case objectives.AxisTransitionWidth:
+		return "axis_transition_width_V"
+	}
+	return "axis_" + axis
+}
+
+// csvNum writes a value exactly (shortest form that reads back the same),
+// NaN and infinities as an empty cell.
+func csvNum(v float64) string {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return ""
+	}
+	return strconv.FormatFloat(v, 'g', -1, 64)
+}
+
+// ParetoCSV returns pareto.csv: a header, then one row per candidate on
+// the Pareto front in report order: id, topology, every metric in SI units
+// (MetricColumns), the values on the spec's trade-off axes as the search
+// minimises them, and the score. Values are exact; NaN and infinities are
+// empty cells.
+func ParetoCSV(res *optimize.StageResult) ([]byte, error) {
+	var b bytes.Buffer
+	w := csv.NewWriter(&b)
+	head := append([]string{"id", "topology"}, MetricColumns()...)
+	for _, a := range res.Spec.Pareto {
+		head = append(head, axisColumn(a))
+	}
+	head = append(head, "score")
+	if err := w.Write(head); err != nil {
+		return nil, fmt.Errorf("write %s: %w", ParetoCSVFile, err)
+	}
+	for _, c := range res.Candidates {
+		if !c.Pareto {
+			continue
+		}
+		m := c.Metrics
+		row := []string{c.ID, c.Topology, csvNum(m.GMMin), csvNum(m.GMMax), csvNum(m.GMRipple),
+			csvNum(m.Power), csvNum(m.Area), csvNum(m.Switchover), csvNum(m.TransitionWidth), csvNum(m.GMOverIDMin)}
+		for _, v := range res.Spec.Axes(m) {
+			row = append(row, csvNum(v))
+		}
+		row = append(row, csvNum(c.Score))
+		if err := w.Write(row); err != nil {
+			return nil, fmt.Errorf("write %s: %w", ParetoCSVFile, err)
+		}
+	}
+	w.Flush()
+	if err := w.Error(); err != nil {
+		return nil, fmt.Errorf("write %s: %w", ParetoCSVFile, err)
+	}
+	return b.Bytes(), nil
+}
+
+// MissTexts says, one short phrase per missed target, what a candidate
+// misses: "gm_min 95.2 µS < 150 µS", "gm_ripple_max ∞ (gm falls to zero)
+// > 20 %", "switchover 1.05 V outside 900 mV ± 100 mV".
+func MissTexts(spec *objectives.Spec, vs []objectives.Violation) []string {
+	var out []string
+	for _, v := range Misses(vs) {
+		out = append(out, missText(spec, v))
+	}
+	return out
+}
+
+func missText(spec *objectives.Spec, v objectives.Violation) string {
+	q := func(x float64, unit string) string {
+		if math.IsNaN(x) {
+			return "none (no handover)"
+		}
+		return SI(x, unit, tableDigits)
+	}
+	switch v.Target {
+	case objectives.TargetGMMin:
+		return fmt.Sprintf("gm_min %s < %s", q(v.Value, "S"), q(v.Limit, "S"))
+	case objectives.TargetGMRippleMax:
+		return fmt.Sprintf("gm_ripple %s > %s", RippleText(v.Value), Percent(v.Limit))
+	case objectives.TargetPowerMax:
+		return fmt.Sprintf("power %s > %s", q(v.Value, "W"), q(v.Limit, "W"))
+	case objectives.TargetAreaMax:
+		return fmt.Sprintf("area %s > %s", areaText(v.Value), areaText(v.Limit))
+	case objectives.TargetSwitchover:
+		window := fmt.Sprintf("%s ± %s", q(v.Limit, "V"), q(spec.Targets.Switchover.Tolerance, "V"))
+		if math.IsNaN(v.Value) {
+			return "switchover none (no handover), wanted " + window
+		}
+		return fmt.Sprintf("switchover %s outside %s", q(v.Value, "V"), window)
+	case objectives.TargetTransitionWidthMax:
+		if math.IsNaN(v.Value) {
+			return fmt.Sprintf("transition_width none (no handover), wanted ≤ %s", q(v.Limit, "V"))
+		}
+		return fmt.Sprintf("transition_width %s > %s", q(v.Value, "V"), q(v.Limit, "V"))
+	case optimize.Level1Validity:
+		if math.IsNaN(v.Value) {
+			return "gm/I_D none (no pair conducts)"
+		}
+		return fmt.Sprintf("gm/I_D %s > %s (the level-1 model outside strong inversion)",
+			SI(v.Value, "/V", tableDigits), SI(v.Limit, "/V", tableDigits))
+	}
+	return fmt.Sprintf("%s %s (limit %s)", v.Target, SI(v.Value, "", tableDigits), SI(v.Limit, "", tableDigits))
+}
+
+// TargetTexts writes the spec's set targets for reading, one phrase each:
+// "gm_min ≥ 150 µS", "gm_ripple ≤ 20 %", "switchover 900 mV ± 100 mV".
+func TargetTexts(t objectives.Targets) []string {
+	var out []string
+	for _, n := range t.Names() {
+		switch n {
+		case objectives.TargetGMMin:
+			out = append(out, "gm_min ≥ "+SI(t.GMMin, "S", tableDigits))
+		case objectives.TargetGMRippleMax:
+			out = append(out, "gm_ripple ≤ "+Percent(t.GMRippleMax))
+		case objectives.TargetPowerMax:
+			out = append(out, "power ≤ "+SI(t.PowerMax, "W", tableDigits))
+		case objectives.TargetAreaMax:
+			out = append(out, "area ≤ "+areaText(t.AreaMax))
+		case objectives.TargetSwitchover:
+			out = append(out, fmt.Sprintf("switchover %s ± %s", SI(t.Switchover.At, "V", tableDigits),
+				SI(t.Switchover.Tolerance, "V", tableDigits)))
+		case objectives.TargetTransitionWidthMax:
+			out = append(out, "transition_width ≤ "+SI(t.TransitionWidthMax, "V", tableDigits))
+		}
+	}
+	return out
+}
+
+// processText names a spec's process for reading: "demo18 (ekv)".
+func processText(spec *objectives.Spec) string {
+	name := spec.ProcessRef
+	if spec.Process != nil {
+		name = spec.Process.Name
+		if spec.Process.Kind != "" {
+			name += " (" + spec.Process.Kind + ")"
+		}
+	}
+	return name
+}
+
+// familyIndex is a family's place in topologies.All(), which fixes its
+// colour and marker in every plot; -1 for an unknown name.
+func familyIndex(name string) int {
+	for i, n := range topologies.Names() {
+		if n == name {
+			return i
+		}
+	}
+	return -1
+}

@@ -1,0 +1,131 @@
+package report
+
+import (
+	"io"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"unicode/utf8"
+
+	"pairsmith/objectives"
+	"pairsmith/optimize"
+)
+
+// RunTable writes the outcome of a run for a terminal: a line with the
+// spec and its targets; the families ranked, each with its best candidate
+// that meets the spec (or its nearest miss and what that misses) and the
+// candidate's gm_min, ripple, power, area, switchover and id; a line with
+// the best candidate (or, when none meets the spec, the targets that bind
+// and the nearest candidate), where the run directory dir is, the
+// evaluations and their rate; and the caution.
+func RunTable(w io.Writer, res *optimize.StageResult, dir string) error {
+	e := &errWriter{w: w}
+	spec := res.Spec
+	e.printf("%s: %d families on %s, supply %s, %s, common mode %s … %s\n", oneLine(spec.Name), len(spec.Topologies),
+		processText(spec), SI(spec.Supply, "V", tableDigits), Celsius(spec.TempK),
+		SI(spec.Range.Low, "V", tableDigits), SI(spec.Range.High, "V", tableDigits))
+	if ts := TargetTexts(spec.Targets); len(ts) > 0 {
+		e.printf("targets: %s\n\n", strings.Join(ts, ", "))
+	} else {
+		e.printf("targets: none (trade-offs only)\n\n")
+	}
+	t := &textTable{right: []bool{true, false, false, true, true, true, true, true, false}}
+	t.add("rank", "topology", "status", "gm_min", "ripple", "power", "area", "switchover", "id")
+	// A note goes on a line of its own below row (counted from the
+	// header, 0).
+	type note struct {
+		row  int
+		text string
+	}
+	var notes []note
+	for _, f := range res.Families {
+		rank := strconv.Itoa(f.Rank)
+		c := f.Best
+		if c == nil {
+			t.add(rank, f.Topology, "no result", "—", "—", "—", "—", "—", "—")
+			notes = append(notes, note{len(t.rows) - 1, "every evaluation failed (no DC solution or an invalid sizing)"})
+			continue
+		}
+		status := "feasible"
+		if !c.Feasible {
+			status = "nearest miss"
+		}
+		m := c.Metrics
+		sw, _ := handoverParts(m.Switchover, false)
+		t.add(rank, f.Topology, status, SI(m.GMMin, "S", tableDigits), ripplePlain(m.GMRipple),
+			SI(m.Power, "W", tableDigits), areaText(m.Area), sw, c.ID)
+		if !c.Feasible {
+			notes = append(notes, note{len(t.rows) - 1, "misses " + strings.Join(MissTexts(spec, c.Violations), "; ")})
+		}
+	}
+	// Write the table with each note on a line of its own below its row,
+	// indented under the topology column.
+	lines := t.lines("  ")
+	indent := "  " + strings.Repeat(" ", runeWidth(t.rows, 0)+2)
+	next := 0
+	for i, l := range lines {
+		e.printf("%s\n", l)
+		for next < len(notes) && notes[next].row == i {
+			e.printf("%s%s\n", indent, notes[next].text)
+			next++
+		}
+	}
+	e.printf("\n")
+	front := 0
+	for _, c := range res.Candidates {
+		if c.Pareto {
+			front++
+		}
+	}
+	if b := res.Best; b != nil {
+		e.printf("best: %s (%s), score %s; %d candidates written, %d on the Pareto front\n",
+			b.ID, b.Topology, strconv.FormatFloat(b.Score, 'f', 3, 64), len(res.Candidates), front)
+	} else {
+		e.printf("no candidate meets the spec; the targets that bind: %s\n", strings.Join(res.Binding, ", "))
+		if near := nearest(res); near != nil {
+			e.printf("nearest: %s (%s) misses %s\n", near.ID, near.Topology, strings.Join(MissTexts(spec, near.Violations), "; "))
+		}
+		e.printf("%d candidates written (the nearest misses and each family's best)\n", len(res.Candidates))
+	}
+	e.printf("results in %s (open %s)\n", dir, filepath.Join(dir, ReportFile))
+	e.printf("%d evaluations in %.1f s, %.0f evaluations/s\n", res.Evaluations, res.Elapsed.Seconds(), Rate(res))
+	e.printf("\n%s\n", objectives.Caution)
+	return e.err
+}
+
+// nearest returns the reported candidate of least total violation.
+func nearest(res *optimize.StageResult) *optimize.StageCandidate {
+	var near *optimize.StageCandidate
+	for _, c := range res.Candidates {
+		if near == nil || objectives.TotalViolation(c.Violations) < objectives.TotalViolation(near.Violations) {
+			near = c
+		}
+	}
+	return near
+}
+
+// ripplePlain is a ripple for a table cell: "12.3 %", or "∞" when gm
+// falls to zero.
+func ripplePlain(r float64) string {
+	v, _ := rippleParts(r)
+	return v
+}
+
+// lines returns the table's lines as write writes them, without their
+// line ends.
+func (t *textTable) lines(indent string) []string {
+	var b strings.Builder
+	t.write(&errWriter{w: &b}, indent)
+	return strings.Split(strings.TrimSuffix(b.String(), "\n"), "\n")
+}
+
+// runeWidth returns the width of column col: its widest cell, in runes.
+func runeWidth(rows [][]string, col int) int {
+	w := 0
+	for _, r := range rows {
+		if col < len(r) {
+			w = max(w, utf8.RuneCountInString(r[col]))
+		}
+	}
+	return w
+}
