@@ -14,11 +14,11 @@ import (
 // search (GeneAS) for engineering design", Computer Science and
 // Informatics 26(4), 1996), both in the bounded forms NSGA-II uses.
 const (
-	etaCrossover = 15   // SBX distribution index
-	etaMutation  = 20   // polynomial mutation distribution index
-	pCrossVar    = 0.5  // chance that SBX touches a variable
-	pCrossover   = 0.9  // chance that a pair of parents is crossed
-	mutPerGenome = 1.0  // expected number of mutated variables per child
+	etaCrossover = 15  // SBX distribution index
+	etaMutation  = 20  // polynomial mutation distribution index
+	pCrossVar    = 0.5 // chance that SBX touches a variable
+	pCrossover   = 0.9 // chance that a pair of parents is crossed
+	mutPerGenome = 1.0 // expected number of mutated variables per child
 	eps          = 1e-14
 )
 

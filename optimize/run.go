@@ -589,8 +589,8 @@ func (r *runner) genetic(ctx context.Context, budget int) error {
 		return &genome{run: r, key: Key{Phase: r.phase, Gen: 0, Island: island, Slot: slot}, pt: Point{Family: island, X: x}}
 	}
 	conf := eaopt.GAConfig{
-		NPops:        uint(nf),
-		PopSize:      uint(pop),
+		NPops:   uint(nf),
+		PopSize: uint(pop),
 		// As many generations as the budget allows: retiring hopeless
 		// islands leaves more for the others, and EarlyStop ends the
 		// search once a generation could overrun the budget.
