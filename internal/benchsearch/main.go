@@ -29,8 +29,9 @@ func main() {
 	specs := flag.String("specs", "testdata/specs/strain-gauge.yaml,testdata/specs/sensor-l1.yaml", "comma-separated spec sheets")
 	budgets := flag.String("budgets", "1000,3000,10000", "comma-separated evaluation budgets")
 	seeds := flag.Int("seeds", 5, "seeds per case (medians are taken over them)")
+	verbose := flag.Bool("v", false, "also print every seed's hypervolume on stderr")
 	flag.Parse()
-	if err := run(strings.Split(*specs, ","), *budgets, *seeds); err != nil {
+	if err := run(strings.Split(*specs, ","), *budgets, *seeds, *verbose); err != nil {
 		fmt.Fprintln(os.Stderr, "benchsearch:", err)
 		os.Exit(1)
 	}
@@ -41,7 +42,7 @@ type cell struct {
 	first []int // 0 = no feasible design found
 }
 
-func run(specFiles []string, budgetList string, seeds int) error {
+func run(specFiles []string, budgetList string, seeds int, verbose bool) error {
 	var budgets []int
 	for _, b := range strings.Split(budgetList, ",") {
 		n, err := strconv.Atoi(strings.TrimSpace(b))
@@ -81,7 +82,7 @@ func run(specFiles []string, budgetList string, seeds int) error {
 					c.first = append(c.first, res.FirstFeasible)
 				}
 				cells[[2]int{bi, si}] = c
-				if os.Getenv("BENCH_VERBOSE") != "" {
+				if verbose {
 					fmt.Fprintf(os.Stderr, "%s %d %v: %.4f\n", file, budget, s, c.hv)
 				}
 			}
