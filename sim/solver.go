@@ -280,8 +280,6 @@ func (s *Solver) newton(vcm, vid, scale, gshunt float64, maxIter int) bool {
 			return false
 		}
 		luSolve(lu, n, n, s.piv, s.dx)
-		limited := false
-		converged := true
 		// Damping: a solve that has not converged in its first iterations
 		// is likely cycling between regions of the device equations;
 		// shortening its steps breaks the cycle (damped Newton, as in
@@ -304,50 +302,51 @@ func (s *Solver) newton(vcm, vid, scale, gshunt float64, maxIter int) bool {
 				damp = 1
 			}
 		}
-		for i := 0; i < n; i++ {
-			d := s.dx[i] * damp
-			if d != d || d-d != 0 { // NaN or ±Inf
-				return false
-			}
-			if damp != 1 {
-				limited = true
-			}
-			tol := o.AbsTol
-			if sys.isNode[i] {
-				if d > o.MaxStep {
-					d, limited = o.MaxStep, true
-				} else if d < -o.MaxStep {
-					d, limited = -o.MaxStep, true
-				}
-				s.dx[i] = d
-				tol = o.VnTol
-			}
-			old := s.v[i]
-			nv := old + d
-			s.v[i] = nv
-			ad, ao, an := d, old, nv
-			if ad < 0 {
-				ad = -ad
-			}
-			if ao < 0 {
-				ao = -ao
-			}
-			if an < 0 {
-				an = -an
-			}
-			if ao < an {
-				ao = an
-			}
-			if ad > o.RelTol*ao+tol {
-				converged = false
-			}
+		ok, converged, limited := s.applyStep(n, damp)
+		if !ok {
+			return false
 		}
+		limited = limited || damp != 1
 		if converged && !limited {
 			s.active = n
 			return true
 		}
 	}
 	return false
+}
+
+// applyStep adds the Newton step in s.dx[:m], times damp, to the first m
+// unknowns, each node voltage's change limited to MaxStep (the applied
+// step is left in s.dx). It reports false for a step that is not finite,
+// and whether every change was within the convergence tolerance and
+// whether any was limited.
+func (s *Solver) applyStep(m int, damp float64) (ok, converged, limited bool) {
+	sys, o := s.sys, &s.opt
+	converged = true
+	dx, v := s.dx[:m], s.v[:m]
+	for i := range dx {
+		d := dx[i] * damp
+		if d != d || d-d != 0 { // NaN or ±Inf
+			return false, false, false
+		}
+		tol := o.AbsTol
+		if sys.isNode[i] {
+			if d > o.MaxStep {
+				d, limited = o.MaxStep, true
+			} else if d < -o.MaxStep {
+				d, limited = -o.MaxStep, true
+			}
+			tol = o.VnTol
+		}
+		dx[i] = d
+		old := v[i]
+		nv := old + d
+		v[i] = nv
+		if math.Abs(d) > o.RelTol*math.Max(math.Abs(old), math.Abs(nv))+tol {
+			converged = false
+		}
+	}
+	return true, converged, limited
 }
 
 // newtonMoving is newton over the unknowns that move with the sweep only,
@@ -357,7 +356,6 @@ func (s *Solver) newtonMoving(vcm, vid float64, maxIter int) bool {
 	sys := s.sys
 	n, m := sys.n, sys.nD
 	s.setFixed(vcm, vid, 1)
-	o := &s.opt
 	for it := 0; it < maxIter; it++ {
 		s.iterations++
 		s.load(vcm, vid, 1, 0)
@@ -369,28 +367,9 @@ func (s *Solver) newtonMoving(vcm, vid float64, maxIter int) bool {
 			return false
 		}
 		luSolve(lu, m, n, s.piv, dx)
-		limited, converged := false, true
-		v := s.v[:m]
-		for i, d := range dx {
-			if d != d || d-d != 0 {
-				return false
-			}
-			tol := o.AbsTol
-			if sys.isNode[i] {
-				if d > o.MaxStep {
-					d, limited = o.MaxStep, true
-				} else if d < -o.MaxStep {
-					d, limited = -o.MaxStep, true
-				}
-				dx[i] = d
-				tol = o.VnTol
-			}
-			old := v[i]
-			nv := old + d
-			v[i] = nv
-			if math.Abs(d) > o.RelTol*max(math.Abs(old), math.Abs(nv))+tol {
-				converged = false
-			}
+		ok, converged, limited := s.applyStep(m, 1)
+		if !ok {
+			return false
 		}
 		if converged && !limited {
 			clear(s.dx[m:n])
