@@ -2,7 +2,6 @@ package objectives
 
 import (
 	"bytes"
-	"errors"
 	"fmt"
 	"path/filepath"
 	"sort"
@@ -81,36 +80,16 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 		}
 		return nil, m.Errorf("topology", "%s", want)
 	}
-	d.ProcessRef, _, err = m.String("process")
+	cond, err := readConditions(m, baseDir)
 	if err != nil {
 		return nil, err
 	}
-	d.Process, err = device.ResolveProcess(d.ProcessRef, baseDir)
-	if err != nil {
-		var ue *units.Error
-		if errors.As(err, &ue) {
-			return nil, err // an error inside the process file names its own place
-		}
-		return nil, &units.Error{File: m.File(), Line: m.Line("process"), Field: "process", Given: d.ProcessRef,
-			Want: "a built-in process (" + strings.Join(device.BuiltinNames(), ", ") + ") or the path of a process file", Err: err}
-	}
-	if d.Supply, _, err = m.Quantity("supply", units.Volt); err != nil {
-		return nil, err
-	}
-	if !(d.Supply > 0) || d.Supply > 20 {
-		return nil, m.Errorf("supply", "a supply voltage above 0 V and at most 20 V")
-	}
-	if d.TempK, err = m.QuantityOr("temperature", units.Temperature, 27+units.ZeroCelsius); err != nil {
-		return nil, err
-	}
-	if d.TempK < 200 || d.TempK > 500 {
-		return nil, m.Errorf("temperature", "a temperature from -73C to 226C")
-	}
+	d.ProcessRef, d.Process, d.Supply, d.TempK = cond.ProcessRef, cond.Process, cond.Supply, cond.TempK
 	d.Sweep = sim.SweepSpec{Low: 0, High: d.Supply, Step: DefaultStep}
 	if sw, ok, err := m.Map("sweep"); err != nil {
 		return nil, err
 	} else if ok {
-		if err := readSweep(sw, &d.Sweep, d.Supply); err != nil {
+		if d.Sweep.Low, d.Sweep.High, d.Sweep.Step, err = readRange(sw, d.Supply); err != nil {
 			return nil, err
 		}
 	}
@@ -174,45 +153,6 @@ func yamlScalar(s string) string {
 		return strconv.Quote(s)
 	}
 	return strings.TrimSuffix(string(out), "\n")
-}
-
-func readSweep(sw *units.Map, sp *sim.SweepSpec, supply float64) error {
-	if err := sw.Check("low", "high", "step"); err != nil {
-		return err
-	}
-	var err error
-	if sp.Low, err = sw.QuantityOr("low", units.Volt, 0); err != nil {
-		return err
-	}
-	if sp.High, err = sw.QuantityOr("high", units.Volt, supply); err != nil {
-		return err
-	}
-	if sp.Step, err = sw.QuantityOr("step", units.Volt, DefaultStep); err != nil {
-		return err
-	}
-	key := "high"
-	if !sw.Has("high") {
-		key = "low"
-	}
-	if sp.Low < -supply || sp.High > 2*supply {
-		bad := "high"
-		if sp.Low < -supply || !sw.Has("high") {
-			bad = "low"
-		}
-		return sw.Errorf(bad, "a sweep within -supply … 2·supply (%s … %s)",
-			units.Format(-supply, units.Volt), units.Format(2*supply, units.Volt))
-	}
-	if !(sp.High > sp.Low) {
-		return sw.Errorf(key, "low below high (low %s, high %s)",
-			units.Format(sp.Low, units.Volt), units.Format(sp.High, units.Volt))
-	}
-	if !(sp.Step > 0) {
-		return sw.Errorf("step", "a step above 0 V")
-	}
-	if (sp.High-sp.Low)/sp.Step > 1e6 {
-		return sw.Errorf("step", "a step giving at most a million points")
-	}
-	return nil
 }
 
 // Format writes the design as a design file that ReadDesign turns back

@@ -108,29 +108,24 @@ func Curve(st *topologies.Stage, res *sim.Result) []CurvePoint {
 func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 	c := st.Circuit
 	var m Metrics
-	m.GMMin, m.GMMax = math.Inf(1), math.Inf(-1)
-	for _, g := range res.GM {
+	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
+	m.GMMin, m.GMMax, m.GMOverIDMin = math.Inf(1), math.Inf(-1), math.Inf(1)
+	for i, g := range res.GM {
 		m.GMMin = math.Min(m.GMMin, g)
 		m.GMMax = math.Max(m.GMMax, g)
-	}
-	m.GMRipple = Ripple(m.GMMin, m.GMMax)
-	pw := c.ProbeIndex(topologies.ProbePower)
-	m.Power = 0
-	for _, p := range res.Probe[pw] {
-		m.Power = math.Max(m.Power, p)
-	}
-	for _, t := range c.Mosfets {
-		m.Area += t.Geom.Area()
-	}
-	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
-	m.GMOverIDMin = math.Inf(1)
-	for i, g := range res.GM {
 		if tot := in[i] + ip[i]; tot > 0 {
 			m.GMOverIDMin = math.Min(m.GMOverIDMin, 2*g/tot)
 		}
 	}
 	if math.IsInf(m.GMOverIDMin, 1) {
 		m.GMOverIDMin = math.NaN()
+	}
+	m.GMRipple = Ripple(m.GMMin, m.GMMax)
+	for _, p := range res.Probe[c.ProbeIndex(topologies.ProbePower)] {
+		m.Power = math.Max(m.Power, p)
+	}
+	for _, t := range c.Mosfets {
+		m.Area += t.Geom.Area()
 	}
 	m.Switchover, m.TransitionWidth = math.NaN(), math.NaN()
 	if st.PairN[0] != "" && st.PairP[0] != "" {
@@ -163,7 +158,7 @@ func Handover(vcm, in, ip []float64) (switchover, width float64) {
 	var (
 		first, prevX, prevS float64
 		num                 float64
-		lo, hi              = math.NaN(), math.NaN()
+		lo                  = math.NaN()
 		seen                int
 		crossHi             = math.NaN() // upward 90 % crossing after the last point below it
 	)
@@ -200,11 +195,8 @@ func Handover(vcm, in, ip []float64) (switchover, width float64) {
 		switchover = num / total
 	}
 	// The highest vcm still below 90 % is where the share last crosses
-	// 90 % upwards; a share that ends below 90 % has no such point.
-	if prevS >= 0.9 {
-		hi = crossHi
-	}
-	if !math.IsNaN(lo) && !math.IsNaN(hi) && hi >= lo {
+	// 90 % upwards (crossHi); a share that ends below 90 % has none.
+	if hi := crossHi; !math.IsNaN(lo) && !math.IsNaN(hi) && hi >= lo {
 		width = hi - lo
 	}
 	return switchover, width

@@ -202,28 +202,21 @@ func readSpec(m *units.Map, data []byte, baseDir string) (*Spec, error) {
 	} else if ok {
 		s.Name = name
 	}
-	if err := s.readProcess(m, baseDir); err != nil {
+	cond, err := readConditions(m, baseDir)
+	if err != nil {
 		return nil, err
 	}
-	var err error
-	if s.Supply, _, err = m.Quantity("supply", units.Volt); err != nil {
-		return nil, err
-	}
-	if !(s.Supply > 0) || s.Supply > 20 {
-		return nil, m.Errorf("supply", "a supply voltage above 0 V and at most 20 V")
-	}
-	if s.TempK, err = m.QuantityOr("temperature", units.Temperature, 27+units.ZeroCelsius); err != nil {
-		return nil, err
-	}
-	if s.TempK < 200 || s.TempK > 500 {
-		return nil, m.Errorf("temperature", "a temperature from -73C to 226C")
-	}
+	s.ProcessRef, s.ProcessPath, s.Process = cond.ProcessRef, cond.ProcessPath, cond.Process
+	s.Supply, s.TempK = cond.Supply, cond.TempK
 	s.Range, s.Step = Range{Low: 0, High: s.Supply}, DefaultStep
 	if rm, ok, err := m.Map("input_range"); err != nil {
 		return nil, err
 	} else if ok {
-		if err := s.readRange(rm); err != nil {
+		if s.Range.Low, s.Range.High, s.Step, err = readRange(rm, s.Supply); err != nil {
 			return nil, err
+		}
+		if span := s.Range.High - s.Range.Low; s.Step > span {
+			return nil, rm.Errorf("step", "a step no larger than the range (%s)", units.Format(span, units.Volt))
 		}
 	}
 	s.Targets = NoTargets()
@@ -278,74 +271,6 @@ func checkTop(m *units.Map) error {
 		}
 	}
 	return m.Check(specKeys()...)
-}
-
-func (s *Spec) readProcess(m *units.Map, baseDir string) error {
-	var err error
-	if s.ProcessRef, _, err = m.String("process"); err != nil {
-		return err
-	}
-	s.Process, err = device.ResolveProcess(s.ProcessRef, baseDir)
-	if err != nil {
-		var ue *units.Error
-		if errors.As(err, &ue) {
-			return err // an error inside the process file names its own place
-		}
-		return &units.Error{File: m.File(), Line: m.Line("process"), Field: "process", Given: s.ProcessRef,
-			Want: "a built-in process (" + strings.Join(device.BuiltinNames(), ", ") + ") or the path of a process file", Err: err}
-	}
-	if _, builtin := device.Builtin(s.ProcessRef); !builtin {
-		path := s.ProcessRef
-		if !filepath.IsAbs(path) {
-			path = filepath.Join(baseDir, path)
-		}
-		if abs, err := filepath.Abs(path); err == nil {
-			path = abs
-		}
-		s.ProcessPath = path
-	}
-	return nil
-}
-
-func (s *Spec) readRange(rm *units.Map) error {
-	if err := rm.Check(rangeKeys()...); err != nil {
-		return err
-	}
-	r := &s.Range
-	var err error
-	if r.Low, err = rm.QuantityOr("low", units.Volt, 0); err != nil {
-		return err
-	}
-	if r.High, err = rm.QuantityOr("high", units.Volt, s.Supply); err != nil {
-		return err
-	}
-	if s.Step, err = rm.QuantityOr("step", units.Volt, DefaultStep); err != nil {
-		return err
-	}
-	v := func(x float64) string { return units.Format(x, units.Volt) }
-	if r.Low < -s.Supply {
-		return rm.Errorf("low", "a low end at most the supply below the negative rail (at least %s)", v(-s.Supply))
-	}
-	if r.High > 2*s.Supply {
-		return rm.Errorf("high", "a high end at most the supply above the positive rail (at most %s)", v(2*s.Supply))
-	}
-	if !(r.High > r.Low) {
-		key := "high"
-		if !rm.Has("high") {
-			key = "low"
-		}
-		return rm.Errorf(key, "low below high (low %s, high %s)", v(r.Low), v(r.High))
-	}
-	if !(s.Step > 0) {
-		return rm.Errorf("step", "a step above 0 V, for example 10mV")
-	}
-	if s.Step > r.High-r.Low {
-		return rm.Errorf("step", "a step no larger than the range (%s)", v(r.High-r.Low))
-	}
-	if (r.High-r.Low)/s.Step > 1e6 {
-		return rm.Errorf("step", "a step giving at most a million points")
-	}
-	return nil
 }
 
 // checkTargetKeys rejects an unknown target, suggesting the _max form of a

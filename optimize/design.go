@@ -3,7 +3,6 @@ package optimize
 import (
 	"context"
 	"fmt"
-	"math"
 	"sort"
 	"time"
 
@@ -51,16 +50,11 @@ type StageResult struct {
 	Elapsed     time.Duration
 }
 
-// SearchOptions tune Search beyond the spec.
+// SearchOptions tune Search beyond the spec, whose search settings
+// (budget, seed, workers, time) it follows.
 type SearchOptions struct {
 	Strategy Strategy
 	Progress func(Progress)
-	// Evaluations, Seed, Workers and Time override the spec's search
-	// settings when set (non-zero).
-	Evaluations int
-	Seed        *int64
-	Workers     int
-	Time        time.Duration
 }
 
 // Search runs the spec's search and gathers the reported candidates.
@@ -73,24 +67,8 @@ func Search(ctx context.Context, spec *objectives.Spec, opt SearchOptions) (*Sta
 		Evaluations: spec.Search.Evaluations, Seed: spec.Search.Seed, Workers: spec.Search.Workers,
 		Strategy: opt.Strategy, Progress: opt.Progress,
 	}
-	limit := spec.Search.Time
-	if opt.Evaluations > 0 {
-		set.Evaluations = opt.Evaluations
-	}
-	if opt.Seed != nil {
-		set.Seed = *opt.Seed
-	}
-	if opt.Workers > 0 {
-		set.Workers = opt.Workers
-	}
-	if opt.Time > 0 {
-		limit = opt.Time
-	}
-	if limit > 0 {
-		set.Deadline = time.Now().Add(limit)
-		if spec.Search.Evaluations == 0 && opt.Evaluations == 0 {
-			set.Evaluations = math.MaxInt32 // a time budget alone
-		}
+	if spec.Search.Time > 0 {
+		set.Deadline = time.Now().Add(spec.Search.Time)
 	}
 	res, err := Run(ctx, prob, set)
 	if err != nil {

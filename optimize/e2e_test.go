@@ -26,7 +26,8 @@ func TestBestMeetsSpecInNgspice(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	res, err := optimize.Search(context.Background(), spec, optimize.SearchOptions{Evaluations: 3000})
+	spec.Search.Evaluations = 3000
+	res, err := optimize.Search(context.Background(), spec, optimize.SearchOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -82,7 +83,8 @@ func TestImpossibleSpecNamesBindingTargets(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	res, err := optimize.Search(context.Background(), spec, optimize.SearchOptions{Evaluations: 600})
+	spec.Search.Evaluations = 600
+	res, err := optimize.Search(context.Background(), spec, optimize.SearchOptions{})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -50,7 +50,7 @@ func (m *nsgaModel) Apply(pop *eaopt.Population) error {
 		return nil // the island is retired: it keeps its population
 	}
 	m.run.evaluateAll(parents) // migrants arrive unevaluated
-	if m.run.expired(m.run.ctx) {
+	if m.run.expired() {
 		return nil
 	}
 	rank, crowd := rankCrowd(parents)

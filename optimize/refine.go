@@ -1,7 +1,6 @@
 package optimize
 
 import (
-	"context"
 	"math"
 	"math/rand"
 	"sort"
@@ -47,13 +46,13 @@ type start struct {
 // candidates (the Nelder–Mead-only strategy) the starts are each family's
 // defaults and random points. The refined objective is Score plus a penalty
 // on the violation.
-func (r *runner) refine(ctx context.Context, budget int, fromDefaults bool) error {
-	if budget <= 0 || r.expired(ctx) {
+func (r *runner) refine(budget int, fromDefaults bool) error {
+	if budget <= 0 || r.expired() {
 		return nil
 	}
 	var starts []start
 	if fromDefaults {
-		starts = r.defaultStarts(ctx)
+		starts = r.defaultStarts()
 		budget -= len(r.fams) // the probes of the defaults
 	} else {
 		starts = r.refineStarts(budget)
@@ -75,8 +74,7 @@ func (r *runner) refine(ctx context.Context, budget int, fromDefaults bool) erro
 		go func(i int, st start, b int) {
 			defer wg.Done()
 			defer func() { <-sem }()
-			run := i
-			r.nelderMead(ctx, st, b, func(step int) Key { return Key{Phase: r.phase, Gen: step, Island: run} })
+			r.nelderMead(st, b, i)
 		}(i, st, b)
 	}
 	wg.Wait()
@@ -88,35 +86,26 @@ func (r *runner) refine(ctx context.Context, budget int, fromDefaults bool) erro
 // each family that is not hopeless: when some default is feasible, the
 // families whose default misses by more than retireRatio are left to the
 // islands, which will retire them unless they improve.
-func (r *runner) defaultStarts(ctx context.Context) []start {
+func (r *runner) defaultStarts() []start {
 	rng := rand.New(rand.NewSource(r.set.Seed))
-	st, isStarter := r.prob.(Starter)
 	probes := make([]*genome, len(r.fams))
+	outs := make([]Outcome, len(r.fams))
 	for f := range r.fams {
-		x := make([]float64, r.fams[f].Dim)
-		if def, ok := r.starterPoint(st, isStarter, f); ok {
-			copy(x, def)
-		} else {
-			for i := range x {
-				x[i] = rng.Float64()
-			}
-		}
-		probes[f] = &genome{run: r, key: Key{Phase: r.phase, Gen: -1, Island: f}, pt: Point{Family: f, X: x}}
+		probes[f] = &genome{run: r, key: Key{Phase: r.phase, Gen: -1, Island: f}, pt: Point{Family: f, X: r.startPoint(f, rng)}}
 	}
-	if r.expired(ctx) {
+	if r.expired() {
 		return nil
 	}
 	r.evaluateAll(probes)
-	anyFeasible := false
-	for _, g := range probes {
-		anyFeasible = anyFeasible || g.out.Feasible()
+	for f, g := range probes {
+		outs[f] = *g.out
 	}
+	hopeless := hopelessFamilies(outs, len(r.fams), func(i int) int { return i })
 	var starts []start
-	for _, g := range probes {
-		if anyFeasible && (g.out.Failed || g.out.Violation() > retireRatio) {
-			continue
+	for f, g := range probes {
+		if !hopeless[f] {
+			starts = append(starts, start{pt: g.pt.Clone()})
 		}
-		starts = append(starts, start{pt: g.pt.Clone()})
 	}
 	return starts
 }
@@ -141,9 +130,8 @@ func (r *runner) refineStarts(budget int) []start {
 		for k := 0; k < n; k++ {
 			f := k % len(r.fams)
 			x := make([]float64, r.fams[f].Dim)
-			st, isStarter := r.prob.(Starter)
-			if def, ok := r.starterPoint(st, isStarter, f); k < len(r.fams) && ok {
-				copy(x, def)
+			if k < len(r.fams) {
+				x = r.startPoint(f, rng)
 			} else {
 				for i := range x {
 					x[i] = rng.Float64()
@@ -154,7 +142,7 @@ func (r *runner) refineStarts(budget int) []start {
 		return starts
 	}
 
-	res := (&runner{fams: r.fams, scales: r.scales, all: all}).result()
+	res := summarize(all, len(r.fams), r.scales)
 	// Families, best first.
 	bests := append([]FamilyBest(nil), res.BestOf...)
 	sort.SliceStable(bests, func(i, j int) bool {
@@ -183,7 +171,7 @@ func (r *runner) refineStarts(budget int) []start {
 			used[c.Key] = true
 			w := make([]float64, len(c.Outcome.Objectives))
 			for i, f := range c.Outcome.Objectives {
-				w[i] = 1 / (math.Abs(f/r.scale(i)) + 0.05)
+				w[i] = 1 / (math.Abs(f/r.scales[i]) + 0.05)
 			}
 			starts = append(starts, start{pt: c.Point.Clone(), weights: w})
 		}
@@ -191,7 +179,9 @@ func (r *runner) refineStarts(budget int) []start {
 	return starts
 }
 
-func (r *runner) starterPoint(st Starter, ok bool, f int) ([]float64, bool) {
+// defaults returns family f's defaults when the problem knows them.
+func (r *runner) defaults(f int) ([]float64, bool) {
+	st, ok := r.prob.(Starter)
 	if !ok {
 		return nil, false
 	}
@@ -199,11 +189,16 @@ func (r *runner) starterPoint(st Starter, ok bool, f int) ([]float64, bool) {
 	return x, ok && len(x) == r.fams[f].Dim
 }
 
-func (r *runner) scale(i int) float64 {
-	if i < len(r.scales) && r.scales[i] > 0 {
-		return r.scales[i]
+// startPoint returns family f's defaults or, without them, a random point.
+func (r *runner) startPoint(f int, rng *rand.Rand) []float64 {
+	if def, ok := r.defaults(f); ok {
+		return append([]float64(nil), def...)
 	}
-	return 1
+	x := make([]float64, r.fams[f].Dim)
+	for i := range x {
+		x[i] = rng.Float64()
+	}
+	return x
 }
 
 // refined is the objective a refinement run minimises.
@@ -214,16 +209,16 @@ func (r *runner) refined(o Outcome, weights []float64) float64 {
 	return Score(o.Objectives, r.scales, weights) + penaltyWeight*o.Violation()
 }
 
-// nelderMead runs one refinement of at most budget evaluations: Nelder–Mead
-// from the start and, each time it converges with budget left, again from
-// the best point with a fresh, smaller simplex (a restart recovers from a
-// collapsed simplex, a known weakness of the method).
-func (r *runner) nelderMead(ctx context.Context, st start, budget int, keyOf func(step int) Key) ([]float64, *Outcome) {
+// nelderMead runs refinement run number run, of at most budget
+// evaluations: Nelder–Mead from the start and, each time it converges with
+// budget left, again from the best point with a fresh, smaller simplex (a
+// restart recovers from a collapsed simplex, a known weakness of the
+// method).
+func (r *runner) nelderMead(st start, budget, run int) {
 	fam := st.pt.Family
 	d := len(st.pt.X)
 	evals := 0
 	best, bestX := math.Inf(1), append([]float64(nil), st.pt.X...)
-	var bestOut *Outcome
 	cache := map[string]float64{}
 	f := func(y []float64) float64 {
 		x := make([]float64, d)
@@ -235,16 +230,13 @@ func (r *runner) nelderMead(ctx context.Context, st start, budget int, keyOf fun
 		k := pointKey(x)
 		v, ok := cache[k]
 		if !ok {
-			if evals >= budget || r.expired(ctx) {
+			if evals >= budget || r.expired() {
 				return best + boxWeight*out + 1 // out of budget: no better than the best
 			}
-			o := r.evaluate(keyOf(evals), Point{Family: fam, X: x})
+			o := r.evaluate(Key{Phase: r.phase, Gen: evals, Island: run}, Point{Family: fam, X: x})
 			evals++
 			v = r.refined(o, st.weights)
 			cache[k] = v
-			if v < best {
-				bestOut = &o
-			}
 		}
 		if v < best {
 			best = v
@@ -253,7 +245,7 @@ func (r *runner) nelderMead(ctx context.Context, st start, budget int, keyOf fun
 		return v + boxWeight*out
 	}
 	size := simplexSize
-	for restart := 0; evals < budget && !r.expired(ctx) && size > 1e-6; restart++ {
+	for restart := 0; evals < budget && !r.expired() && size > 1e-6; restart++ {
 		before, used := best, evals
 		settings := &gopt.Settings{
 			FuncEvaluations: 4*budget + 8*(d+1), // the budget itself is enforced in f
@@ -266,7 +258,6 @@ func (r *runner) nelderMead(ctx context.Context, st start, budget int, keyOf fun
 			size /= 4 // no progress: look closer
 		}
 	}
-	return bestX, bestOut
 }
 
 // pointKey identifies a point exactly, for the per-run cache.

@@ -240,7 +240,11 @@ func Run(ctx context.Context, prob Problem, set Settings) (*Result, error) {
 		r.scales[i] = 1
 	}
 	if sc, ok := prob.(Scaler); ok {
-		copy(r.scales, sc.Scales())
+		for i, v := range sc.Scales() {
+			if i < len(r.scales) && v > 0 {
+				r.scales[i] = v
+			}
+		}
 	}
 	var err error
 	switch set.Strategy {
@@ -259,19 +263,19 @@ func Run(ctx context.Context, prob Problem, set Settings) (*Result, error) {
 			first, ga = 0, set.Evaluations // too small a budget to share
 		}
 		r.phase = 0
-		if err = r.refine(ctx, first, true); err == nil {
+		if err = r.refine(first, true); err == nil {
 			r.phase = 1
-			if err = r.genetic(ctx, ga); err == nil {
+			if err = r.genetic(ga); err == nil {
 				r.phase = 2
-				err = r.refine(ctx, set.Evaluations-r.count(), false)
+				err = r.refine(set.Evaluations-r.count(), false)
 			}
 		}
 	case Genetic:
-		err = r.genetic(ctx, set.Evaluations)
+		err = r.genetic(set.Evaluations)
 	case NelderMead:
-		err = r.refine(ctx, set.Evaluations, false)
+		err = r.refine(set.Evaluations, false)
 	case Random:
-		err = r.random(ctx, set.Evaluations)
+		err = r.random(set.Evaluations)
 	default:
 		err = fmt.Errorf("optimize: unknown strategy %v", set.Strategy)
 	}
@@ -289,11 +293,8 @@ func (r *runner) count() int {
 }
 
 // expired reports whether the context or the deadline ends the search.
-func (r *runner) expired(ctx context.Context) bool {
-	if ctx == nil {
-		ctx = r.ctx
-	}
-	if ctx.Err() != nil {
+func (r *runner) expired() bool {
+	if r.ctx.Err() != nil {
 		return true
 	}
 	if !r.set.Deadline.IsZero() && time.Now().After(r.set.Deadline) {
@@ -358,10 +359,10 @@ func (r *runner) evaluateAll(gs []*genome) {
 
 // random spends the budget on uniform random points, round robin over
 // the families.
-func (r *runner) random(ctx context.Context, budget int) error {
+func (r *runner) random(budget int) error {
 	rng := rand.New(rand.NewSource(r.set.Seed))
 	const batch = 64
-	for done := 0; done < budget && !r.expired(ctx); done += batch {
+	for done := 0; done < budget && !r.expired(); done += batch {
 		var gs []*genome
 		for k := done; k < min(done+batch, budget); k++ {
 			f := k % len(r.fams)
@@ -379,10 +380,19 @@ func (r *runner) random(ctx context.Context, budget int) error {
 // result assembles the Result from every evaluation, in Key order.
 func (r *runner) result() *Result {
 	r.mu.Lock()
-	defer r.mu.Unlock()
 	all := append([]Candidate(nil), r.all...)
+	stopped := r.stopped
+	r.mu.Unlock()
 	sort.Slice(all, func(i, j int) bool { return all[i].Key.less(all[j].Key) })
-	res := &Result{All: all, Evaluations: len(all), Elapsed: time.Since(r.start), Stopped: r.stopped}
+	res := summarize(all, len(r.fams), r.scales)
+	res.Elapsed, res.Stopped = time.Since(r.start), stopped
+	return res
+}
+
+// summarize gathers the front, the nearest misses, each family's best and
+// the first feasible evaluation of candidates in Key order.
+func summarize(all []Candidate, nfam int, scales []float64) *Result {
+	res := &Result{All: all, Evaluations: len(all)}
 	var feas []Candidate
 	var infeas []Candidate
 	for i, c := range all {
@@ -412,22 +422,20 @@ func (r *runner) result() *Result {
 			res.Front = append(res.Front, feas[i])
 		}
 		sort.SliceStable(res.Front, func(i, j int) bool {
-			return Score(res.Front[i].Outcome.Objectives, r.scales, nil) < Score(res.Front[j].Outcome.Objectives, r.scales, nil)
+			return Score(res.Front[i].Outcome.Objectives, scales, nil) < Score(res.Front[j].Outcome.Objectives, scales, nil)
 		})
 	}
 	sort.SliceStable(infeas, func(i, j int) bool { return infeas[i].Outcome.Violation() < infeas[j].Outcome.Violation() })
 	res.Nearest = infeas[:min(len(infeas), NearestKept)]
-	for f := range r.fams {
-		fb := FamilyBest{Family: f}
-		for _, c := range all {
-			if c.Point.Family != f || c.Outcome.Failed {
-				continue
-			}
-			if !fb.OK || better(c.Outcome, fb.Candidate.Outcome, r.scales) {
-				fb.Candidate, fb.OK = c, true
-			}
+	res.BestOf = make([]FamilyBest, nfam)
+	for f := range res.BestOf {
+		res.BestOf[f].Family = f
+	}
+	for _, c := range all {
+		fb := &res.BestOf[c.Point.Family]
+		if !c.Outcome.Failed && (!fb.OK || better(c.Outcome, fb.Candidate.Outcome, scales)) {
+			fb.Candidate, fb.OK = c, true
 		}
-		res.BestOf = append(res.BestOf, fb)
 	}
 	return res
 }
@@ -456,7 +464,6 @@ func (r *runner) seedPoints(k int) [][][]float64 {
 	r.mu.Unlock()
 	sort.Slice(all, func(i, j int) bool { return all[i].Key.less(all[j].Key) })
 	out := make([][][]float64, len(r.fams))
-	st, isStarter := r.prob.(Starter)
 	for f := range r.fams {
 		var mine []Candidate
 		for _, c := range all {
@@ -469,7 +476,7 @@ func (r *runner) seedPoints(k int) [][][]float64 {
 			out[f] = append(out[f], append([]float64(nil), c.Point.X...))
 		}
 		if len(out[f]) == 0 {
-			if def, ok := r.starterPoint(st, isStarter, f); ok {
+			if def, ok := r.defaults(f); ok {
 				out[f] = append(out[f], def)
 			}
 		}
@@ -477,76 +484,54 @@ func (r *runner) seedPoints(k int) [][][]float64 {
 	return out
 }
 
-// retireFromHistory retires, before the islands start, the families that
-// earlier phases showed hopeless (see retire).
-func (r *runner) retireFromHistory() {
-	r.mu.Lock()
-	defer r.mu.Unlock()
-	least := make([]float64, len(r.fams))
-	seen := make([]bool, len(r.fams))
-	for i := range least {
-		least[i] = math.Inf(1)
-	}
-	anyFeasible := false
-	for _, c := range r.all {
-		if c.Outcome.Failed {
-			continue
-		}
-		f := c.Point.Family
-		seen[f] = true
-		least[f] = math.Min(least[f], c.Outcome.Violation())
-		anyFeasible = anyFeasible || c.Outcome.Violation() == 0
-	}
-	if !anyFeasible {
-		return
-	}
-	for f := range r.fams {
-		if seen[f] && least[f] > retireRatio {
-			r.retired[f] = true
-		}
-	}
-}
-
 // retireAfter is the generation from which hopeless islands retire, and
-// retireRatio how much worse than the best island's an island's least
-// violation must be, with another island feasible, to be hopeless.
+// retireRatio the least violation above which a family is hopeless while
+// another is feasible: ten times that of a target missed by its whole
+// limit, a single pair asked for a rail-to-rail range, say.
 const (
 	retireAfter = 3
 	retireRatio = 10
 )
 
-// retire, called between generations (so deterministically), stops
-// spending on islands that have found nothing feasible while another has,
-// and whose least violation is far from feasible (retireRatio times the
-// violation of a target missed by its whole limit): a single pair asked
-// for a rail-to-rail range, say.
-func (r *runner) retire(ga *eaopt.GA) {
-	if int(ga.Generations) < retireAfter {
-		return
+// hopelessFamilies marks the families of nfam that were evaluated and
+// whose outcomes (family of outcome i given by familyOf) all fail or miss
+// by more than retireRatio, when some outcome is feasible; with none
+// feasible, none is hopeless.
+func hopelessFamilies(outs []Outcome, nfam int, familyOf func(i int) int) []bool {
+	least := make([]float64, nfam)
+	seen := make([]bool, nfam)
+	for f := range least {
+		least[f] = math.Inf(1)
 	}
 	anyFeasible := false
-	least := make([]float64, len(ga.Populations))
-	for i, p := range ga.Populations {
-		least[i] = math.Inf(1)
-		for _, ind := range p.Individuals {
-			g := ind.Genome.(*genome)
-			if g.out == nil || g.out.Failed {
-				continue
-			}
-			v := g.out.Violation()
-			least[i] = math.Min(least[i], v)
-			if v == 0 {
-				anyFeasible = true
-			}
+	for i, o := range outs {
+		f := familyOf(i)
+		seen[f] = true
+		if o.Failed {
+			continue
 		}
+		least[f] = math.Min(least[f], o.Violation())
+		anyFeasible = anyFeasible || o.Violation() == 0
 	}
-	if !anyFeasible {
-		return
+	hopeless := make([]bool, nfam)
+	for f := range hopeless {
+		hopeless[f] = anyFeasible && seen[f] && least[f] > retireRatio
 	}
-	for i := range ga.Populations {
-		if least[i] > retireRatio {
-			r.retired[i] = true
-		}
+	return hopeless
+}
+
+// retire stops spending on the families that every evaluation so far
+// shows hopeless. It runs before the islands start and between
+// generations, when no evaluation is under way, so deterministically.
+func (r *runner) retire() {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	outs := make([]Outcome, len(r.all))
+	for i, c := range r.all {
+		outs[i] = c.Outcome
+	}
+	for f, h := range hopelessFamilies(outs, len(r.fams), func(i int) int { return r.all[i].Point.Family }) {
+		r.retired[f] = r.retired[f] || h
 	}
 }
 
@@ -554,7 +539,7 @@ func (r *runner) retire(ga *eaopt.GA) {
 const minPop = 8
 
 // genetic runs the islands with eaopt within the budget.
-func (r *runner) genetic(ctx context.Context, budget int) error {
+func (r *runner) genetic(budget int) error {
 	nf := len(r.fams)
 	// Population ~ 1.2·√(budget per island): enough generations to converge
 	// and enough members to spread along a front.
@@ -570,7 +555,7 @@ func (r *runner) genetic(ctx context.Context, budget int) error {
 	r.retired = make([]bool, nf)
 	limit := r.count() + budget
 	seeds := r.seedPoints(2)
-	r.retireFromHistory()
+	r.retire()
 	made := 0
 	newGenome := func(rng *rand.Rand) eaopt.Genome {
 		island := made / pop
@@ -606,9 +591,13 @@ func (r *runner) genetic(ctx context.Context, budget int) error {
 					active++
 				}
 			}
-			return r.expired(ctx) || gens < 1 || r.count()+active*pop > limit
+			return r.expired() || gens < 1 || r.count()+active*pop > limit
 		},
-		Callback: func(ga *eaopt.GA) { r.retire(ga) },
+		Callback: func(ga *eaopt.GA) {
+			if int(ga.Generations) >= retireAfter {
+				r.retire()
+			}
+		},
 	}
 	if n, ok := r.prob.(Namer); ok && nf > 1 {
 		conf.Migrator = &translatingMigrator{run: r, names: n}

@@ -88,10 +88,10 @@ func TestNelderMeadOnFunctions(t *testing.T) {
 	}
 }
 
-// rastrigin is L. A. Rastrigin's multimodal function, 10·n + Σ (x² −
-// 10·cos 2πx), minimum 0 at the origin, local minima near every integer
-// point, the nearest ones at about 0.995 (from the formula: one coordinate
-// at ≈ ±0.995).
+// rastrigin is L. A. Rastrigin's multimodal function (the standard test
+// function; from memory), 10·n + Σ (x² − 10·cos 2πx), minimum 0 at the
+// origin, local minima near every integer point, the nearest ones at about
+// 0.995 (from the formula: one coordinate at ≈ ±0.995).
 func rastrigin(x []float64) float64 {
 	s := 10 * float64(len(x))
 	for _, v := range x {

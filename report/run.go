@@ -121,26 +121,22 @@ func WriteRun(dir string, res *optimize.StageResult, opt RunOptions) error {
 	if err := write(ParetoCSVFile, csvData); err != nil {
 		return err
 	}
-	pareto, err := ParetoFigure(res)
-	if err != nil {
-		return fmt.Errorf("write run: %s: %w", ParetoPlotFile, err)
+	plotSVG := func(name string, draw func(*optimize.StageResult) (*Figure, error)) ([]byte, error) {
+		f, err := draw(res)
+		if err == nil {
+			var svg []byte
+			if svg, err = f.Render("svg"); err == nil {
+				return svg, write(name, svg)
+			}
+		}
+		return nil, fmt.Errorf("write run: %s: %w", name, err)
 	}
-	paretoSVG, err := pareto.Render("svg")
+	paretoSVG, err := plotSVG(ParetoPlotFile, ParetoFigure)
 	if err != nil {
-		return fmt.Errorf("write run: %s: %w", ParetoPlotFile, err)
-	}
-	if err := write(ParetoPlotFile, paretoSVG); err != nil {
 		return err
 	}
-	curves, err := CurvesFigure(res)
+	curvesSVG, err := plotSVG(CurvesPlotFile, CurvesFigure)
 	if err != nil {
-		return fmt.Errorf("write run: %s: %w", CurvesPlotFile, err)
-	}
-	curvesSVG, err := curves.Render("svg")
-	if err != nil {
-		return fmt.Errorf("write run: %s: %w", CurvesPlotFile, err)
-	}
-	if err := write(CurvesPlotFile, curvesSVG); err != nil {
 		return err
 	}
 	page, err := RunPage(res, opt, paretoSVG, curvesSVG)

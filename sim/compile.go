@@ -37,7 +37,6 @@ type fixedNode struct {
 	sign   float64
 	drive  Drive
 	dm     float64 // d v / d vid, accumulated along the chain
-	row    int     // compact residual row, or the trash row
 }
 
 type mosStamp struct {
@@ -100,15 +99,9 @@ type flatTerm struct {
 // trashSlots is the size of the work and residual arrays' trash areas.
 const trashSlots = 8
 
-type eCol struct {
-	idx int     // variable
-	e   float64 // its d v / d vid
-}
-
 type system struct {
 	c      *Circuit
 	n, N   int
-	nu     int    // how many unknowns are node voltages
 	nD     int    // unknowns [0, nD) move with the sweep; [nD, n) do not
 	isNode []bool // for each unknown, whether it is a node voltage
 	idx    []int  // node → variable index
@@ -126,13 +119,13 @@ type system struct {
 	output     int          // probe index or -1
 
 	// Compact layout (see the comment at the top of the file).
-	eCols  []eCol
+	eIdx   []int // the fixed variables that move with vid (JE's columns)
 	needed []int // fixed nodes whose delivered current is read, parents first
 	// parentQ[q] is the position in needed of needed[q]'s parent, or -1;
 	// chains says whether any is not -1.
 	parentQ []int
 	chains  bool
-	eVal    []float64 // d v / d vid of each eCol
+	eVal    []float64 // d v / d vid of each eIdx
 	moves   []bool    // for each fixed node, whether it moves with the sweep
 	nE, nF  int
 	oJE     int
@@ -238,7 +231,14 @@ func compile(c *Circuit) (*system, error) {
 	// are the unfixed nodes ("things" 0…nNodes−1) and the branch currents
 	// of floating sources and VCVSs (things nNodes…).
 	nb := len(floating) + len(c.VCVSs)
-	dyn := movingUnknowns(c, fixedOf, s.fixed, floating)
+	// A fixed node moves if any source on its chain to ground has a
+	// sweep-dependent drive.
+	s.moves = make([]bool, len(s.fixed))
+	for k := 1; k < len(s.fixed); k++ {
+		f := s.fixed[k]
+		s.moves[k] = s.moves[f.parent] || f.drive.CM != 0 || f.drive.DM != 0
+	}
+	dyn := movingUnknowns(c, fixedOf, s.moves, floating)
 	s.idx = make([]int, nNodes)
 	branchIdx := make([]int, nb)
 	var order []int
@@ -263,7 +263,6 @@ func compile(c *Circuit) (*system, error) {
 		if th < nNodes {
 			s.idx[th] = v
 			s.isNode[v] = true
-			s.nu++
 		} else {
 			branchIdx[th-nNodes] = v
 		}
@@ -277,13 +276,11 @@ func compile(c *Circuit) (*system, error) {
 			s.fixed[f].idx = s.n + f
 		}
 	}
-	s.moves = make([]bool, len(s.fixed))
 	for k := range s.fixed {
 		f := &s.fixed[k]
 		if f.parent >= 0 {
 			f.dm = s.fixed[f.parent].dm + f.sign*f.drive.DM
 			s.srcOf[f.src] = sourceRef{kind: 0, index: k, sign: -f.sign}
-			s.moves[k] = s.moves[f.parent] || f.drive.CM != 0 || f.drive.DM != 0
 		}
 	}
 	if err := s.resolveProbes(); err != nil {
@@ -451,7 +448,8 @@ func (s *system) resolveProbes() error {
 func (s *system) layout() {
 	for _, f := range s.fixed {
 		if f.dm != 0 {
-			s.eCols = append(s.eCols, eCol{idx: f.idx, e: f.dm})
+			s.eIdx = append(s.eIdx, f.idx)
+			s.eVal = append(s.eVal, f.dm)
 		}
 	}
 	want := make([]bool, len(s.fixed))
@@ -483,9 +481,8 @@ func (s *system) layout() {
 			s.needed = append(s.needed, k)
 		}
 	}
-	for e, ec := range s.eCols {
-		s.colOf[ec.idx] = s.n + e
-		s.eVal = append(s.eVal, ec.e)
+	for e, v := range s.eIdx {
+		s.colOf[v] = s.n + e
 	}
 	pos := map[int]int{}
 	for q, k := range s.needed {
@@ -499,16 +496,13 @@ func (s *system) layout() {
 		s.parentQ = append(s.parentQ, pq)
 		s.chains = s.chains || pq >= 0
 	}
-	s.nE, s.nF = len(s.eCols), len(s.needed)
+	s.nE, s.nF = len(s.eIdx), len(s.needed)
 	s.oJE = s.n * s.n
 	s.oF = s.oJE + s.n*s.nE
 	s.oFE = s.oF + s.nF*s.n
 	s.trash = s.oFE + s.nF*s.nE
 	s.rTrash = s.n + s.nF
 	s.base = make([]float64, s.trash+trashSlots)
-	for k := range s.fixed {
-		s.fixed[k].row = s.rrow(s.fixed[k].idx)
-	}
 }
 
 // movingUnknowns finds which unknowns can move with the sweep: those whose
@@ -518,16 +512,9 @@ func (s *system) layout() {
 // from its first point. Things are indexed as nodes 0…nNodes−1, then the
 // branch currents of the floating sources and VCVSs; the result is
 // meaningful for unknown things only.
-func movingUnknowns(c *Circuit, fixedOf []int, fixed []fixedNode, floating []int) []bool {
+func movingUnknowns(c *Circuit, fixedOf []int, moves []bool, floating []int) []bool {
 	nNodes := len(c.names)
 	nThings := nNodes + len(floating) + len(c.VCVSs)
-	// A fixed node moves if any source on its chain to ground has a
-	// sweep-dependent drive.
-	moves := make([]bool, len(fixed))
-	for k := 1; k < len(fixed); k++ {
-		f := fixed[k]
-		moves[k] = moves[f.parent] || f.drive.CM != 0 || f.drive.DM != 0
-	}
 	dyn := make([]bool, nThings)
 	deps := make([][]int, nThings) // row thing → column things it depends on
 	dep := func(rows []int, cols ...int) {

@@ -256,30 +256,37 @@ func (s *Solver) load(vcm, vid, scale, gshunt float64) {
 	}
 }
 
-// newton iterates from the present s.v. On success the LU factors of the
-// Jacobian at the last evaluation are in the J part of s.w, the rest of
-// s.w and s.r hold that evaluation, and s.dx the final (applied) step.
+// newton iterates from the present s.v over every unknown. On success the
+// LU factors of the Jacobian at the last evaluation are in the J part of
+// s.w, the rest of s.w and s.r hold that evaluation, and s.dx the final
+// (applied) step.
 func (s *Solver) newton(vcm, vid, scale, gshunt float64, maxIter int) bool {
-	sys := s.sys
-	n := sys.n
+	return s.iterate(s.sys.n, vcm, vid, scale, gshunt, maxIter)
+}
+
+// newtonMoving is newton over the unknowns that move with the sweep only,
+// the others kept at their values: the continuation step of a sweep once
+// its first point has solved the bias branches. Its factors are the
+// leading nD×nD block of J.
+func (s *Solver) newtonMoving(vcm, vid float64, maxIter int) bool {
+	return s.iterate(s.sys.nD, vcm, vid, 1, 0, maxIter)
+}
+
+// iterate is Newton's method over the first m unknowns.
+func (s *Solver) iterate(m int, vcm, vid, scale, gshunt float64, maxIter int) bool {
+	n := s.sys.n
 	s.setFixed(vcm, vid, scale)
-	if n == 0 {
-		s.load(vcm, vid, scale, gshunt)
-		s.active = 0
-		return true
-	}
-	o := &s.opt
-	lu := s.w[:n*n]
+	lu, dx := s.w[:n*n], s.dx[:m]
 	for it := 0; it < maxIter; it++ {
 		s.iterations++
 		s.load(vcm, vid, scale, gshunt)
-		for i := 0; i < n; i++ {
-			s.dx[i] = -s.r[i]
+		for i := range dx {
+			dx[i] = -s.r[i]
 		}
-		if !luFactor(lu, n, n, s.piv) {
+		if !luFactor(lu, m, n, s.piv) {
 			return false
 		}
-		luSolve(lu, n, n, s.piv, s.dx)
+		luSolve(lu, m, n, s.piv, dx)
 		// Damping: a solve that has not converged in its first iterations
 		// is likely cycling between regions of the device equations;
 		// shortening its steps breaks the cycle (damped Newton, as in
@@ -289,85 +296,7 @@ func (s *Solver) newton(vcm, vid, scale, gshunt float64, maxIter int) bool {
 		if it >= dampAfter {
 			damp = 0.5
 		}
-		if damp != 1 {
-			// Converged steps are taken whole; the others are shortened.
-			small := true
-			for i := 0; i < n; i++ {
-				if math.Abs(s.dx[i]) > o.RelTol*math.Abs(s.v[i])+o.VnTol {
-					small = false
-					break
-				}
-			}
-			if small {
-				damp = 1
-			}
-		}
-		ok, converged, limited := s.applyStep(n, damp)
-		if !ok {
-			return false
-		}
-		limited = limited || damp != 1
-		if converged && !limited {
-			s.active = n
-			return true
-		}
-	}
-	return false
-}
-
-// applyStep adds the Newton step in s.dx[:m], times damp, to the first m
-// unknowns, each node voltage's change limited to MaxStep (the applied
-// step is left in s.dx). It reports false for a step that is not finite,
-// and whether every change was within the convergence tolerance and
-// whether any was limited.
-func (s *Solver) applyStep(m int, damp float64) (ok, converged, limited bool) {
-	sys, o := s.sys, &s.opt
-	converged = true
-	dx, v := s.dx[:m], s.v[:m]
-	for i := range dx {
-		d := dx[i] * damp
-		if d != d || d-d != 0 { // NaN or ±Inf
-			return false, false, false
-		}
-		tol := o.AbsTol
-		if sys.isNode[i] {
-			if d > o.MaxStep {
-				d, limited = o.MaxStep, true
-			} else if d < -o.MaxStep {
-				d, limited = -o.MaxStep, true
-			}
-			tol = o.VnTol
-		}
-		dx[i] = d
-		old := v[i]
-		nv := old + d
-		v[i] = nv
-		if math.Abs(d) > o.RelTol*math.Max(math.Abs(old), math.Abs(nv))+tol {
-			converged = false
-		}
-	}
-	return true, converged, limited
-}
-
-// newtonMoving is newton over the unknowns that move with the sweep only,
-// the others kept at their values: the continuation step of a sweep once
-// its first point has solved the bias branches.
-func (s *Solver) newtonMoving(vcm, vid float64, maxIter int) bool {
-	sys := s.sys
-	n, m := sys.n, sys.nD
-	s.setFixed(vcm, vid, 1)
-	for it := 0; it < maxIter; it++ {
-		s.iterations++
-		s.load(vcm, vid, 1, 0)
-		dx, lu := s.dx[:m], s.w[:n*n]
-		for i := range dx {
-			dx[i] = -s.r[i]
-		}
-		if !luFactor(lu, m, n, s.piv) {
-			return false
-		}
-		luSolve(lu, m, n, s.piv, dx)
-		ok, converged, limited := s.applyStep(m, 1)
+		ok, converged, limited := s.applyStep(m, damp)
 		if !ok {
 			return false
 		}
@@ -378,6 +307,50 @@ func (s *Solver) newtonMoving(vcm, vid float64, maxIter int) bool {
 		}
 	}
 	return false
+}
+
+// applyStep adds the Newton step in s.dx[:m] to the first m unknowns, each
+// node voltage's change limited to MaxStep, and leaves the applied step in
+// s.dx. A step that has not converged is shortened by damp; one that has
+// (every change within the convergence tolerance) is taken whole. It
+// reports false for a step that is not finite, whether the step had
+// converged, and whether it was limited or damped.
+func (s *Solver) applyStep(m int, damp float64) (ok, converged, limited bool) {
+	sys, o := s.sys, &s.opt
+	dx, v := s.dx[:m], s.v[:m]
+	tol := func(i int, old, nv float64) float64 {
+		t := o.AbsTol
+		if sys.isNode[i] {
+			t = o.VnTol
+		}
+		return o.RelTol*math.Max(math.Abs(old), math.Abs(nv)) + t
+	}
+	converged = true
+	for i, d := range dx {
+		if d != d || d-d != 0 { // NaN or ±Inf
+			return false, false, false
+		}
+		if math.Abs(d) > tol(i, v[i], v[i]+d) {
+			converged = false
+		}
+	}
+	if converged {
+		damp = 1
+	}
+	limited = damp != 1
+	for i, d := range dx {
+		d *= damp
+		if sys.isNode[i] {
+			if d > o.MaxStep {
+				d, limited = o.MaxStep, true
+			} else if d < -o.MaxStep {
+				d, limited = -o.MaxStep, true
+			}
+		}
+		dx[i] = d
+		v[i] += d
+	}
+	return true, converged, limited
 }
 
 // solveFresh finds the operating point without a nearby solution: plain
@@ -501,18 +474,20 @@ func (s *Solver) post(wantGM bool) {
 }
 
 // deliveredSlope returns d/dvid of the current delivered into needed
-// fixed node q (and every node hanging from it), from the rhs post left.
+// fixed node q (and every node hanging from it), from the rhs post left:
+// its F row times dx/dvid plus its FE row times the inputs' dv/dvid.
 func (s *Solver) deliveredSlope(q int) float64 {
 	sys := s.sys
 	n, nE, m := sys.n, sys.nE, s.active
-	row := s.w[sys.oF+q*n : sys.oF+q*n+m]
+	w, rhs := s.w, s.rhs
 	d := 0.0
-	for j, x := range s.rhs[:m] {
-		d += row[j] * x
+	base := sys.oF + q*n
+	for j := 0; j < m; j++ {
+		d += w[base+j] * rhs[j]
 	}
-	rowE := s.w[sys.oFE+q*nE : sys.oFE+q*nE+nE]
+	base = sys.oFE + q*nE
 	for e, x := range sys.eVal {
-		d += rowE[e] * x
+		d += w[base+e] * x
 	}
 	if sys.chains {
 		for c, p := range sys.parentQ {
@@ -524,36 +499,18 @@ func (s *Solver) deliveredSlope(q int) float64 {
 	return d
 }
 
-// probe returns the value of probe p and, after post computed the rhs,
-// its derivative with respect to vid.
-func (s *Solver) probe(p int) (val, dval float64) {
-	sys := s.sys
-	n, nE, m := sys.n, sys.nE, s.active
-	w, rhs, ev := s.w, s.rhs, sys.eVal
-	for _, t := range sys.flat[p] {
-		if t.q < 0 {
-			val += t.coef * s.v[t.v]
-			dval += t.coef * s.rhs[t.v]
-			continue
+// probeSlope returns, after post computed the rhs, the derivative of
+// probe p with respect to vid.
+func (s *Solver) probeSlope(p int) float64 {
+	d := 0.0
+	for _, t := range s.sys.flat[p] {
+		if t.q >= 0 {
+			d += t.coef * s.deliveredSlope(t.q)
+		} else {
+			d += t.coef * s.rhs[t.v]
 		}
-		val += t.coef * s.deliv[t.q]
-		if sys.chains {
-			dval += t.coef * s.deliveredSlope(t.q)
-			continue
-		}
-		// d(delivered current)/dvid = F row · dx/dvid + FE row · dv_in/dvid.
-		d := 0.0
-		base := sys.oF + t.q*n
-		for j := 0; j < m; j++ {
-			d += w[base+j] * rhs[j]
-		}
-		base = sys.oFE + t.q*nE
-		for e := 0; e < nE; e++ {
-			d += w[base+e] * ev[e]
-		}
-		dval += t.coef * d
 	}
-	return val, dval
+	return d
 }
 
 // probeValue returns the value of probe p.

@@ -96,8 +96,8 @@ func (s *Solver) prepare(sp SweepSpec, res *Result) (int, error) {
 	} else {
 		res.GM = res.GM[:0]
 	}
-	if len(res.Probe) != len(sys.probeTerms) {
-		res.Probe = make([][]float64, len(sys.probeTerms))
+	if len(res.Probe) != len(sys.flat) {
+		res.Probe = make([][]float64, len(sys.flat))
 	}
 	for k := range res.Probe {
 		res.Probe[k] = grow(res.Probe[k], npts)
@@ -155,13 +155,7 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 					}
 				}
 			}
-			var ok bool
-			if sys.nD < n {
-				ok = s.newtonMoving(vcm, sp.VID, s.opt.MaxIter)
-			} else {
-				ok = s.newton(vcm, sp.VID, 1, 0, s.opt.MaxIter)
-			}
-			if !ok {
+			if !s.newtonMoving(vcm, sp.VID, s.opt.MaxIter) {
 				if err := s.recover(res.VCM[i-1], prev, vcm, sp.VID); err != nil {
 					return err
 				}
@@ -170,7 +164,7 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 		s.post(wantGM)
 		res.VCM[i] = vcm
 		if wantGM {
-			_, res.GM[i] = s.probe(sys.output)
+			res.GM[i] = s.probeSlope(sys.output)
 		}
 		for k := range res.Probe {
 			res.Probe[k][i] = s.probeValue(k)
@@ -216,11 +210,9 @@ func (s *Solver) SweepParallel(sp SweepSpec, res *Result, workers int) error {
 				return err
 			}
 		} else {
-			prev := starts[k-1]
-			from := sp.At(bounds[k-1], npts)
-			copy(s.v[:n], prev)
+			copy(s.v[:n], starts[k-1])
 			if !s.newton(vcm, sp.VID, 1, 0, s.opt.MaxIter) {
-				if err := s.recover(from, prev, vcm, sp.VID); err != nil {
+				if err := s.recover(sp.At(bounds[k-1], npts), starts[k-1], vcm, sp.VID); err != nil {
 					return err
 				}
 			}
@@ -298,11 +290,10 @@ func (s *Solver) Solve(vcm, vid float64) (*Point, error) {
 	s.post(wantGM)
 	p := &Point{VCM: vcm, VID: vid, V: append([]float64(nil), s.v...), sys: s.sys}
 	if wantGM {
-		_, p.GM = s.probe(s.sys.output)
+		p.GM = s.probeSlope(s.sys.output)
 	}
-	for k := range s.sys.probeTerms {
-		v, _ := s.probe(k)
-		p.Probe = append(p.Probe, v)
+	for k := range s.sys.flat {
+		p.Probe = append(p.Probe, s.probeValue(k))
 	}
 	return p, nil
 }

@@ -92,27 +92,28 @@ func newBuilder(family string, v Values, cond Conditions) (*builder, error) {
 // mos adds a transistor with the next free name. NMOS bulks go to ground
 // and PMOS bulks to the supply, as in a single-well process.
 func (b *builder) mos(t device.Type, role string, d, g, s sim.Node, w, l float64) string {
-	b.count++
-	name := fmt.Sprintf("M%d", b.count)
-	m, bulk := b.nm, b.gnd
+	bulk := b.gnd
 	if t == device.PMOS {
-		m, bulk = b.pm, b.vdd
+		bulk = b.vdd
 	}
-	b.c.AddMosfet(name, d, g, s, bulk, m, device.Geometry{W: w, L: l})
-	b.roles[name] = role
-	return name
+	return b.addMos(t, role, d, g, s, bulk, w, l)
 }
 
 // mosInWell adds a transistor whose bulk is tied to its source: for a PMOS,
 // a well of its own, as translinear loops are laid out.
 func (b *builder) mosInWell(t device.Type, role string, d, g, s sim.Node, w, l float64) string {
+	return b.addMos(t, role, d, g, s, s, w, l)
+}
+
+// addMos adds a transistor of type t with the next free name.
+func (b *builder) addMos(t device.Type, role string, d, g, s, bulk sim.Node, w, l float64) string {
 	b.count++
 	name := fmt.Sprintf("M%d", b.count)
 	m := b.nm
 	if t == device.PMOS {
 		m = b.pm
 	}
-	b.c.AddMosfet(name, d, g, s, s, m, device.Geometry{W: w, L: l})
+	b.c.AddMosfet(name, d, g, s, bulk, m, device.Geometry{W: w, L: l})
 	b.roles[name] = role
 	return name
 }
@@ -217,5 +218,3 @@ func (b *builder) finish() *Stage {
 	b.st.Roles = b.roles
 	return b.st
 }
-
-func constDrive(v float64) sim.Drive { return sim.Const(v) }

@@ -113,6 +113,10 @@ func TestPublishedBehaviour(t *testing.T) {
 		if w := m.TransitionWidth; math.Abs(w-want) > 0.15*want || w < 0.1 || w > 0.2 {
 			t.Errorf("transition %.4g V, want %.4g V ± 15 %% (square law) and 0.1 … 0.2 V (common practice)", w, want)
 		}
+		// A switch matched to the pair hands over where the common mode
+		// equals vref; their different drain voltages (channel-length
+		// modulation) shift it by tens of millivolts (square law; common
+		// practice, no source).
 		if math.Abs(m.Switchover-switch33["vref"]) > 0.05 {
 			t.Errorf("switchover %.4g V, want vref = %.4g V ± 50 mV (matched switch)", m.Switchover, switch33["vref"])
 		}

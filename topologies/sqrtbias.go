@@ -1,6 +1,7 @@
 package topologies
 
 import (
+	"pairsmith/sim"
 	"pairsmith/sim/device"
 	"pairsmith/units"
 )
@@ -70,7 +71,7 @@ func (f sqrtBias) Build(v Values, cond Conditions) (*Stage, error) {
 	// The loop's fixed sum: two stacked PMOS diodes at itail/4.
 	b.mos(device.PMOS, "loop diode", f1, f1, b.vdd, wl, lt)
 	b.mosInWell(device.PMOS, "loop diode (own well)", fs, fs, f1, wl, lt)
-	c.AddISource("IFS", fs, b.gnd, constDrive(v["itail"]/4), false)
+	c.AddISource("IFS", fs, b.gnd, sim.Const(v["itail"]/4), false)
 	// Mb is the PMOS tail; Ma's current, mirrored 1:1, is the NMOS tail.
 	b.mos(device.PMOS, "pmos tail (loop)", tp, s, b.vdd, wl, lt)
 	b.mosInWell(device.PMOS, "loop partner (own well)", pa, fs, s, wl, lt)

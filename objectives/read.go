@@ -1,0 +1,97 @@
+package objectives
+
+import (
+	"errors"
+	"path/filepath"
+	"strings"
+
+	"pairsmith/sim/device"
+	"pairsmith/units"
+)
+
+// conditions are what a design file and a spec sheet both give: the
+// process and the operating point.
+type conditions struct {
+	ProcessRef  string // as written
+	ProcessPath string // absolute path of a process file; "" for a built-in
+	Process     *device.Process
+	Supply      float64 // V
+	TempK       float64 // K
+}
+
+// readConditions reads the process (a built-in name or a file relative to
+// baseDir), the supply and the temperature (27C when not given).
+func readConditions(m *units.Map, baseDir string) (conditions, error) {
+	var c conditions
+	var err error
+	if c.ProcessRef, _, err = m.String("process"); err != nil {
+		return c, err
+	}
+	if c.Process, err = device.ResolveProcess(c.ProcessRef, baseDir); err != nil {
+		var ue *units.Error
+		if errors.As(err, &ue) {
+			return c, err // an error inside the process file names its own place
+		}
+		return c, &units.Error{File: m.File(), Line: m.Line("process"), Field: "process", Given: c.ProcessRef,
+			Want: "a built-in process (" + strings.Join(device.BuiltinNames(), ", ") + ") or the path of a process file", Err: err}
+	}
+	if _, builtin := device.Builtin(c.ProcessRef); !builtin {
+		path := c.ProcessRef
+		if !filepath.IsAbs(path) {
+			path = filepath.Join(baseDir, path)
+		}
+		if abs, err := filepath.Abs(path); err == nil {
+			path = abs
+		}
+		c.ProcessPath = path
+	}
+	if c.Supply, _, err = m.Quantity("supply", units.Volt); err != nil {
+		return c, err
+	}
+	if !(c.Supply > 0) || c.Supply > 20 {
+		return c, m.Errorf("supply", "a supply voltage above 0 V and at most 20 V")
+	}
+	if c.TempK, err = m.QuantityOr("temperature", units.Temperature, 27+units.ZeroCelsius); err != nil {
+		return c, err
+	}
+	if c.TempK < 200 || c.TempK > 500 {
+		return c, m.Errorf("temperature", "a temperature from -73C to 226C")
+	}
+	return c, nil
+}
+
+// readRange reads a common-mode range {low, high, step} (a design's sweep,
+// a spec's input_range): rail to rail at DefaultStep by default, within a
+// supply beyond either rail, low below high, and at most a million points.
+func readRange(rm *units.Map, supply float64) (low, high, step float64, err error) {
+	if err = rm.Check("low", "high", "step"); err != nil {
+		return
+	}
+	if low, err = rm.QuantityOr("low", units.Volt, 0); err != nil {
+		return
+	}
+	if high, err = rm.QuantityOr("high", units.Volt, supply); err != nil {
+		return
+	}
+	if step, err = rm.QuantityOr("step", units.Volt, DefaultStep); err != nil {
+		return
+	}
+	v := func(x float64) string { return units.Format(x, units.Volt) }
+	switch {
+	case low < -supply:
+		err = rm.Errorf("low", "a low end at most the supply below the negative rail (at least %s)", v(-supply))
+	case high > 2*supply:
+		err = rm.Errorf("high", "a high end at most the supply above the positive rail (at most %s)", v(2*supply))
+	case !(high > low):
+		key := "high"
+		if !rm.Has("high") {
+			key = "low"
+		}
+		err = rm.Errorf(key, "low below high (low %s, high %s)", v(low), v(high))
+	case !(step > 0):
+		err = rm.Errorf("step", "a step above 0 V, for example 10mV")
+	case (high-low)/step > 1e6:
+		err = rm.Errorf("step", "a step giving at most a million points")
+	}
+	return
+}
