@@ -46,8 +46,8 @@ func (m *nsgaModel) Apply(pop *eaopt.Population) error {
 		parents[i] = g
 	}
 	island := parents[0].pt.Family
-	if m.run.retired != nil && m.run.retired[island] {
-		return nil // the island is retired: it keeps its population
+	if m.run.idle(island) {
+		return nil // the island is retired or resting: it keeps its population
 	}
 	m.run.evaluateAll(parents) // migrants arrive unevaluated
 	if m.run.expired() {
@@ -221,8 +221,8 @@ func (m *translatingMigrator) Apply(pops eaopt.Populations, _ *rand.Rand) {
 		bests[i] = p.Individuals[0].Genome.(*genome)
 	}
 	for i := range pops {
-		if r := m.run.retired; r != nil && r[i] {
-			continue // a retired island takes no migrants
+		if m.run.idle(i) {
+			continue // a retired or resting island takes no migrants
 		}
 		from := bests[(i+np-1)%np]
 		to := pops[i]

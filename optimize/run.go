@@ -203,14 +203,61 @@ type runner struct {
 	best     float64
 	nearest  float64
 	stopped  bool
-	// retired marks islands the genetic search no longer spends on.
-	retired []bool
+	// retired marks islands the genetic search no longer spends on, and
+	// resting those that sit out the next generation.
+	retired, resting []bool
 	// phase numbers the keys of the current phase of the strategy.
 	phase int
 }
 
 // Run searches the problem within the settings.
 func Run(ctx context.Context, prob Problem, set Settings) (*Result, error) {
+	r, err := newRunner(ctx, prob, set)
+	if err != nil {
+		return nil, err
+	}
+	fams := r.fams
+	switch set.Strategy {
+	case Hybrid:
+		// Exploit, explore, exploit: Nelder–Mead from every family's
+		// defaults; the islands, half of each first population taken
+		// from what it found, already evaluated; Nelder–Mead
+		// again from the members the front's hypervolume owes most to.
+		first := min(set.Evaluations/4, hybridFirstPerFamily*len(fams))
+		ga := set.Evaluations - first - min(set.Evaluations/4, hybridFinalMax)
+		if _, ok := prob.(Starter); !ok {
+			// Without defaults to start from, the islands take the
+			// first share too.
+			first, ga = 0, first+ga
+		}
+		if ga < 2*len(fams)*minPop {
+			first, ga = 0, set.Evaluations // too small a budget to share
+		}
+		r.phase = 0
+		if err = r.refine(first, true); err == nil {
+			r.phase = 1
+			if err = r.genetic(ga); err == nil {
+				r.phase = 2
+				err = r.refine(set.Evaluations-r.count(), false)
+			}
+		}
+	case Genetic:
+		err = r.genetic(set.Evaluations)
+	case NelderMead:
+		err = r.refine(set.Evaluations, false)
+	case Random:
+		err = r.random(set.Evaluations)
+	default:
+		err = fmt.Errorf("optimize: unknown strategy %v", set.Strategy)
+	}
+	if err != nil {
+		return nil, err
+	}
+	return r.result(), nil
+}
+
+// newRunner checks the problem and the settings and prepares a search.
+func newRunner(ctx context.Context, prob Problem, set Settings) (*runner, error) {
 	fams := prob.Families()
 	if len(fams) == 0 {
 		return nil, errors.New("optimize: the problem has no families")
@@ -246,43 +293,7 @@ func Run(ctx context.Context, prob Problem, set Settings) (*Result, error) {
 			}
 		}
 	}
-	var err error
-	switch set.Strategy {
-	case Hybrid:
-		// Exploit, explore, exploit: Nelder–Mead from every family's
-		// defaults; the islands, seeded with what it found; Nelder–Mead
-		// again from the families' bests and along the front.
-		first := min(set.Evaluations/4, hybridFirstPerFamily*len(fams))
-		ga := set.Evaluations - first - min(set.Evaluations/4, hybridFinalMax)
-		if _, ok := prob.(Starter); !ok {
-			// Without defaults to start from, the islands take the
-			// first share too.
-			first, ga = 0, first+ga
-		}
-		if ga < 2*len(fams)*minPop {
-			first, ga = 0, set.Evaluations // too small a budget to share
-		}
-		r.phase = 0
-		if err = r.refine(first, true); err == nil {
-			r.phase = 1
-			if err = r.genetic(ga); err == nil {
-				r.phase = 2
-				err = r.refine(set.Evaluations-r.count(), false)
-			}
-		}
-	case Genetic:
-		err = r.genetic(set.Evaluations)
-	case NelderMead:
-		err = r.refine(set.Evaluations, false)
-	case Random:
-		err = r.random(set.Evaluations)
-	default:
-		err = fmt.Errorf("optimize: unknown strategy %v", set.Strategy)
-	}
-	if err != nil {
-		return nil, err
-	}
-	return r.result(), nil
+	return r, nil
 }
 
 // count returns the number of evaluations so far.
@@ -455,31 +466,30 @@ func better(a, b Outcome, scales []float64) bool {
 	return Score(a.Objectives, scales, nil) < Score(b.Objectives, scales, nil)
 }
 
-// seedPoints returns, for every family, up to k points to start its
-// island from: its best earlier candidates (Deb's rules, then Score), or
-// without any its defaults.
-func (r *runner) seedPoints(k int) [][][]float64 {
+// seedGenomes returns, for every family, up to k of its evaluated
+// candidates, chosen as NSGA-II chooses survivors (so spread along the
+// family's front, not only its best), as genomes that keep their outcomes.
+func (r *runner) seedGenomes(k int) [][]*genome {
 	r.mu.Lock()
 	all := append([]Candidate(nil), r.all...)
 	r.mu.Unlock()
 	sort.Slice(all, func(i, j int) bool { return all[i].Key.less(all[j].Key) })
-	out := make([][][]float64, len(r.fams))
+	out := make([][]*genome, len(r.fams))
+	if k <= 0 {
+		return out
+	}
 	for f := range r.fams {
-		var mine []Candidate
+		var mine []*genome
 		for _, c := range all {
 			if c.Point.Family == f && !c.Outcome.Failed {
-				mine = append(mine, c)
+				o := c.Outcome
+				mine = append(mine, &genome{run: r, key: c.Key, pt: c.Point.Clone(), out: &o})
 			}
 		}
-		sort.SliceStable(mine, func(i, j int) bool { return better(mine[i].Outcome, mine[j].Outcome, r.scales) })
-		for _, c := range mine[:min(len(mine), max(k, 1))] {
-			out[f] = append(out[f], append([]float64(nil), c.Point.X...))
+		if len(mine) > k {
+			mine = environmental(mine, k)
 		}
-		if len(out[f]) == 0 {
-			if def, ok := r.defaults(f); ok {
-				out[f] = append(out[f], def)
-			}
-		}
+		out[f] = mine
 	}
 	return out
 }
@@ -526,23 +536,76 @@ func hopelessFamilies(outs []Outcome, nfam int, familyOf func(i int) int) []bool
 func (r *runner) retire() {
 	r.mu.Lock()
 	defer r.mu.Unlock()
+	outs, familyOf := r.outcomes()
+	for f, h := range hopelessFamilies(outs, len(r.fams), familyOf) {
+		r.retired[f] = r.retired[f] || h
+	}
+}
+
+// restEvery is how often an island without a feasible candidate evolves
+// while another island has one: it sits out all but one generation in
+// restEvery, so the budget goes to the families that can meet the spec,
+// yet keeps looking (and, the first time one of its candidates is
+// feasible, is back at every generation). A family that cannot meet a
+// target at all, a complementary pair asked for little ripple, say, would
+// otherwise take as much as the best.
+const restEvery = 4
+
+// unmetFamilies marks the families of nfam with no feasible outcome (family
+// of outcome i given by familyOf) when some family has one; with none
+// feasible, none is marked.
+func unmetFamilies(outs []Outcome, nfam int, familyOf func(i int) int) []bool {
+	met := make([]bool, nfam)
+	anyMet := false
+	for i, o := range outs {
+		if o.Feasible() {
+			met[familyOf(i)], anyMet = true, true
+		}
+	}
+	unmet := make([]bool, nfam)
+	for f := range unmet {
+		unmet[f] = anyMet && !met[f]
+	}
+	return unmet
+}
+
+// rest decides which islands sit out generation next: from generation
+// retireAfter+1 on, those of unmetFamilies, except on every restEvery-th
+// generation. Like retire, it runs between generations.
+func (r *runner) rest(next int) {
+	r.mu.Lock()
+	defer r.mu.Unlock()
+	if next <= retireAfter || next%restEvery == 0 {
+		clear(r.resting)
+		return
+	}
+	outs, familyOf := r.outcomes()
+	copy(r.resting, unmetFamilies(outs, len(r.fams), familyOf))
+}
+
+// outcomes returns the outcomes of the evaluations so far and the family
+// of each; the caller holds r.mu.
+func (r *runner) outcomes() ([]Outcome, func(i int) int) {
 	outs := make([]Outcome, len(r.all))
 	for i, c := range r.all {
 		outs[i] = c.Outcome
 	}
-	for f, h := range hopelessFamilies(outs, len(r.fams), func(i int) int { return r.all[i].Point.Family }) {
-		r.retired[f] = r.retired[f] || h
-	}
+	return outs, func(i int) int { return r.all[i].Point.Family }
+}
+
+// idle reports whether island f spends nothing in the coming generation.
+func (r *runner) idle(f int) bool {
+	return r.retired != nil && (r.retired[f] || r.resting[f])
 }
 
 // minPop is the smallest island population.
 const minPop = 8
 
-// genetic runs the islands with eaopt within the budget.
-func (r *runner) genetic(budget int) error {
-	nf := len(r.fams)
-	// Population ~ 1.2·√(budget per island): enough generations to converge
-	// and enough members to spread along a front.
+// islandPop is the population of each of nf islands sharing budget
+// evaluations: about 1.2·√(budget per island), enough generations to
+// converge and enough members to spread along a front; even, so that
+// children come in pairs.
+func islandPop(budget, nf int) int {
 	pop := int(math.Round(1.2 * math.Sqrt(float64(budget)/float64(nf))))
 	pop = max(minPop, min(100, pop))
 	pop += pop % 2
@@ -551,10 +614,22 @@ func (r *runner) genetic(budget int) error {
 		pop = max(2, budget/nf)
 		pop -= pop % 2
 	}
+	return pop
+}
+
+// genetic runs the islands with eaopt within the budget. Each island's
+// first population takes up to half its members from the family's earlier
+// candidates (the hybrid's first refinement), outcomes and all, so they
+// cost nothing; without any it holds the family's defaults; random points
+// fill the rest. An island retired before the start holds only its
+// earlier candidates.
+func (r *runner) genetic(budget int) error {
+	nf := len(r.fams)
+	pop := islandPop(budget, nf)
 	gens := (budget - pop*nf) / (pop * nf)
-	r.retired = make([]bool, nf)
+	r.retired, r.resting = make([]bool, nf), make([]bool, nf)
 	limit := r.count() + budget
-	seeds := r.seedPoints(2)
+	seeds := r.seedGenomes(pop / 2)
 	r.retire()
 	made := 0
 	newGenome := func(rng *rand.Rand) eaopt.Genome {
@@ -565,7 +640,17 @@ func (r *runner) genetic(budget int) error {
 		x := make([]float64, f.Dim)
 		switch {
 		case slot < len(seeds[island]):
-			copy(x, seeds[island][slot])
+			return seeds[island][slot]
+		case r.retired[island] && len(seeds[island]) > 0:
+			// Retired before it starts: the island holds what the
+			// family reached and spends nothing.
+			return seeds[island][slot%len(seeds[island])].Clone()
+		case slot == 0:
+			if def, ok := r.defaults(island); ok {
+				copy(x, def)
+				break
+			}
+			fallthrough
 		default:
 			for i := range x {
 				x[i] = rng.Float64()
@@ -586,8 +671,8 @@ func (r *runner) genetic(budget int) error {
 		RNG:          rand.New(rand.NewSource(r.set.Seed)),
 		EarlyStop: func(ga *eaopt.GA) bool {
 			active := 0
-			for _, ret := range r.retired {
-				if !ret {
+			for f := range r.fams {
+				if !r.idle(f) {
 					active++
 				}
 			}
@@ -597,6 +682,7 @@ func (r *runner) genetic(budget int) error {
 			if int(ga.Generations) >= retireAfter {
 				r.retire()
 			}
+			r.rest(int(ga.Generations) + 1)
 		},
 	}
 	if n, ok := r.prob.(Namer); ok && nf > 1 {
