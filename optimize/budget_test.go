@@ -282,28 +282,9 @@ func TestByContribution(t *testing.T) {
 // against closed forms and Monte Carlo in hypervolume_test.go), on random
 // mutually non-dominated fronts of two to five objectives.
 func TestContributionsMatchRemoval(t *testing.T) {
-	rng := rand.New(rand.NewSource(5))
 	for d := 2; d <= 5; d++ {
-		scales := make([]float64, d)
-		for k := range scales {
-			scales[k] = 1 + float64(k)
-		}
-		// Points on the simplex Σ x_k/s_k = 1 do not dominate each other.
-		var front []Candidate
-		var pts [][]float64
-		for range 40 {
-			x := make([]float64, d)
-			sum := 0.0
-			for k := range x {
-				x[k] = rng.ExpFloat64()
-				sum += x[k]
-			}
-			for k := range x {
-				x[k] = x[k] / sum * scales[k]
-			}
-			front = append(front, Candidate{Outcome: Outcome{Objectives: x}})
-			pts = append(pts, x)
-		}
+		// Points on a simplex do not dominate each other.
+		front, pts, scales := simplexFront(40, d, 5)
 		ideal := make([]float64, d)
 		whole := NormalizedHypervolume(pts, ideal, scales)
 		got := contributions(front, scales)
@@ -315,4 +296,52 @@ func TestContributionsMatchRemoval(t *testing.T) {
 			}
 		}
 	}
+}
+
+// simplexFront returns n members of a front of d objectives on the simplex
+// Σ x_k/s_k = 1 with scales s_k = 1 + k, and the scales.
+func simplexFront(n, d int, seed int64) ([]Candidate, [][]float64, []float64) {
+	rng := rand.New(rand.NewSource(seed))
+	scales := make([]float64, d)
+	for k := range scales {
+		scales[k] = 1 + float64(k)
+	}
+	var front []Candidate
+	var pts [][]float64
+	for range n {
+		x := make([]float64, d)
+		sum := 0.0
+		for k := range x {
+			x[k] = rng.ExpFloat64()
+			sum += x[k]
+		}
+		for k := range x {
+			x[k] = x[k] / sum * scales[k]
+		}
+		front = append(front, Candidate{Outcome: Outcome{Objectives: x}})
+		pts = append(pts, x)
+	}
+	return front, pts, scales
+}
+
+// BenchmarkContributions times the limit-set contributions of a front of
+// 200 members and five objectives, and the same by removing one member at
+// a time, the definition they replace.
+func BenchmarkContributions(b *testing.B) {
+	front, pts, scales := simplexFront(200, 5, 1)
+	b.Run("limit-sets", func(b *testing.B) {
+		for b.Loop() {
+			contributions(front, scales)
+		}
+	})
+	b.Run("removal", func(b *testing.B) {
+		ideal := make([]float64, len(scales))
+		for b.Loop() {
+			whole := NormalizedHypervolume(pts, ideal, scales)
+			for i := range pts {
+				rest := append(append([][]float64(nil), pts[:i]...), pts[i+1:]...)
+				_ = whole - NormalizedHypervolume(rest, ideal, scales)
+			}
+		}
+	})
 }

@@ -187,7 +187,9 @@ func (r *runner) refineStarts(budget int) []start {
 // less the hypervolume of the others limited to that box (the limit sets
 // of L. While, L. Bradstreet, L. Barone, "A fast way of calculating exact
 // hypervolumes", IEEE Trans. Evol. Comput. 16(1), 2012), which stays
-// small, so five objectives and hundreds of members take milliseconds.
+// small: BenchmarkContributions puts 200 mutually non-dominated members
+// of five objectives at about 0.1 s, against 13 s by removing one member
+// at a time.
 func byContribution(front []Candidate, scales []float64) []int {
 	contrib := contributions(front, scales)
 	idx := make([]int, len(front))
