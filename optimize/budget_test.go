@@ -89,9 +89,11 @@ func TestFamilyVerdicts(t *testing.T) {
 			[]bool{false, false}, []bool{false, true}},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			of := func(i int) int { return tc.fams[i] }
-			h := hopelessFamilies(tc.outs, len(tc.hopeless), of)
-			u := unmetFamilies(tc.outs, len(tc.unmett), of)
+			cands := make([]Candidate, len(tc.outs))
+			for i, o := range tc.outs {
+				cands[i] = Candidate{Point: Point{Family: tc.fams[i]}, Outcome: o}
+			}
+			h, u := familyVerdicts(cands, len(tc.hopeless))
 			for f := range tc.hopeless {
 				if h[f] != tc.hopeless[f] {
 					t.Errorf("family %d: hopeless %v, want %v", f, h[f], tc.hopeless[f])

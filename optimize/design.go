@@ -93,10 +93,7 @@ func thinFront(front []Candidate, n int) []Candidate {
 	for i, c := range front {
 		objs[i], idx[i] = c.Outcome.Objectives, i
 	}
-	cd := CrowdingDistance(objs, idx)
-	order := append([]int(nil), idx...)
-	sort.SliceStable(order, func(a, b int) bool { return cd[order[a]] > cd[order[b]] })
-	keep := order[:n]
+	keep := mostSpread(objs, idx, n, func(a, b int) bool { return a < b })
 	sort.Ints(keep)
 	out := make([]Candidate, 0, n)
 	for _, i := range keep {

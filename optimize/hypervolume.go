@@ -61,6 +61,14 @@ func NormalizedHypervolume(points [][]float64, ideal, ref []float64) float64 {
 			return math.NaN()
 		}
 	}
+	return Hypervolume(normalize(points, ideal, ref), ones(d))
+}
+
+// normalize maps every coordinate x of the points to (x − ideal)/(ref −
+// ideal), clamping values below the ideal to 0 (see NormalizedHypervolume,
+// which checks ideal and ref).
+func normalize(points [][]float64, ideal, ref []float64) [][]float64 {
+	d := len(ref)
 	flat := make([]float64, 0, d*len(points))
 	scaled := make([][]float64, len(points))
 	for i, p := range points {
@@ -73,11 +81,28 @@ func NormalizedHypervolume(points [][]float64, ideal, ref []float64) float64 {
 		}
 		scaled[i] = flat[start:len(flat):len(flat)]
 	}
+	return scaled
+}
+
+// ones returns the reference point (1, …, 1) of d coordinates.
+func ones(d int) []float64 {
 	one := make([]float64, d)
 	for k := range one {
 		one[k] = 1
 	}
-	return Hypervolume(scaled, one)
+	return one
+}
+
+// addNonDominated adds p to a set of points none of which weakly
+// dominates another in their first n coordinates, unless one of them
+// weakly dominates p, and drops those p dominates; it reports whether p
+// was added.
+func addNonDominated(set [][]float64, p []float64, n int) ([][]float64, bool) {
+	if slices.ContainsFunc(set, func(q []float64) bool { return weaklyDominates(q, p, n) }) {
+		return set, false
+	}
+	set = slices.DeleteFunc(set, func(q []float64) bool { return weaklyDominates(p, q, n) })
+	return append(set, p), true
 }
 
 // strictlyBelow reports whether p < ref in every coordinate.
@@ -207,13 +232,12 @@ func hypervolumeSlices(pts [][]float64, ref []float64, d int, fast bool) float64
 	var vol, area float64
 	lastZ := sorted[0][c]
 	for _, p := range sorted {
-		if slices.ContainsFunc(front, func(f []float64) bool { return weaklyDominates(f, p, c) }) {
+		var added bool
+		if front, added = addNonDominated(front, p, c); !added {
 			continue
 		}
 		vol += area * (p[c] - lastZ)
 		lastZ = p[c]
-		front = slices.DeleteFunc(front, func(f []float64) bool { return weaklyDominates(p, f, c) })
-		front = append(front, p)
 		area = hypervolume(front, ref, c, fast)
 	}
 	return vol + area*(ref[c]-lastZ)

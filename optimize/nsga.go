@@ -97,7 +97,10 @@ func (m *nsgaModel) Apply(pop *eaopt.Population) error {
 }
 
 // objectivesOf returns the objectives and violations of genomes for
-// constrained sorting (a failed point has violation +Inf).
+// constrained sorting: a failed point has violation +Inf, and only
+// feasible points carry objectives, so that crowding spreads the feasible
+// fronts and leaves every member of an infeasible one (all of equal
+// violation) at distance zero.
 func objectivesOf(gs []*genome) ([][]float64, []float64) {
 	objs := make([][]float64, len(gs))
 	viol := make([]float64, len(gs))
@@ -107,8 +110,10 @@ func objectivesOf(gs []*genome) ([][]float64, []float64) {
 		case o == nil || o.Failed:
 			viol[i] = math.Inf(1)
 		default:
-			objs[i] = o.Objectives
 			viol[i] = o.Violation()
+			if viol[i] == 0 {
+				objs[i] = o.Objectives
+			}
 		}
 	}
 	return objs, viol
@@ -120,19 +125,8 @@ func rankCrowd(gs []*genome) ([]int, []float64) {
 	rank := make([]int, len(gs))
 	crowd := make([]float64, len(gs))
 	for fi, front := range NonDominatedSort(objs, viol) {
-		var cd []float64
-		if viol[front[0]] == 0 {
-			cd = CrowdingDistance(objs, front)
-		}
-		for k, i := range front {
-			rank[i] = fi
-			if cd != nil {
-				crowd[i] = cd[k]
-			} else {
-				// Infeasible fronts hold equal violations; spread them
-				// by nothing in particular.
-				crowd[i] = 0
-			}
+		for k, d := range CrowdingDistance(objs, front) {
+			rank[front[k]], crowd[front[k]] = fi, d
 		}
 	}
 	return rank, crowd
@@ -162,28 +156,32 @@ func environmental(union []*genome, n int) []*genome {
 			}
 			continue
 		}
-		idx := append([]int(nil), front...)
-		var cd []float64
-		if viol[front[0]] == 0 {
-			cd = CrowdingDistance(objs, front)
-		} else {
-			cd = make([]float64, len(front))
-		}
-		pos := make(map[int]int, len(front))
-		for k, i := range front {
-			pos[i] = k
-		}
-		sort.SliceStable(idx, func(x, y int) bool {
-			cx, cy := cd[pos[idx[x]]], cd[pos[idx[y]]]
-			if cx != cy {
-				return cx > cy
-			}
-			return union[idx[x]].key.less(union[idx[y]].key)
-		})
-		for _, i := range idx[:n-len(out)] {
+		for _, i := range mostSpread(objs, front, n-len(out), func(a, b int) bool { return union[a].key.less(union[b].key) }) {
 			out = append(out, union[i])
 		}
 		break
+	}
+	return out
+}
+
+// mostSpread returns the n members of front (indices into objs) with the
+// largest crowding distance, largest first, ties broken by tieLess on the
+// indices.
+func mostSpread(objs [][]float64, front []int, n int, tieLess func(a, b int) bool) []int {
+	cd := CrowdingDistance(objs, front)
+	pos := make([]int, len(front))
+	for k := range pos {
+		pos[k] = k
+	}
+	sort.SliceStable(pos, func(x, y int) bool {
+		if cx, cy := cd[pos[x]], cd[pos[y]]; cx != cy {
+			return cx > cy
+		}
+		return tieLess(front[pos[x]], front[pos[y]])
+	})
+	out := make([]int, min(n, len(front)))
+	for k := range out {
+		out[k] = front[pos[k]]
 	}
 	return out
 }

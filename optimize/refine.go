@@ -26,6 +26,11 @@ const (
 	evalsPerDim = 60
 	// maxStarts bounds the number of runs of one refinement.
 	maxStarts = 16
+	// weightFloor is added to each scaled objective of a start before its
+	// inverse becomes the start's weight, so that an objective at zero does
+	// not take an infinite weight; the start's trade-off then lies near
+	// the diagonal of its Tchebycheff contour rather than exactly on it.
+	weightFloor = 0.05
 	// simplexSize is the initial simplex's edge in normalised units.
 	simplexSize = 0.08
 )
@@ -43,7 +48,7 @@ type start struct {
 // simplex method for function minimization", The Computer Journal 7(4),
 // 1965; gonum's implementation) from promising starts: the members of the
 // front that contribute most to its hypervolume, each weighted so that its
-// own trade-off lies on the diagonal of its Tchebycheff contour (so the
+// own trade-off lies near the diagonal of its Tchebycheff contour (so the
 // run looks for points that dominate it), or with nothing feasible yet the
 // families' nearest misses, weighted equally. Without earlier candidates
 // (the Nelder–Mead-only strategy) the starts are each family's defaults
@@ -92,7 +97,7 @@ func (r *runner) refine(budget int, fromDefaults bool) error {
 func (r *runner) defaultStarts() []start {
 	rng := rand.New(rand.NewSource(r.set.Seed))
 	probes := make([]*genome, len(r.fams))
-	outs := make([]Outcome, len(r.fams))
+	tried := make([]Candidate, len(r.fams))
 	for f := range r.fams {
 		probes[f] = &genome{run: r, key: Key{Phase: r.phase, Gen: -1, Island: f}, pt: Point{Family: f, X: r.startPoint(f, rng)}}
 	}
@@ -101,9 +106,9 @@ func (r *runner) defaultStarts() []start {
 	}
 	r.evaluateAll(probes)
 	for f, g := range probes {
-		outs[f] = *g.out
+		tried[f] = Candidate{Point: g.pt, Outcome: *g.out}
 	}
-	hopeless := hopelessFamilies(outs, len(r.fams), func(i int) int { return i })
+	hopeless, _ := familyVerdicts(tried, len(r.fams))
 	var starts []start
 	for f, g := range probes {
 		if !hopeless[f] {
@@ -115,10 +120,7 @@ func (r *runner) defaultStarts() []start {
 
 // refineStarts chooses the starts for a budget.
 func (r *runner) refineStarts(budget int) []start {
-	r.mu.Lock()
-	all := append([]Candidate(nil), r.all...)
-	r.mu.Unlock()
-	sort.Slice(all, func(i, j int) bool { return all[i].Key.less(all[j].Key) })
+	all := r.snapshot()
 	maxDim := 1
 	for _, f := range r.fams {
 		maxDim = max(maxDim, f.Dim)
@@ -153,7 +155,7 @@ func (r *runner) refineStarts(budget int) []start {
 			c := res.Front[i]
 			w := make([]float64, len(c.Outcome.Objectives))
 			for k, f := range c.Outcome.Objectives {
-				w[k] = 1 / (math.Abs(f/r.scales[k]) + 0.05)
+				w[k] = 1 / (math.Abs(f/r.scales[k]) + weightFloor)
 			}
 			o := c.Outcome
 			starts = append(starts, start{pt: c.Point.Clone(), weights: w, out: &o})
@@ -203,24 +205,19 @@ func byContribution(front []Candidate, scales []float64) []int {
 // contributions returns each front member's exclusive hypervolume
 // contribution in the box from zero to the scales, as a fraction of it.
 func contributions(front []Candidate, scales []float64) []float64 {
-	d := len(scales)
-	pts := make([][]float64, len(front))
+	objs := make([][]float64, len(front))
 	for i, c := range front {
-		pts[i] = make([]float64, d)
-		for k := range d {
-			pts[i][k] = clamp01(c.Outcome.Objectives[k] / scales[k])
-		}
+		objs[i] = c.Outcome.Objectives
 	}
-	one := make([]float64, d)
-	for k := range one {
-		one[k] = 1
-	}
+	d := len(scales)
+	pts := normalize(objs, make([]float64, d), scales)
+	one := ones(d)
 	contrib := make([]float64, len(pts))
 	var limited [][]float64
 	for i, p := range pts {
 		own := 1.0
 		for k := range d {
-			own *= 1 - p[k]
+			own *= max(1-p[k], 0)
 		}
 		limited = limited[:0]
 		for j, q := range pts {
@@ -231,28 +228,11 @@ func contributions(front []Candidate, scales []float64) []float64 {
 			for k := range d {
 				l[k] = max(p[k], q[k])
 			}
-			limited = appendNonDominated(limited, l)
+			limited, _ = addNonDominated(limited, l, d)
 		}
 		contrib[i] = own - Hypervolume(limited, one)
 	}
 	return contrib
-}
-
-// appendNonDominated adds p to a set of mutually non-dominated points
-// unless one of them weakly dominates it, dropping those p dominates.
-func appendNonDominated(set [][]float64, p []float64) [][]float64 {
-	for _, q := range set {
-		if weaklyDominates(q, p, len(p)) {
-			return set
-		}
-	}
-	kept := set[:0]
-	for _, q := range set {
-		if !weaklyDominates(p, q, len(p)) {
-			kept = append(kept, q)
-		}
-	}
-	return append(kept, p)
 }
 
 // defaults returns family f's defaults when the problem knows them.

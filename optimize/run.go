@@ -296,6 +296,15 @@ func newRunner(ctx context.Context, prob Problem, set Settings) (*runner, error)
 	return r, nil
 }
 
+// snapshot returns a copy of the evaluations so far, in Key order.
+func (r *runner) snapshot() []Candidate {
+	r.mu.Lock()
+	all := append([]Candidate(nil), r.all...)
+	r.mu.Unlock()
+	sort.Slice(all, func(i, j int) bool { return all[i].Key.less(all[j].Key) })
+	return all
+}
+
 // count returns the number of evaluations so far.
 func (r *runner) count() int {
 	r.mu.Lock()
@@ -390,13 +399,10 @@ func (r *runner) random(budget int) error {
 
 // result assembles the Result from every evaluation, in Key order.
 func (r *runner) result() *Result {
+	res := summarize(r.snapshot(), len(r.fams), r.scales)
 	r.mu.Lock()
-	all := append([]Candidate(nil), r.all...)
-	stopped := r.stopped
+	res.Elapsed, res.Stopped = time.Since(r.start), r.stopped
 	r.mu.Unlock()
-	sort.Slice(all, func(i, j int) bool { return all[i].Key.less(all[j].Key) })
-	res := summarize(all, len(r.fams), r.scales)
-	res.Elapsed, res.Stopped = time.Since(r.start), stopped
 	return res
 }
 
@@ -425,7 +431,7 @@ func summarize(all []Candidate, nfam int, scales []float64) *Result {
 		fronts := NonDominatedSort(objs, nil)
 		seen := map[string]bool{}
 		for _, i := range fronts[0] {
-			k := fmt.Sprint(feas[i].Outcome.Objectives)
+			k := pointKey(feas[i].Outcome.Objectives)
 			if seen[k] {
 				continue // the same trade-off twice: keep the first found
 			}
@@ -470,10 +476,7 @@ func better(a, b Outcome, scales []float64) bool {
 // candidates, chosen as NSGA-II chooses survivors (so spread along the
 // family's front, not only its best), as genomes that keep their outcomes.
 func (r *runner) seedGenomes(k int) [][]*genome {
-	r.mu.Lock()
-	all := append([]Candidate(nil), r.all...)
-	r.mu.Unlock()
-	sort.Slice(all, func(i, j int) bool { return all[i].Key.less(all[j].Key) })
+	all := r.snapshot()
 	out := make([][]*genome, len(r.fams))
 	if k <= 0 {
 		return out
@@ -503,42 +506,57 @@ const (
 	retireRatio = 10
 )
 
-// hopelessFamilies marks the families of nfam that were evaluated and
-// whose outcomes (family of outcome i given by familyOf) all fail or miss
-// by more than retireRatio, when some outcome is feasible; with none
-// feasible, none is hopeless.
-func hopelessFamilies(outs []Outcome, nfam int, familyOf func(i int) int) []bool {
+// familyVerdicts judges the families of nfam on the candidates so far,
+// when some candidate is feasible (with none feasible, no family is
+// judged): a family is hopeless when it was evaluated and every candidate
+// failed or misses by more than retireRatio, and unmet when none of its
+// candidates is feasible.
+func familyVerdicts(cands []Candidate, nfam int) (hopeless, unmet []bool) {
 	least := make([]float64, nfam)
 	seen := make([]bool, nfam)
+	met := make([]bool, nfam)
 	for f := range least {
 		least[f] = math.Inf(1)
 	}
-	anyFeasible := false
-	for i, o := range outs {
-		f := familyOf(i)
+	anyMet := false
+	for _, c := range cands {
+		f := c.Point.Family
 		seen[f] = true
-		if o.Failed {
+		if c.Outcome.Failed {
 			continue
 		}
-		least[f] = math.Min(least[f], o.Violation())
-		anyFeasible = anyFeasible || o.Violation() == 0
+		least[f] = math.Min(least[f], c.Outcome.Violation())
+		if c.Outcome.Feasible() {
+			met[f], anyMet = true, true
+		}
 	}
-	hopeless := make([]bool, nfam)
-	for f := range hopeless {
-		hopeless[f] = anyFeasible && seen[f] && least[f] > retireRatio
+	hopeless, unmet = make([]bool, nfam), make([]bool, nfam)
+	for f := range nfam {
+		hopeless[f] = anyMet && seen[f] && least[f] > retireRatio
+		unmet[f] = anyMet && !met[f]
 	}
-	return hopeless
+	return hopeless, unmet
 }
 
-// retire stops spending on the families that every evaluation so far
-// shows hopeless. It runs before the islands start and between
-// generations, when no evaluation is under way, so deterministically.
-func (r *runner) retire() {
+// judge prepares generation next (0 before the islands start): it retires
+// the islands of the families every evaluation so far shows hopeless
+// (before the start, on the earlier phases' evidence, then from generation
+// retireAfter+1 on) and rests the unmet ones from generation retireAfter+1
+// on, except on every restEvery-th generation. It runs when no evaluation
+// is under way, so deterministically.
+func (r *runner) judge(next int) {
 	r.mu.Lock()
 	defer r.mu.Unlock()
-	outs, familyOf := r.outcomes()
-	for f, h := range hopelessFamilies(outs, len(r.fams), familyOf) {
+	hopeless, unmet := familyVerdicts(r.all, len(r.fams))
+	clear(r.resting)
+	if next > 0 && next <= retireAfter {
+		return
+	}
+	for f, h := range hopeless {
 		r.retired[f] = r.retired[f] || h
+	}
+	if next > retireAfter && next%restEvery != 0 {
+		copy(r.resting, unmet)
 	}
 }
 
@@ -550,48 +568,6 @@ func (r *runner) retire() {
 // target at all, a complementary pair asked for little ripple, say, would
 // otherwise take as much as the best.
 const restEvery = 4
-
-// unmetFamilies marks the families of nfam with no feasible outcome (family
-// of outcome i given by familyOf) when some family has one; with none
-// feasible, none is marked.
-func unmetFamilies(outs []Outcome, nfam int, familyOf func(i int) int) []bool {
-	met := make([]bool, nfam)
-	anyMet := false
-	for i, o := range outs {
-		if o.Feasible() {
-			met[familyOf(i)], anyMet = true, true
-		}
-	}
-	unmet := make([]bool, nfam)
-	for f := range unmet {
-		unmet[f] = anyMet && !met[f]
-	}
-	return unmet
-}
-
-// rest decides which islands sit out generation next: from generation
-// retireAfter+1 on, those of unmetFamilies, except on every restEvery-th
-// generation. Like retire, it runs between generations.
-func (r *runner) rest(next int) {
-	r.mu.Lock()
-	defer r.mu.Unlock()
-	if next <= retireAfter || next%restEvery == 0 {
-		clear(r.resting)
-		return
-	}
-	outs, familyOf := r.outcomes()
-	copy(r.resting, unmetFamilies(outs, len(r.fams), familyOf))
-}
-
-// outcomes returns the outcomes of the evaluations so far and the family
-// of each; the caller holds r.mu.
-func (r *runner) outcomes() ([]Outcome, func(i int) int) {
-	outs := make([]Outcome, len(r.all))
-	for i, c := range r.all {
-		outs[i] = c.Outcome
-	}
-	return outs, func(i int) int { return r.all[i].Point.Family }
-}
 
 // idle reports whether island f spends nothing in the coming generation.
 func (r *runner) idle(f int) bool {
@@ -630,7 +606,7 @@ func (r *runner) genetic(budget int) error {
 	r.retired, r.resting = make([]bool, nf), make([]bool, nf)
 	limit := r.count() + budget
 	seeds := r.seedGenomes(pop / 2)
-	r.retire()
+	r.judge(0)
 	made := 0
 	newGenome := func(rng *rand.Rand) eaopt.Genome {
 		island := made / pop
@@ -679,10 +655,7 @@ func (r *runner) genetic(budget int) error {
 			return r.expired() || gens < 1 || r.count()+active*pop > limit
 		},
 		Callback: func(ga *eaopt.GA) {
-			if int(ga.Generations) >= retireAfter {
-				r.retire()
-			}
-			r.rest(int(ga.Generations) + 1)
+			r.judge(int(ga.Generations) + 1)
 		},
 	}
 	if n, ok := r.prob.(Namer); ok && nf > 1 {

@@ -134,7 +134,8 @@ func TestPublishedBehaviour(t *testing.T) {
 		// strong inversion √I_n + √I_p, and with matched pairs gm, stays
 		// constant (Hogervorst et al. 1994; square law, any analog text).
 		// An ideal zener gives 0; a real one has a finite knee, here
-		// stiff: allow 15 %, against the complementary pair's 100 %.
+		// stiff: allow 15 % (an allowance for the knee, common practice,
+		// no source), against the complementary pair's 100 %.
 		ev := evalOn(t, "zener", "demo33-l1", 3.3, zener33)
 		if r := ev.Metrics.GMRipple; r > 0.15 {
 			t.Errorf("ripple %.3f, want below 0.15", r)
@@ -145,8 +146,9 @@ func TestPublishedBehaviour(t *testing.T) {
 		// Gilbert's translinear principle), so with matched pairs gm is
 		// constant. The keep-alive current costs √(1/kkeep) of the root
 		// sum at the bottom (3 % of gm at kkeep = 1024), and the replica's
-		// handover is not quite the real pair's: allow 10 %, against the
-		// complementary pair's 100 %.
+		// handover is not quite the real pair's: allow 10 % (the 3 % plus
+		// an allowance for the handover, common practice, no source),
+		// against the complementary pair's 100 %.
 		ev := evalOn(t, "sqrt-bias", "demo33-l1", 3.3, sqrt33)
 		if r := ev.Metrics.GMRipple; r > 0.10 {
 			t.Errorf("ripple %.3f, want below 0.10", r)
