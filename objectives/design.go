@@ -106,9 +106,8 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 				continue
 			}
 			if others := familiesWith(k); len(others) > 0 {
-				return nil, &units.Error{File: pm.File(), Line: pm.Line(k), Field: pm.Path() + "." + k,
-					Want: fmt.Sprintf("a parameter of %s (%s)", fam.Name(), strings.Join(known, ", ")),
-					Err:  fmt.Errorf("%w: %s is a parameter of %s", units.ErrUnknownField, k, strings.Join(others, ", "))}
+				return nil, pm.ErrorAt(k, "", fmt.Sprintf("a parameter of %s (%s)", fam.Name(), strings.Join(known, ", ")),
+					fmt.Errorf("%w: %s is a parameter of %s", units.ErrUnknownField, k, strings.Join(others, ", ")))
 			}
 		}
 		if err := pm.Check(known...); err != nil {

@@ -1,13 +1,11 @@
 package objectives_test
 
 import (
-	"errors"
 	"io/fs"
 	"math"
 	"math/rand/v2"
 	"os"
 	"path/filepath"
-	"strings"
 	"testing"
 
 	"pairsmith/objectives"
@@ -302,15 +300,7 @@ func TestLoadDesignRelativeProcess(t *testing.T) {
 // (design.md §3 and the project rules for bad input).
 func TestReadDesignErrors(t *testing.T) {
 	const head = "topology: n-pair\nprocess: demo18\nsupply: 1.8V\n" // lines 1–3
-	tests := []struct {
-		name  string
-		text  string
-		field string
-		line  int
-		given string
-		is    error    // a cause errors.Is must find, or nil
-		msg   []string // texts the message must hold
-	}{
+	tests := []badYAML{
 		{name: "unknown key with suggestion", text: head + "temprature: 27C\n",
 			field: "temprature", line: 4, is: units.ErrUnknownField, msg: []string{`did you mean "temperature"`}},
 		{name: "unknown key without suggestion", text: head + "budget: 1mW\n",
@@ -356,35 +346,8 @@ func TestReadDesignErrors(t *testing.T) {
 		{name: "duplicate key", text: head + "supply: 3.3V\n",
 			field: "supply", line: 4, is: units.ErrDuplicate},
 	}
-	for _, tt := range tests {
-		t.Run(tt.name, func(t *testing.T) {
-			_, err := objectives.ReadDesign("bad.yaml", []byte(tt.text), t.TempDir())
-			if err == nil {
-				t.Fatalf("no error for\n%s", tt.text)
-			}
-			var ue *units.Error
-			if !errors.As(err, &ue) {
-				t.Fatalf("error %v (%T) is not a *units.Error", err, err)
-			}
-			if ue.File != "bad.yaml" || ue.Field != tt.field || ue.Line != tt.line {
-				t.Errorf("error at %s:%d field %q, want bad.yaml:%d field %q (%v)",
-					ue.File, ue.Line, ue.Field, tt.line, tt.field, err)
-			}
-			if tt.given != "" && ue.Given != tt.given {
-				t.Errorf("given %q, want %q (%v)", ue.Given, tt.given, err)
-			}
-			if tt.is != nil && !errors.Is(err, tt.is) {
-				t.Errorf("error %v does not wrap %v", err, tt.is)
-			}
-			msg := err.Error()
-			if !strings.HasPrefix(msg, "bad.yaml:") {
-				t.Errorf("message %q does not start with the file and line", msg)
-			}
-			for _, s := range tt.msg {
-				if !strings.Contains(msg, s) {
-					t.Errorf("message %q does not mention %q", msg, s)
-				}
-			}
-		})
-	}
+	checkBadYAML(t, tests, func(file string, data []byte, baseDir string) error {
+		_, err := objectives.ReadDesign(file, data, baseDir)
+		return err
+	})
 }

@@ -3,6 +3,7 @@ package objectives_test
 import (
 	"encoding/json"
 	"math"
+	"reflect"
 	"slices"
 	"testing"
 
@@ -34,12 +35,20 @@ func design(t *testing.T, family string, given topologies.Values) *objectives.De
 		TempK: 300.15, Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01}, Params: v}
 }
 
-// sameMetrics compares metrics bit for bit, NaN matching NaN.
+// sameMetrics compares metrics bit for bit, NaN matching NaN. It walks
+// every field by reflection, so a field added to Metrics is compared too.
 func sameMetrics(a, b objectives.Metrics) bool {
-	x := []float64{a.GMMin, a.GMMax, a.GMRipple, a.Power, a.Area, a.Switchover, a.TransitionWidth}
-	y := []float64{b.GMMin, b.GMMax, b.GMRipple, b.Power, b.Area, b.Switchover, b.TransitionWidth}
-	for i := range x {
-		if x[i] != y[i] && !(math.IsNaN(x[i]) && math.IsNaN(y[i])) {
+	x, y := reflect.ValueOf(a), reflect.ValueOf(b)
+	for i := range x.NumField() {
+		f, g := x.Field(i), y.Field(i)
+		if f.Kind() != reflect.Float64 {
+			if !reflect.DeepEqual(f.Interface(), g.Interface()) {
+				return false
+			}
+			continue
+		}
+		p, q := f.Float(), g.Float()
+		if math.Float64bits(p) != math.Float64bits(q) && !(math.IsNaN(p) && math.IsNaN(q)) {
 			return false
 		}
 	}

@@ -79,7 +79,7 @@ func (m *Metrics) UnmarshalJSON(b []byte) error {
 }
 
 func finite(v float64) *float64 {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
+	if !isFinite(v) {
 		return nil
 	}
 	return &v

@@ -32,8 +32,8 @@ func readConditions(m *units.Map, baseDir string) (conditions, error) {
 		if errors.As(err, &ue) {
 			return c, err // an error inside the process file names its own place
 		}
-		return c, &units.Error{File: m.File(), Line: m.Line("process"), Field: "process", Given: c.ProcessRef,
-			Want: "a built-in process (" + strings.Join(device.BuiltinNames(), ", ") + ") or the path of a process file", Err: err}
+		return c, m.ErrorAt("process", c.ProcessRef,
+			"a built-in process ("+strings.Join(device.BuiltinNames(), ", ")+") or the path of a process file", err)
 	}
 	if _, builtin := device.Builtin(c.ProcessRef); !builtin {
 		path := c.ProcessRef

@@ -13,8 +13,6 @@ import (
 	"strings"
 	"time"
 
-	"gopkg.in/yaml.v3"
-
 	"pairsmith/sim"
 	"pairsmith/sim/device"
 	"pairsmith/topologies"
@@ -51,20 +49,6 @@ func DefaultSearch() Search {
 	return Search{Evaluations: DefaultEvaluations, Seed: DefaultSeed}
 }
 
-// Validate checks settings that came from elsewhere than a spec file
-// (command-line flags, say) against the limits ReadSpec enforces.
-func (s Search) Validate() error {
-	switch {
-	case s.Evaluations < 1 || s.Evaluations > MaxEvaluations:
-		return fmt.Errorf("evaluations %d: want a whole number from 1 to %d", s.Evaluations, MaxEvaluations)
-	case s.Workers < 0:
-		return fmt.Errorf("workers %d: want 0 (one per core) or more", s.Workers)
-	case s.Time < 0:
-		return fmt.Errorf("time %s: want a duration of 0 (none) or more", s.Time)
-	}
-	return nil
-}
-
 // WorkerCount returns the number of workers to run: Workers, or the
 // number of usable cores when Workers is 0.
 func (s Search) WorkerCount() int {
@@ -74,8 +58,11 @@ func (s Search) WorkerCount() int {
 	return max(1, runtime.GOMAXPROCS(0))
 }
 
-// timeWant says what a time budget takes.
-const timeWant = "a duration such as 10m, 90s or 1h30m, or a number of seconds; 0 for none"
+// TimeBudgetWant says what ParseTimeBudget takes, for error messages.
+const TimeBudgetWant = "a duration such as 10m, 90s or 1h30m, or a number of seconds"
+
+// timeWant says what a spec's search.time takes.
+const timeWant = TimeBudgetWant + "; 0 for none"
 
 // ParseTimeBudget reads a time budget as the spec's search.time and the
 // --time flag take it: a Go duration ("10m", "90s", "1h30m", see
@@ -175,7 +162,7 @@ func ReadSpec(file string, data []byte, baseDir string) (*Spec, error) {
 	if err != nil {
 		return nil, err
 	}
-	return readSpec(m, data, baseDir)
+	return readSpec(m, baseDir)
 }
 
 // The fields of each section of a spec sheet.
@@ -186,7 +173,7 @@ func rangeKeys() []string  { return []string{"low", "high", "step"} }
 func targetKeys() []string { return targetOrder() }
 func searchKeys() []string { return []string{"evaluations", "seed", "workers", "time"} }
 
-func readSpec(m *units.Map, data []byte, baseDir string) (*Spec, error) {
+func readSpec(m *units.Map, baseDir string) (*Spec, error) {
 	if err := checkTop(m); err != nil {
 		return nil, err
 	}
@@ -227,10 +214,10 @@ func readSpec(m *units.Map, data []byte, baseDir string) (*Spec, error) {
 			return nil, err
 		}
 	}
-	if s.Pareto, err = readPareto(m, data); err != nil {
+	if s.Pareto, err = readPareto(m); err != nil {
 		return nil, err
 	}
-	if s.Topologies, err = readTopologies(m, data); err != nil {
+	if s.Topologies, err = readTopologies(m); err != nil {
 		return nil, err
 	}
 	s.Search = DefaultSearch()
@@ -242,14 +229,6 @@ func readSpec(m *units.Map, data []byte, baseDir string) (*Spec, error) {
 		}
 	}
 	return s, nil
-}
-
-// fieldPath is the dotted path of key in m.
-func fieldPath(m *units.Map, key string) string {
-	if m.Path() == "" {
-		return key
-	}
-	return m.Path() + "." + key
 }
 
 // checkTop rejects an unknown top-level field, saying where a field of a
@@ -265,8 +244,7 @@ func checkTop(m *units.Map) error {
 		}
 		for _, sec := range sections {
 			if slices.Contains(sec.keys, k) {
-				return &units.Error{File: m.File(), Line: m.Line(k), Field: k,
-					Err: fmt.Errorf("%w; %s belongs under %s", units.ErrUnknownField, k, sec.name)}
+				return m.ErrorAt(k, "", "", fmt.Errorf("%w; %s belongs under %s", units.ErrUnknownField, k, sec.name))
 			}
 		}
 	}
@@ -279,8 +257,7 @@ func checkTargetKeys(tm *units.Map) error {
 	known := targetKeys()
 	for _, k := range tm.Keys() {
 		if !slices.Contains(known, k) && slices.Contains(known, k+"_max") {
-			return &units.Error{File: tm.File(), Line: tm.Line(k), Field: fieldPath(tm, k),
-				Err: fmt.Errorf("%w; did you mean %q?", units.ErrUnknownField, k+"_max")}
+			return tm.ErrorAt(k, "", "", fmt.Errorf("%w; did you mean %q?", units.ErrUnknownField, k+"_max"))
 		}
 	}
 	return tm.Check(known...)
@@ -351,59 +328,19 @@ func readTargets(tm *units.Map, rng Range) (Targets, error) {
 	return t, nil
 }
 
-// listLines returns the line of every element of the top-level field key
-// when it is written as a YAML list; isList is false otherwise.
-func listLines(data []byte, key string) (lines []int, isList bool) {
-	var doc yaml.Node
-	if yaml.Unmarshal(data, &doc) != nil || len(doc.Content) != 1 {
-		return nil, false
-	}
-	root := doc.Content[0]
-	if root.Kind != yaml.MappingNode {
-		return nil, false
-	}
-	for i := 0; i+1 < len(root.Content); i += 2 {
-		if root.Content[i].Value != key {
-			continue
-		}
-		v := root.Content[i+1]
-		for v.Kind == yaml.AliasNode && v.Alias != nil {
-			v = v.Alias
-		}
-		if v.Kind != yaml.SequenceNode {
-			return nil, false
-		}
-		for _, c := range v.Content {
-			lines = append(lines, c.Line)
-		}
-		return lines, true
-	}
-	return nil, false
-}
-
 // nameList reads a top-level field holding a name or a list of names,
 // with a function that makes an error located at one of them.
-func nameList(m *units.Map, data []byte, key string) ([]string, bool, func(i int, want string) error, error) {
+func nameList(m *units.Map, key string) ([]string, bool, func(i int, want string) error, error) {
 	names, ok, err := m.Strings(key)
 	if err != nil || !ok {
 		return nil, ok, nil, err
 	}
-	lines, isList := listLines(data, key)
-	at := func(i int, want string) error {
-		e := &units.Error{File: m.File(), Line: m.Line(key), Field: key, Given: names[i], Want: want}
-		if isList {
-			e.Field = fmt.Sprintf("%s[%d]", key, i)
-			if i < len(lines) && lines[i] > 0 {
-				e.Line = lines[i]
-			}
-		}
-		return e
-	}
+	at := func(i int, want string) error { return m.ItemErrorAt(key, i, names[i], want, nil) }
 	return names, true, at, nil
 }
 
-func readPareto(m *units.Map, data []byte) ([]string, error) {
-	names, ok, at, err := nameList(m, data, "pareto")
+func readPareto(m *units.Map) ([]string, error) {
+	names, ok, at, err := nameList(m, "pareto")
 	if err != nil {
 		return nil, err
 	}
@@ -432,8 +369,8 @@ func readPareto(m *units.Map, data []byte) ([]string, error) {
 	return names, nil
 }
 
-func readTopologies(m *units.Map, data []byte) ([]string, error) {
-	names, ok, at, err := nameList(m, data, "topologies")
+func readTopologies(m *units.Map) ([]string, error) {
+	names, ok, at, err := nameList(m, "topologies")
 	if err != nil {
 		return nil, err
 	}
@@ -497,8 +434,7 @@ func readSearch(sm *units.Map, se *Search) error {
 	} else if ok {
 		d, err := ParseTimeBudget(text)
 		if err != nil {
-			return &units.Error{File: sm.File(), Line: sm.Line("time"), Field: fieldPath(sm, "time"),
-				Given: text, Want: timeWant, Err: err}
+			return sm.ErrorAt("time", text, timeWant, err)
 		}
 		se.Time = d
 	}

@@ -271,15 +271,7 @@ func TestLoadSpecRelativeProcess(t *testing.T) {
 // what is wanted (design.md §3 and the rules' "bad user input").
 func TestReadSpecErrors(t *testing.T) {
 	const head = "name: t\nprocess: demo18\nsupply: 1.8V\n" // lines 1–3
-	tests := []struct {
-		name  string
-		text  string
-		field string
-		line  int
-		given string
-		is    error    // a cause errors.Is must find, or nil
-		msg   []string // texts the message must hold
-	}{
+	tests := []badYAML{
 		// wrong units
 		{name: "supply in amperes", text: "process: demo18\nsupply: 1.8A\n",
 			field: "supply", line: 2, given: "1.8A", msg: []string{"voltage", "1.8V"}},
@@ -380,6 +372,8 @@ func TestReadSpecErrors(t *testing.T) {
 			field: "search.evaluations", line: 4, given: "-5"},
 		{name: "absurd evaluations", text: head + "search: {evaluations: 200000000}\n",
 			field: "search.evaluations", line: 4, given: "200000000", msg: []string{"100000000"}},
+		{name: "one evaluation too many", text: head + "search: {evaluations: 100000001}\n",
+			field: "search.evaluations", line: 4, given: "100000001", msg: []string{"from 1 to 100000000"}},
 		{name: "evaluations with a prefix", text: head + "search: {evaluations: 20k}\n",
 			field: "search.evaluations", line: 4, given: "20k", msg: []string{"whole number"}},
 		{name: "fractional evaluations", text: head + "search: {evaluations: 1.5}\n",
@@ -417,37 +411,10 @@ func TestReadSpecErrors(t *testing.T) {
 		{name: "empty pareto", text: head + "pareto: []\n",
 			field: "pareto", line: 4, msg: []string{"at least one"}},
 	}
-	for _, tt := range tests {
-		t.Run(tt.name, func(t *testing.T) {
-			_, err := objectives.ReadSpec("bad.yaml", []byte(tt.text), t.TempDir())
-			if err == nil {
-				t.Fatalf("no error for\n%s", tt.text)
-			}
-			var ue *units.Error
-			if !errors.As(err, &ue) {
-				t.Fatalf("error %v (%T) is not a *units.Error", err, err)
-			}
-			if ue.File != "bad.yaml" || ue.Field != tt.field || ue.Line != tt.line {
-				t.Errorf("error at %s:%d field %q, want bad.yaml:%d field %q (%v)",
-					ue.File, ue.Line, ue.Field, tt.line, tt.field, err)
-			}
-			if tt.given != "" && ue.Given != tt.given {
-				t.Errorf("given %q, want %q (%v)", ue.Given, tt.given, err)
-			}
-			if tt.is != nil && !errors.Is(err, tt.is) {
-				t.Errorf("error %v does not wrap %v", err, tt.is)
-			}
-			msg := err.Error()
-			if want := fmt.Sprintf("bad.yaml:%d: %s: ", tt.line, tt.field); !strings.HasPrefix(msg, want) {
-				t.Errorf("message %q does not start with %q", msg, want)
-			}
-			for _, s := range tt.msg {
-				if !strings.Contains(msg, s) {
-					t.Errorf("message %q does not mention %q", msg, s)
-				}
-			}
-		})
-	}
+	checkBadYAML(t, tests, func(file string, data []byte, baseDir string) error {
+		_, err := objectives.ReadSpec(file, data, baseDir)
+		return err
+	})
 }
 
 // TestLoadSpecMissingFile checks that a spec that cannot be read names it.
@@ -487,19 +454,10 @@ func TestParseTimeBudget(t *testing.T) {
 	}
 }
 
-// TestSearchValidate checks the limits on search settings from flags.
-func TestSearchValidate(t *testing.T) {
-	if err := objectives.DefaultSearch().Validate(); err != nil {
-		t.Errorf("defaults: %v", err)
-	}
-	for _, s := range []objectives.Search{
-		{Evaluations: 0}, {Evaluations: objectives.MaxEvaluations + 1},
-		{Evaluations: 10, Workers: -1}, {Evaluations: 10, Time: -time.Second},
-	} {
-		if err := s.Validate(); err == nil {
-			t.Errorf("%+v: no error", s)
-		}
-	}
+// TestSearchWorkerCount checks the number of workers a search runs. (The
+// limits on search settings are checked by the bad-spec table above and,
+// for flags, by cmd/pairsmith's TestRunBadFlags.)
+func TestSearchWorkerCount(t *testing.T) {
 	if n := (objectives.Search{Workers: 3}).WorkerCount(); n != 3 {
 		t.Errorf("WorkerCount with 3 workers = %d", n)
 	}

@@ -352,7 +352,7 @@ const headroom = 1.3
 
 // markSwitchover adds a dashed vertical line at vcm = at, spanning 0 … top.
 func markSwitchover(p *plot.Plot, at, top float64, legend string) error {
-	if math.IsNaN(at) || math.IsInf(at, 0) {
+	if !finiteVal(at) {
 		return nil
 	}
 	l, err := plotter.NewLine(plotter.XYs{{X: at, Y: 0}, {X: at, Y: top}})

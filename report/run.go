@@ -9,11 +9,13 @@ import (
 	"os"
 	"path"
 	"path/filepath"
+	"slices"
 	"strconv"
 	"strings"
 
 	"pairsmith/objectives"
 	"pairsmith/optimize"
+	"pairsmith/sim/device"
 	"pairsmith/topologies"
 )
 
@@ -177,7 +179,7 @@ func CandidateFile(spec *objectives.Spec, c *optimize.StageCandidate) []byte {
 
 // jnum is a float for JSON: null when NaN or infinite.
 func jnum(v float64) *float64 {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
+	if !finiteVal(v) {
 		return nil
 	}
 	return &v
@@ -341,7 +343,7 @@ func axisColumn(axis string) string {
 // csvNum writes a value exactly (shortest form that reads back the same),
 // NaN and infinities as an empty cell.
 func csvNum(v float64) string {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
+	if !finiteVal(v) {
 		return ""
 	}
 	return strconv.FormatFloat(v, 'g', -1, 64)
@@ -458,24 +460,28 @@ func TargetTexts(t objectives.Targets) []string {
 }
 
 // processText names a spec's process for reading: "demo18 (ekv)".
-func processText(spec *objectives.Spec) string {
-	name := spec.ProcessRef
-	if spec.Process != nil {
-		name = spec.Process.Name
-		if spec.Process.Kind != "" {
-			name += " (" + spec.Process.Kind + ")"
-		}
+func processText(spec *objectives.Spec) string { return processName(spec.ProcessRef, spec.Process) }
+
+// processName names a process for reading, "demo18 (ekv)": its name and
+// kind, or ref, the process as written, when it was not read.
+func processName(ref string, p *device.Process) string {
+	if p == nil {
+		return ref
 	}
-	return name
+	if p.Kind != "" {
+		return p.Name + " (" + p.Kind + ")"
+	}
+	return p.Name
+}
+
+// specConditions describes a spec's conditions in one line: "on demo18
+// (ekv), supply 1.8 V, 27 °C, common mode 0 V … 1.8 V".
+func specConditions(spec *objectives.Spec) string {
+	return fmt.Sprintf("on %s, supply %s, %s, common mode %s … %s", processText(spec),
+		SI(spec.Supply, "V", tableDigits), Celsius(spec.TempK),
+		SI(spec.Range.Low, "V", tableDigits), SI(spec.Range.High, "V", tableDigits))
 }
 
 // familyIndex is a family's place in topologies.All(), which fixes its
 // colour and marker in every plot; -1 for an unknown name.
-func familyIndex(name string) int {
-	for i, n := range topologies.Names() {
-		if n == name {
-			return i
-		}
-	}
-	return -1
-}
+func familyIndex(name string) int { return slices.Index(topologies.Names(), name) }

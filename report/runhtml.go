@@ -148,16 +148,14 @@ func specRows(spec *objectives.Spec) []pageRow {
 func RunPage(res *optimize.StageResult, opt RunOptions, paretoSVG, curvesSVG []byte) ([]byte, error) {
 	spec := res.Spec
 	d := pageData{
-		Title:   oneLine(spec.Name),
-		Caution: objectives.Caution,
-		Conditions: fmt.Sprintf("on %s, supply %s, %s, common mode %s … %s", processText(spec),
-			SI(spec.Supply, "V", tableDigits), Celsius(spec.TempK),
-			SI(spec.Range.Low, "V", tableDigits), SI(spec.Range.High, "V", tableDigits)),
-		Feasible:  res.Best != nil,
-		Binding:   res.Binding,
-		Spec:      specRows(spec),
-		ParetoSVG: inlineSVG(paretoSVG),
-		CurvesSVG: inlineSVG(curvesSVG),
+		Title:      oneLine(spec.Name),
+		Caution:    objectives.Caution,
+		Conditions: specConditions(spec),
+		Feasible:   res.Best != nil,
+		Binding:    res.Binding,
+		Spec:       specRows(spec),
+		ParetoSVG:  inlineSVG(paretoSVG),
+		CurvesSVG:  inlineSVG(curvesSVG),
 	}
 	if d.Title == "" {
 		d.Title = "pairsmith run"

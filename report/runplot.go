@@ -1,6 +1,7 @@
 package report
 
 import (
+	"cmp"
 	"fmt"
 	"image/color"
 	"math"
@@ -303,11 +304,7 @@ func (g glyph) Thumbnail(c *draw.Canvas) {
 
 // sortFamilies orders family names as topologies.All() does.
 func sortFamilies(names []string) {
-	for i := 1; i < len(names); i++ {
-		for j := i; j > 0 && familyIndex(names[j]) < familyIndex(names[j-1]); j-- {
-			names[j], names[j-1] = names[j-1], names[j]
-		}
-	}
+	slices.SortStableFunc(names, func(a, b string) int { return cmp.Compare(familyIndex(a), familyIndex(b)) })
 }
 
 // maxOver returns the largest finite value of an axis over the

@@ -21,9 +21,7 @@ import (
 func RunTable(w io.Writer, res *optimize.StageResult, dir string) error {
 	e := &errWriter{w: w}
 	spec := res.Spec
-	e.printf("%s: %d families on %s, supply %s, %s, common mode %s … %s\n", oneLine(spec.Name), len(spec.Topologies),
-		processText(spec), SI(spec.Supply, "V", tableDigits), Celsius(spec.TempK),
-		SI(spec.Range.Low, "V", tableDigits), SI(spec.Range.High, "V", tableDigits))
+	e.printf("%s: %d families %s\n", oneLine(spec.Name), len(spec.Topologies), specConditions(spec))
 	if ts := TargetTexts(spec.Targets); len(ts) > 0 {
 		e.printf("targets: %s\n\n", strings.Join(ts, ", "))
 	} else {

@@ -81,16 +81,8 @@ func Celsius(tempK float64) string {
 // in 10 mV steps (181 points)".
 func Conditions(ev *objectives.Evaluation) string {
 	d := ev.Design
-	proc := d.ProcessRef
-	kind := ""
-	if d.Process != nil {
-		proc, kind = d.Process.Name, d.Process.Kind
-	}
-	if kind != "" {
-		proc += " (" + kind + ")"
-	}
 	return fmt.Sprintf("%s on %s, supply %s, %s, vcm %s to %s in %s steps (%d points)",
-		d.Topology, proc, SI(d.Supply, "V", tableDigits), Celsius(d.TempK),
+		d.Topology, processName(d.ProcessRef, d.Process), SI(d.Supply, "V", tableDigits), Celsius(d.TempK),
 		SI(d.Sweep.Low, "V", tableDigits), SI(d.Sweep.High, "V", tableDigits),
 		SI(d.Sweep.Step, "V", tableDigits), ev.Result.Len())
 }
@@ -171,7 +163,7 @@ func MetricsTable(w io.Writer, ev *objectives.Evaluation) error {
 // areaText writes an area in m² as µm², the unit layout uses, to four
 // significant figures: 4.2e-10 m² is "420 µm²".
 func areaText(a float64) string {
-	if math.IsNaN(a) || math.IsInf(a, 0) {
+	if !finiteVal(a) {
 		return SI(a, "µm²", tableDigits)
 	}
 	s := strconv.FormatFloat(a*1e12, 'g', tableDigits, 64)
@@ -207,7 +199,7 @@ func DevicesTable(w io.Writer, ev *objectives.Evaluation) error {
 // volts writes a terminal voltage in V with three decimals (1 mV), as a
 // SPICE operating-point listing does, so the column lines up.
 func volts(v float64) string {
-	if math.IsNaN(v) || math.IsInf(v, 0) {
+	if !finiteVal(v) {
 		return SI(v, "V", tableDigits)
 	}
 	s := strconv.FormatFloat(v, 'f', 3, 64)

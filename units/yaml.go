@@ -242,9 +242,25 @@ func scalarText(n *yaml.Node) string {
 	return ""
 }
 
-// at returns an *Error located at the field.
-func (m *Map) at(key, given, want string, err error) *Error {
+// ErrorAt returns an *Error located at the field: the map's file, the
+// field's line (see Line) and dotted path, with the given text, what is
+// wanted and the cause, any of which may be empty or nil.
+func (m *Map) ErrorAt(key, given, want string, err error) *Error {
 	return &Error{File: m.file, Line: m.Line(key), Field: join(m.path, key), Given: given, Want: want, Err: err}
+}
+
+// ItemErrorAt returns an *Error located at item i of a field read with
+// Strings: when the field is written as a list, the error names the item
+// ("topologies[2]") at the item's line; otherwise it is ErrorAt's.
+func (m *Map) ItemErrorAt(key string, i int, given, want string, err error) *Error {
+	e := m.ErrorAt(key, given, want, err)
+	if n, ok := m.val[key]; ok && n.Kind == yaml.SequenceNode {
+		e.Field = fmt.Sprintf("%s[%d]", e.Field, i)
+		if i >= 0 && i < len(n.Content) && n.Content[i].Line > 0 {
+			e.Line = n.Content[i].Line
+		}
+	}
+	return e
 }
 
 // Errorf returns an *Error for a problem the caller found with a field's
@@ -252,7 +268,7 @@ func (m *Map) at(key, given, want string, err error) *Error {
 // field's line and path and the value as written, and wants what format
 // and args describe ("a value below high (1.8V)").
 func (m *Map) Errorf(key, format string, args ...any) error {
-	return m.at(key, m.Text(key), fmt.Sprintf(format, args...), nil)
+	return m.ErrorAt(key, m.Text(key), fmt.Sprintf(format, args...), nil)
 }
 
 // kindError says what a node is when it is not the scalar wanted.
@@ -278,7 +294,7 @@ func (m *Map) scalar(key, want string) (*yaml.Node, bool, error) {
 		return nil, false, nil
 	}
 	if n.Kind != yaml.ScalarNode || n.ShortTag() == "!!null" {
-		return nil, true, m.at(key, "", want, kindError(n))
+		return nil, true, m.ErrorAt(key, "", want, kindError(n))
 	}
 	return n, true, nil
 }
@@ -305,9 +321,9 @@ func (m *Map) Quantity(key string, d Dim) (v float64, present bool, err error) {
 	if err != nil {
 		var e *Error
 		if errors.As(err, &e) {
-			return 0, true, m.at(key, e.Given, e.Want, e.Err)
+			return 0, true, m.ErrorAt(key, e.Given, e.Want, e.Err)
 		}
-		return 0, true, m.at(key, n.Value, d.Want(), err)
+		return 0, true, m.ErrorAt(key, n.Value, d.Want(), err)
 	}
 	return v, true, nil
 }
@@ -342,7 +358,7 @@ func (m *Map) Strings(key string) ([]string, bool, error) {
 	switch n.Kind {
 	case yaml.ScalarNode:
 		if n.ShortTag() == "!!null" {
-			return nil, true, m.at(key, "", want, kindError(n))
+			return nil, true, m.ErrorAt(key, "", want, kindError(n))
 		}
 		return []string{n.Value}, true, nil
 	case yaml.SequenceNode:
@@ -357,7 +373,7 @@ func (m *Map) Strings(key string) ([]string, bool, error) {
 		}
 		return out, true, nil
 	}
-	return nil, true, m.at(key, "", want, kindError(n))
+	return nil, true, m.ErrorAt(key, "", want, kindError(n))
 }
 
 // Int reads a field holding a whole number.
@@ -369,7 +385,7 @@ func (m *Map) Int(key string) (int, bool, error) {
 	}
 	var i int
 	if n.ShortTag() != "!!int" || n.Decode(&i) != nil {
-		return 0, true, m.at(key, n.Value, want, nil)
+		return 0, true, m.ErrorAt(key, n.Value, want, nil)
 	}
 	return i, true, nil
 }
@@ -383,7 +399,7 @@ func (m *Map) Bool(key string) (bool, bool, error) {
 	}
 	var b bool
 	if n.ShortTag() != "!!bool" || n.Decode(&b) != nil {
-		return false, true, m.at(key, n.Value, want, nil)
+		return false, true, m.ErrorAt(key, n.Value, want, nil)
 	}
 	return b, true, nil
 }
@@ -396,7 +412,7 @@ func (m *Map) Map(key string) (*Map, bool, error) {
 		return nil, false, nil
 	}
 	if n.Kind != yaml.MappingNode {
-		return nil, true, m.at(key, scalarText(n), "a mapping of fields, as in {field: value}", kindError(n))
+		return nil, true, m.ErrorAt(key, scalarText(n), "a mapping of fields, as in {field: value}", kindError(n))
 	}
 	return newMap(m.file, join(m.path, key), m.Line(key), n), true, nil
 }
@@ -426,7 +442,7 @@ func (m *Map) Check(known ...string) error {
 		} else {
 			err = fmt.Errorf("%w; known fields are %s", ErrUnknownField, strings.Join(known, ", "))
 		}
-		return m.at(k, "", "", err)
+		return m.ErrorAt(k, "", "", err)
 	}
 	return nil
 }

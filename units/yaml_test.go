@@ -265,6 +265,32 @@ func TestAlias(t *testing.T) {
 	}
 }
 
+// TestItemErrorAt checks where ErrorAt and ItemErrorAt put an error: a
+// list item by its index at its own line, a single name at the field's
+// line (common practice, no source: the lines are counted in the text).
+func TestItemErrorAt(t *testing.T) {
+	m := mustRead(t, "one: all\nlist:\n  - a\n  - b\nsub: {x: 1}\n")
+	for _, tc := range []struct {
+		err  *Error
+		want string
+	}{
+		{m.ItemErrorAt("list", 1, "b", "a letter", nil), `design.yaml:4: list[1]: got "b", want a letter`},
+		{m.ItemErrorAt("one", 0, "all", "a name", nil), `design.yaml:1: one: got "all", want a name`},
+		{m.ErrorAt("list", "", "", ErrUnknownField), "design.yaml:2: list: unknown field"},
+	} {
+		if got := tc.err.Error(); got != tc.want {
+			t.Errorf("error %q, want %q", got, tc.want)
+		}
+	}
+	sub, _, err := m.Map("sub")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, want := sub.ErrorAt("x", "1", "two", nil).Error(), `design.yaml:5: sub.x: got "1", want two`; got != want {
+		t.Errorf("error %q, want %q", got, want)
+	}
+}
+
 func TestNearest(t *testing.T) {
 	known := []string{"width", "length", "vto", "kp", "gamma", "lambda", "itail"}
 	tests := []struct {

@@ -60,12 +60,15 @@ func work(f func(args []string) error) func(*cobra.Command, []string) error {
 	}
 }
 
-// oneDesign accepts exactly one argument, the design file.
-func oneDesign(cmd *cobra.Command, args []string) error {
-	if len(args) != 1 {
-		return fmt.Errorf("%s: want one design file (DESIGN.yaml), got %d arguments", cmd.Name(), len(args))
+// oneFile returns a cobra.PositionalArgs that accepts exactly one
+// argument, the file what names ("design file (DESIGN.yaml)").
+func oneFile(what string) cobra.PositionalArgs {
+	return func(cmd *cobra.Command, args []string) error {
+		if len(args) != 1 {
+			return fmt.Errorf("%s: want one %s, got %d arguments", cmd.Name(), what, len(args))
+		}
+		return nil
 	}
-	return nil
 }
 
 // loadDesign reads a design file; any failure is bad input.
@@ -172,7 +175,7 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 			"and print gm_min, gm_max, gm_ripple, power, area, switchover and transition\n" +
 			"width. --json writes the full document (curve, metrics, devices at mid-sweep);\n" +
 			"--plot draws gm and the two pair currents against vcm.",
-		Args: oneDesign,
+		Args: oneFile("design file (DESIGN.yaml)"),
 		RunE: work(func(args []string) error {
 			if plotPath != "" {
 				if _, err := report.PlotFormat(plotPath); err != nil {
@@ -231,7 +234,7 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 			"deck that ngspice -b runs as it is: model cards (level-1 processes), the supply\n" +
 			"VDD, the inputs from VCM and VID, and VOUT, whose current is the differential\n" +
 			"output current (gm = d I(VOUT) / d VID). --dc adds the design's sweep as .dc.",
-		Args: oneDesign,
+		Args: oneFile("design file (DESIGN.yaml)"),
 		RunE: work(func(args []string) error {
 			d, err := loadDesign(args[0])
 			if err != nil {

@@ -3,12 +3,9 @@ package main
 import (
 	"bytes"
 	"encoding/json"
-	"encoding/xml"
-	"errors"
 	"flag"
 	"fmt"
 	"image/png"
-	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -268,33 +265,11 @@ func TestEvalPlot(t *testing.T) {
 	if !strings.Contains(stderr, svgPath) {
 		t.Errorf("stderr %q does not say where the plot went", stderr)
 	}
-	f, err := os.Open(svgPath)
+	data, err := os.ReadFile(svgPath)
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer f.Close()
-	dec := xml.NewDecoder(f)
-	root, texts := "", ""
-	for {
-		tok, err := dec.Token()
-		if errors.Is(err, io.EOF) {
-			break
-		}
-		if err != nil {
-			t.Fatalf("SVG is not well-formed XML: %v", err)
-		}
-		switch el := tok.(type) {
-		case xml.StartElement:
-			if root == "" {
-				root = el.Name.Local
-			}
-		case xml.CharData:
-			texts += string(el)
-		}
-	}
-	if root != "svg" {
-		t.Errorf("SVG root element %q", root)
-	}
+	texts := parseXML(t, svgPath, data)
 	for _, want := range []string{"current-switch", "i_n", "i_p", "vcm"} {
 		if !strings.Contains(texts, want) {
 			t.Errorf("SVG text lacks %q", want)

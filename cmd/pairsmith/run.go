@@ -23,16 +23,9 @@ type runFlags struct {
 	out         string
 	evaluations int
 	time        string
+	timeBudget  time.Duration // time parsed by check
 	seed        int64
 	workers     int
-}
-
-// oneSpec accepts exactly one argument, the spec sheet.
-func oneSpec(cmd *cobra.Command, args []string) error {
-	if len(args) != 1 {
-		return fmt.Errorf("%s: want one spec sheet (SPEC.yaml), got %d arguments", cmd.Name(), len(args))
-	}
-	return nil
 }
 
 // check validates the flags that were given; an error here is a usage
@@ -49,16 +42,19 @@ func (f *runFlags) check(cmd *cobra.Command) error {
 		return fmt.Errorf("--workers %d: want 0 (one per core) or a positive number", f.workers)
 	}
 	if fl.Changed("time") {
-		if _, err := objectives.ParseTimeBudget(f.time); err != nil {
-			return fmt.Errorf("--time %q: %w; want a duration such as 10m, 90s or 1h30m, or a number of seconds", f.time, err)
+		d, err := objectives.ParseTimeBudget(f.time)
+		if err != nil {
+			return fmt.Errorf("--time %q: %w; want %s", f.time, err, objectives.TimeBudgetWant)
 		}
+		f.timeBudget = d
 	}
 	return nil
 }
 
 // apply overrides the spec's search settings with the flags given, so
-// that summary.json's spec records what was run.
-func (f *runFlags) apply(cmd *cobra.Command, spec *objectives.Spec) error {
+// that summary.json's spec records what was run. The flags were checked
+// by check and the spec's settings by LoadSpec, so the result is valid.
+func (f *runFlags) apply(cmd *cobra.Command, spec *objectives.Spec) {
 	fl := cmd.Flags()
 	if fl.Changed("evaluations") {
 		spec.Search.Evaluations = f.evaluations
@@ -70,16 +66,8 @@ func (f *runFlags) apply(cmd *cobra.Command, spec *objectives.Spec) error {
 		spec.Search.Workers = f.workers
 	}
 	if fl.Changed("time") {
-		d, err := objectives.ParseTimeBudget(f.time)
-		if err != nil {
-			return badInput("--time %q: %w", f.time, err)
-		}
-		spec.Search.Time = d
+		spec.Search.Time = f.timeBudget
 	}
-	if err := spec.Search.Validate(); err != nil {
-		return badInput("search settings: %w", err)
-	}
-	return nil
 }
 
 // loadSpec reads a spec sheet; any failure is bad input.
@@ -109,7 +97,7 @@ func newRunCmd(stdout, stderr io.Writer) *cobra.Command {
 			"Exit codes: 0 a candidate meets the spec, 3 none does (everything is still\n" +
 			"written, with the nearest candidates and the targets that bind), 2 bad input,\n" +
 			"1 anything else.",
-		Args: oneSpec,
+		Args: oneFile("spec sheet (SPEC.yaml)"),
 		PreRunE: func(cmd *cobra.Command, _ []string) error {
 			return f.check(cmd)
 		},
@@ -130,9 +118,7 @@ func runSearch(cmd *cobra.Command, f *runFlags, specPath string, stdout, stderr 
 	if err != nil {
 		return err
 	}
-	if err := f.apply(cmd, spec); err != nil {
-		return err
-	}
+	f.apply(cmd, spec)
 	// Fail on an unusable output directory now, not after the search.
 	if err := os.MkdirAll(filepath.Join(f.out, report.CandidatesDir), 0o755); err != nil {
 		return badInput("output directory %s: %w", f.out, err)

@@ -624,6 +624,8 @@ func TestRunBadFlags(t *testing.T) {
 	}{
 		{[]string{"--evaluations", "0"}, "pairsmith: --evaluations 0: want a whole number from 1", true},
 		{[]string{"--evaluations", "-3"}, "pairsmith: --evaluations -3: ", true},
+		{[]string{"--evaluations", "100000001"}, "pairsmith: --evaluations 100000001: want a whole number from 1 to 100000000", true},
+		{[]string{"--time", "NaN"}, `pairsmith: --time "NaN": time budget "NaN" is not a finite number; want a duration such as 10m, 90s or 1h30m, or a number of seconds`, true},
 		{[]string{"--evaluations", "many"}, `pairsmith: invalid argument "many" for "--evaluations" flag`, true},
 		{[]string{"--workers", "-1"}, "pairsmith: --workers -1: want 0 (one per core) or a positive number", true},
 		{[]string{"--time", "bogus"}, `pairsmith: --time "bogus": `, true},
