@@ -36,6 +36,9 @@ func Const(v float64) Drive { return Drive{DC: v} }
 // At evaluates the drive.
 func (d Drive) At(vcm, vid float64) float64 { return d.DC + d.CM*vcm + d.DM*vid }
 
+// sweeps reports whether the drive depends on the sweep variables.
+func (d Drive) sweeps() bool { return d.CM != 0 || d.DM != 0 }
+
 // Mosfet is a four-terminal transistor.
 type Mosfet struct {
 	Name       string

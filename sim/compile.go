@@ -113,21 +113,17 @@ type system struct {
 	vccs     []vccsStamp
 	branches []branchStamp
 
-	srcOf      []sourceRef // for each VSource, where its current is found
-	probeTerms [][]probeTerm
-	flat       [][]flatTerm // probeTerms resolved, per probe
-	output     int          // probe index or -1
+	flat   [][]flatTerm // probe terms resolved, per probe
+	output int          // probe index or -1
 
 	// Compact layout (see the comment at the top of the file).
-	eIdx   []int // the fixed variables that move with vid (JE's columns)
 	needed []int // fixed nodes whose delivered current is read, parents first
 	// parentQ[q] is the position in needed of needed[q]'s parent, or -1;
 	// chains says whether any is not -1.
 	parentQ []int
 	chains  bool
-	eVal    []float64 // d v / d vid of each eIdx
-	moves   []bool    // for each fixed node, whether it moves with the sweep
-	nE, nF  int
+	eVal    []float64 // d v / d vid of each of JE's columns
+	nE      int
 	oJE     int
 	oF      int
 	oFE     int
@@ -231,14 +227,14 @@ func compile(c *Circuit) (*system, error) {
 	// are the unfixed nodes ("things" 0…nNodes−1) and the branch currents
 	// of floating sources and VCVSs (things nNodes…).
 	nb := len(floating) + len(c.VCVSs)
-	// A fixed node moves if any source on its chain to ground has a
-	// sweep-dependent drive.
-	s.moves = make([]bool, len(s.fixed))
+	// moves[k] says whether fixed node k moves with the sweep: whether any
+	// source on its chain to ground has a sweep-dependent drive.
+	moves := make([]bool, len(s.fixed))
 	for k := 1; k < len(s.fixed); k++ {
 		f := s.fixed[k]
-		s.moves[k] = s.moves[f.parent] || f.drive.CM != 0 || f.drive.DM != 0
+		moves[k] = moves[f.parent] || f.drive.sweeps()
 	}
-	dyn := movingUnknowns(c, fixedOf, s.moves, floating)
+	dyn := movingUnknowns(c, fixedOf, moves, floating)
 	s.idx = make([]int, nNodes)
 	branchIdx := make([]int, nb)
 	var order []int
@@ -267,7 +263,7 @@ func compile(c *Circuit) (*system, error) {
 			branchIdx[th-nNodes] = v
 		}
 	}
-	s.srcOf = make([]sourceRef, len(c.VSources))
+	srcOf := make([]sourceRef, len(c.VSources)) // for each VSource, where its current is found
 	s.n = len(order)
 	s.N = s.n + len(s.fixed)
 	for node := 0; node < nNodes; node++ {
@@ -280,18 +276,19 @@ func compile(c *Circuit) (*system, error) {
 		f := &s.fixed[k]
 		if f.parent >= 0 {
 			f.dm = s.fixed[f.parent].dm + f.sign*f.drive.DM
-			s.srcOf[f.src] = sourceRef{kind: 0, index: k, sign: -f.sign}
+			srcOf[f.src] = sourceRef{kind: 0, index: k, sign: -f.sign}
 		}
 	}
-	if err := s.resolveProbes(); err != nil {
+	probeTerms, err := s.resolveProbes()
+	if err != nil {
 		return nil, err
 	}
-	s.layout()
+	pos := s.layout(srcOf, probeTerms)
 	s.direct = make([]float64, s.n)
 
 	for k, i := range floating {
 		v := c.VSources[i]
-		s.srcOf[i] = sourceRef{kind: 1, index: len(s.branches), sign: 1}
+		srcOf[i] = sourceRef{kind: 1, index: len(s.branches), sign: 1}
 		s.addBranch(branchIdx[k], s.idx[v.P], s.idx[v.N], -1, -1, 0, v.Value, i)
 	}
 	for k, e := range c.VCVSs {
@@ -310,7 +307,7 @@ func compile(c *Circuit) (*system, error) {
 		if v < s.n {
 			return v >= s.nD
 		}
-		return !s.moves[v-s.n]
+		return !moves[v-s.n]
 	}
 	for _, m := range c.Mosfets {
 		key := instKey{m.Model, m.Geom}
@@ -374,16 +371,14 @@ func compile(c *Circuit) (*system, error) {
 		s.stamp(n, cp, -g.G)
 		s.stamp(n, cn, g.G)
 	}
-	for _, terms := range s.probeTerms {
+	for _, terms := range probeTerms {
 		var ft []flatTerm
 		for _, t := range terms {
-			ref := s.srcOf[t.src]
+			ref := srcOf[t.src]
 			if ref.kind == 0 {
-				q := -1
-				for qq, k := range s.needed {
-					if k == ref.index {
-						q = qq
-					}
+				q, ok := pos[ref.index]
+				if !ok {
+					q = -1
 				}
 				ft = append(ft, flatTerm{q: q, coef: ref.sign * t.coef})
 			} else {
@@ -413,10 +408,12 @@ func (s *system) addBranch(idx, p, n, cp, cn int, gain float64, drive Drive, vsr
 	}
 }
 
-// resolveProbes turns probe terms into source indices.
-func (s *system) resolveProbes() error {
+// resolveProbes turns probe terms into source indices, per probe, and
+// finds the output probe.
+func (s *system) resolveProbes() ([][]probeTerm, error) {
 	c := s.c
 	s.output = -1
+	var probeTerms [][]probeTerm
 	for pi, p := range c.Probes {
 		terms := make([]probeTerm, 0, len(p.Terms))
 		for _, t := range p.Terms {
@@ -428,34 +425,37 @@ func (s *system) resolveProbes() error {
 				}
 			}
 			if k < 0 {
-				return fmt.Errorf("circuit %q: probe %s names no voltage source %q", c.Title, p.Name, t.Source)
+				return nil, fmt.Errorf("circuit %q: probe %s names no voltage source %q", c.Title, p.Name, t.Source)
 			}
 			terms = append(terms, probeTerm{src: k, coef: t.Coef})
 		}
-		s.probeTerms = append(s.probeTerms, terms)
+		probeTerms = append(probeTerms, terms)
 		if p.Name == c.Output {
 			s.output = pi
 		}
 	}
 	if c.Output != "" && s.output < 0 {
-		return fmt.Errorf("circuit %q: output probe %q is not defined", c.Title, c.Output)
+		return nil, fmt.Errorf("circuit %q: output probe %q is not defined", c.Title, c.Output)
 	}
-	return nil
+	return probeTerms, nil
 }
 
 // layout finds the inputs' columns and the fixed rows the probes read, and
-// sizes the compact work array.
-func (s *system) layout() {
+// sizes the compact work array. srcOf locates each voltage source's
+// current (its fixed-node entries at least). It returns the position in
+// s.needed of each needed fixed node.
+func (s *system) layout(srcOf []sourceRef, probeTerms [][]probeTerm) map[int]int {
+	var eIdx []int // the fixed variables that move with vid (JE's columns)
 	for _, f := range s.fixed {
 		if f.dm != 0 {
-			s.eIdx = append(s.eIdx, f.idx)
+			eIdx = append(eIdx, f.idx)
 			s.eVal = append(s.eVal, f.dm)
 		}
 	}
 	want := make([]bool, len(s.fixed))
-	for _, terms := range s.probeTerms {
+	for _, terms := range probeTerms {
 		for _, t := range terms {
-			if ref := s.srcOf[t.src]; ref.kind == 0 {
+			if ref := srcOf[t.src]; ref.kind == 0 {
 				want[ref.index] = true
 			}
 		}
@@ -481,7 +481,7 @@ func (s *system) layout() {
 			s.needed = append(s.needed, k)
 		}
 	}
-	for e, v := range s.eIdx {
+	for e, v := range eIdx {
 		s.colOf[v] = s.n + e
 	}
 	pos := map[int]int{}
@@ -496,13 +496,15 @@ func (s *system) layout() {
 		s.parentQ = append(s.parentQ, pq)
 		s.chains = s.chains || pq >= 0
 	}
-	s.nE, s.nF = len(s.eIdx), len(s.needed)
+	nF := len(s.needed)
+	s.nE = len(eIdx)
 	s.oJE = s.n * s.n
 	s.oF = s.oJE + s.n*s.nE
-	s.oFE = s.oF + s.nF*s.n
-	s.trash = s.oFE + s.nF*s.nE
-	s.rTrash = s.n + s.nF
+	s.oFE = s.oF + nF*s.n
+	s.trash = s.oFE + nF*s.nE
+	s.rTrash = s.n + nF
 	s.base = make([]float64, s.trash+trashSlots)
+	return pos
 }
 
 // movingUnknowns finds which unknowns can move with the sweep: those whose
@@ -547,7 +549,7 @@ func movingUnknowns(c *Circuit, fixedOf []int, moves []bool, floating []int) []b
 		dep(node(r.A, r.B), node(r.A, r.B)...)
 	}
 	for _, i := range c.ISources {
-		if i.Value.CM != 0 || i.Value.DM != 0 {
+		if i.Value.sweeps() {
 			for _, r := range node(i.P, i.N) {
 				dyn[r] = true
 			}
@@ -560,7 +562,7 @@ func movingUnknowns(c *Circuit, fixedOf []int, moves []bool, floating []int) []b
 		v, b := c.VSources[i], nNodes+k
 		dep(node(v.P, v.N), b)
 		dep([]int{b}, node(v.P, v.N)...)
-		if v.Value.CM != 0 || v.Value.DM != 0 {
+		if v.Value.sweeps() {
 			dyn[b] = true
 		}
 	}

@@ -67,9 +67,9 @@ func luSolve(a []float64, n, ld int, piv []int, b []float64) {
 			b[k], b[p] = b[p], b[k]
 		}
 	}
+	// The two smallest systems of more than one unknown are unrolled;
+	// BenchmarkLU's loops/n= cases measure what that saves.
 	switch n {
-	case 1:
-		b[0] *= a[0]
 	case 2:
 		b1 := b[1] - a[ld]*b[0]
 		x1 := b1 * a[ld+1]
@@ -84,19 +84,25 @@ func luSolve(a []float64, n, ld int, piv []int, b []float64) {
 		b[0] = (b[0] - a[1]*x1 - a[2]*x2) * a[0]
 		b[1], b[2] = x1, x2
 	default:
-		for i := 1; i < n; i++ {
-			s := b[i]
-			for j := 0; j < i; j++ {
-				s -= a[i*ld+j] * b[j]
-			}
-			b[i] = s
+		substitute(a, n, ld, b)
+	}
+}
+
+// substitute does the forward and back substitution of luSolve, on a
+// permuted b, with loops for any n.
+func substitute(a []float64, n, ld int, b []float64) {
+	for i := 1; i < n; i++ {
+		s := b[i]
+		for j := 0; j < i; j++ {
+			s -= a[i*ld+j] * b[j]
 		}
-		for i := n - 1; i >= 0; i-- {
-			s := b[i]
-			for j := i + 1; j < n; j++ {
-				s -= a[i*ld+j] * b[j]
-			}
-			b[i] = s * a[i*ld+i]
+		b[i] = s
+	}
+	for i := n - 1; i >= 0; i-- {
+		s := b[i]
+		for j := i + 1; j < n; j++ {
+			s -= a[i*ld+j] * b[j]
 		}
+		b[i] = s * a[i*ld+i]
 	}
 }

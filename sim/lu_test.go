@@ -118,7 +118,7 @@ func TestLUSingular(t *testing.T) {
 // sizes the stages produce. The kernel exists because of this benchmark.
 func BenchmarkLU(b *testing.B) {
 	rng := rand.New(rand.NewPCG(3, 4))
-	for _, n := range []int{4, 6, 8} {
+	for _, n := range []int{1, 2, 3, 4, 6, 8} {
 		a, rhs := randomSystem(rng, n, false)
 		b.Run(fmt.Sprintf("kernel/n=%d", n), func(b *testing.B) {
 			lu := make([]float64, n*n)
@@ -132,6 +132,27 @@ func BenchmarkLU(b *testing.B) {
 				luSolve(lu, n, n, piv, x)
 			}
 		})
+		if n <= 3 {
+			// The same kernel without luSolve's unrolled small cases
+			// (n = 2 and 3; n = 1 already takes the loops).
+			b.Run(fmt.Sprintf("loops/n=%d", n), func(b *testing.B) {
+				lu := make([]float64, n*n)
+				x := make([]float64, n)
+				piv := make([]int, n)
+				b.ReportAllocs()
+				for b.Loop() {
+					copy(lu, a)
+					copy(x, rhs)
+					luFactor(lu, n, n, piv)
+					for k, p := range piv {
+						if p != k {
+							x[k], x[p] = x[p], x[k]
+						}
+					}
+					substitute(lu, n, n, x)
+				}
+			})
+		}
 		b.Run(fmt.Sprintf("gonum/n=%d", n), func(b *testing.B) {
 			src := mat.NewDense(n, n, a)
 			m := mat.NewDense(n, n, nil)

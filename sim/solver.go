@@ -110,16 +110,7 @@ func NewSolver(c *Circuit, opt Options) (*Solver, error) {
 		return nil, err
 	}
 	s := &Solver{sys: sys, opt: opt.withDefaults()}
-	n, N := sys.n, sys.N
-	s.v = make([]float64, N)
-	s.w = make([]float64, len(sys.base))
-	s.r = make([]float64, sys.rTrash+trashSlots)
-	s.piv = make([]int, n)
-	s.dx = make([]float64, n)
-	s.rhs = make([]float64, n)
-	s.deliv = make([]float64, len(sys.needed))
-	s.save = make([]float64, N)
-	s.memo = make([]mosMemo, len(sys.mos))
+	s.newBuffers()
 	// The junction gmin of every transistor is constant: stamp it into the
 	// base once, for this solver's gmin.
 	s.base = append([]float64(nil), sys.base...)
@@ -142,18 +133,25 @@ func NewSolver(c *Circuit, opt Options) (*Solver, error) {
 // own, for use on another goroutine (the compiled system and the device
 // instances are read-only once built).
 func (s *Solver) clone() *Solver {
-	sys := s.sys
-	c := &Solver{sys: sys, opt: s.opt, base: s.base}
-	c.v = append([]float64(nil), s.v...)
-	c.w = make([]float64, len(s.w))
-	c.r = make([]float64, len(s.r))
-	c.piv = make([]int, len(s.piv))
-	c.dx = make([]float64, len(s.dx))
-	c.rhs = make([]float64, len(s.rhs))
-	c.deliv = make([]float64, len(s.deliv))
-	c.save = make([]float64, len(s.save))
-	c.memo = make([]mosMemo, len(s.memo))
+	c := &Solver{sys: s.sys, opt: s.opt, base: s.base}
+	c.newBuffers()
+	copy(c.v, s.v)
 	return c
+}
+
+// newBuffers gives s zeroed work buffers of its own, sized for s.sys.
+func (s *Solver) newBuffers() {
+	sys := s.sys
+	n, N := sys.n, sys.N
+	s.v = make([]float64, N)
+	s.w = make([]float64, len(sys.base))
+	s.r = make([]float64, sys.rTrash+trashSlots)
+	s.piv = make([]int, n)
+	s.dx = make([]float64, n)
+	s.rhs = make([]float64, n)
+	s.deliv = make([]float64, len(sys.needed))
+	s.save = make([]float64, N)
+	s.memo = make([]mosMemo, len(sys.mos))
 }
 
 // Circuit returns the circuit the solver was built from.
@@ -162,14 +160,15 @@ func (s *Solver) Circuit() *Circuit { return s.sys.c }
 // Unknowns returns the number of variables Newton solves for.
 func (s *Solver) Unknowns() int { return s.sys.n }
 
-// setFixed computes the voltages of fixed nodes; scale multiplies every
-// independent source (source stepping).
-func (s *Solver) setFixed(vcm, vid, scale float64) {
+// setFixed computes the voltages of fixed nodes into v, a slice of all
+// variables in system order; scale multiplies every independent source
+// (source stepping).
+func (s *Solver) setFixed(v []float64, vcm, vid, scale float64) {
 	fx := s.sys.fixed
-	s.v[fx[0].idx] = 0
+	v[fx[0].idx] = 0
 	for k := 1; k < len(fx); k++ {
 		f := &fx[k]
-		s.v[f.idx] = s.v[fx[f.parent].idx] + f.sign*scale*f.drive.At(vcm, vid)
+		v[f.idx] = v[fx[f.parent].idx] + f.sign*scale*f.drive.At(vcm, vid)
 	}
 }
 
@@ -275,7 +274,7 @@ func (s *Solver) newtonMoving(vcm, vid float64, maxIter int) bool {
 // iterate is Newton's method over the first m unknowns.
 func (s *Solver) iterate(m int, vcm, vid, scale, gshunt float64, maxIter int) bool {
 	n := s.sys.n
-	s.setFixed(vcm, vid, scale)
+	s.setFixed(s.v, vcm, vid, scale)
 	lu, dx := s.w[:n*n], s.dx[:m]
 	for it := 0; it < maxIter; it++ {
 		s.iterations++
@@ -301,7 +300,6 @@ func (s *Solver) iterate(m int, vcm, vid, scale, gshunt float64, maxIter int) bo
 			return false
 		}
 		if converged && !limited {
-			clear(s.dx[m:n])
 			s.active = m
 			return true
 		}

@@ -381,9 +381,10 @@ func TestLongNewtonConverges(t *testing.T) {
 	nm, _ := squareLaw()
 	c := New("slow diode", t27)
 	vdd, g := c.Node("vdd"), c.Node("g")
+	geom, iref := device.Geometry{W: 10e-6, L: 1e-6}, 10e-6
 	c.AddVSource("VDD", vdd, Ground, Const(3), true)
-	c.AddMosfet("M1", g, g, Ground, Ground, nm, device.Geometry{W: 10e-6, L: 1e-6})
-	c.AddISource("I1", vdd, g, Const(10e-6), false)
+	c.AddMosfet("M1", g, g, Ground, Ground, nm, geom)
+	c.AddISource("I1", vdd, g, Const(iref), false)
 	s, err := NewSolver(c, Options{MaxStep: 0.02, MaxIter: 400})
 	if err != nil {
 		t.Fatal(err)
@@ -394,9 +395,9 @@ func TestLongNewtonConverges(t *testing.T) {
 	if s.Iterations() <= 2*dampAfter {
 		t.Fatalf("converged in %d iterations; the test wants a solve well past the damping point %d", s.Iterations(), dampAfter)
 	}
-	vgs := 0.5
+	vgs := nm.VTO
 	for k := 0; k < 50; k++ {
-		vgs = 0.5 + math.Sqrt(2*(10e-6-1e-12*vgs)/(200e-6*10))
+		vgs = nm.VTO + math.Sqrt(2*(iref-1e-12*vgs)/(nm.KP*geom.W/geom.L))
 	}
 	if got := s.v[s.sys.idx[g]]; !near(got, vgs, 1e-9, 1e-9) {
 		t.Errorf("V_GS = %.12g V after %d iterations, square law %.12g V", got, s.Iterations(), vgs)

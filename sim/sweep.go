@@ -301,9 +301,10 @@ func (s *Solver) Solve(vcm, vid float64) (*Point, error) {
 // PointAt returns point i of a sweep result as a Point.
 func (s *Solver) PointAt(res *Result, i int) *Point {
 	n := res.Unknowns
-	copy(s.v[:n], res.X[i*n:(i+1)*n])
-	s.setFixed(res.VCM[i], res.VID, 1)
-	p := &Point{VCM: res.VCM[i], VID: res.VID, V: append([]float64(nil), s.v...), sys: s.sys}
+	v := make([]float64, s.sys.N)
+	copy(v[:n], res.X[i*n:(i+1)*n])
+	s.setFixed(v, res.VCM[i], res.VID, 1)
+	p := &Point{VCM: res.VCM[i], VID: res.VID, V: v, sys: s.sys}
 	if len(res.GM) > i {
 		p.GM = res.GM[i]
 	}

@@ -1,9 +1,6 @@
 package sim
 
-import (
-	"testing"
-	"time"
-)
+import "testing"
 
 // BenchmarkDiffPairSweep times a fine sweep of a level-1 pair with exact
 // gm, where continuation needs about one Newton iteration per point.
@@ -20,12 +17,11 @@ func BenchmarkDiffPairSweep(b *testing.B) {
 	}
 	b.ReportAllocs()
 	it0 := s.Iterations()
-	start := time.Now()
 	for b.Loop() {
 		if err := s.Sweep(sp, res); err != nil {
 			b.Fatal(err)
 		}
 	}
-	b.ReportMetric(float64(time.Since(start).Nanoseconds())/float64(b.N*res.Len()), "ns/point")
+	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*res.Len()), "ns/point")
 	b.ReportMetric(float64(s.Iterations()-it0)/float64(b.N*res.Len()), "iter/point")
 }
