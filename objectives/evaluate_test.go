@@ -3,7 +3,6 @@ package objectives_test
 import (
 	"encoding/json"
 	"math"
-	"reflect"
 	"slices"
 	"testing"
 
@@ -33,26 +32,6 @@ func design(t *testing.T, family string, given topologies.Values) *objectives.De
 	}
 	return &objectives.Design{Topology: family, ProcessRef: "demo18-l1", Process: proc, Supply: 1.8,
 		TempK: 300.15, Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01}, Params: v}
-}
-
-// sameMetrics compares metrics bit for bit, NaN matching NaN. It walks
-// every field by reflection, so a field added to Metrics is compared too.
-func sameMetrics(a, b objectives.Metrics) bool {
-	x, y := reflect.ValueOf(a), reflect.ValueOf(b)
-	for i := range x.NumField() {
-		f, g := x.Field(i), y.Field(i)
-		if f.Kind() != reflect.Float64 {
-			if !reflect.DeepEqual(f.Interface(), g.Interface()) {
-				return false
-			}
-			continue
-		}
-		p, q := f.Float(), g.Float()
-		if math.Float64bits(p) != math.Float64bits(q) && !(math.IsNaN(p) && math.IsNaN(q)) {
-			return false
-		}
-	}
-	return true
 }
 
 func evaluate(t *testing.T, d *objectives.Design) *objectives.Evaluation {
@@ -125,7 +104,7 @@ func TestMeasure(t *testing.T) {
 			if got, want := res.Len(), 181; got != want {
 				t.Fatalf("%d points, want %d", got, want)
 			}
-			if again := objectives.Measure(ev.Stage, res); !sameMetrics(m, again) {
+			if again := objectives.Measure(ev.Stage, res); !m.Same(again) {
 				t.Errorf("Evaluation.Metrics %+v, Measure of its sweep %+v", m, again)
 			}
 			if got, want := m.GMMin, slices.Min(res.GM); got != want {
@@ -351,7 +330,7 @@ func TestEvaluateDoc(t *testing.T) {
 			if back.Topology != tt.family || len(back.Curve) != len(curve) || len(back.Devices) != len(devs) {
 				t.Errorf("read back: %s, %d points, %d devices", back.Topology, len(back.Curve), len(back.Devices))
 			}
-			if !sameMetrics(back.Metrics, ev.Metrics) {
+			if !back.Metrics.Same(ev.Metrics) {
 				t.Errorf("metrics read back %+v, want %+v", back.Metrics, ev.Metrics)
 			}
 		})

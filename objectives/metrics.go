@@ -7,6 +7,7 @@ package objectives
 import (
 	"encoding/json"
 	"math"
+	"reflect"
 
 	"pairsmith/sim"
 	"pairsmith/topologies"
@@ -208,4 +209,26 @@ func cross(x0, s0, x1, s1, level float64) float64 {
 		return x0
 	}
 	return x0 + (level-s0)/(s1-s0)*(x1-x0)
+}
+
+// Same reports whether two measurements are identical, bit for bit with
+// NaN matching NaN, field by field (by reflection, so that a field added
+// to Metrics is compared too): the contract a design file written for a
+// candidate meets when it is evaluated again.
+func (m Metrics) Same(o Metrics) bool {
+	x, y := reflect.ValueOf(m), reflect.ValueOf(o)
+	for i := range x.NumField() {
+		f, g := x.Field(i), y.Field(i)
+		if f.Kind() != reflect.Float64 {
+			if !reflect.DeepEqual(f.Interface(), g.Interface()) {
+				return false
+			}
+			continue
+		}
+		p, q := f.Float(), g.Float()
+		if math.Float64bits(p) != math.Float64bits(q) && !(math.IsNaN(p) && math.IsNaN(q)) {
+			return false
+		}
+	}
+	return true
 }

@@ -483,3 +483,30 @@ func TestMetricsUnmarshalMissing(t *testing.T) {
 		}
 	}
 }
+
+// TestMetricsSame checks the identity of two measurements: bit for bit,
+// NaN matching NaN (IEEE 754 NaN never equals itself, so == would fail),
+// +0 and −0 told apart, and every field taken into account, the last one
+// added included (common practice, no source).
+func TestMetricsSame(t *testing.T) {
+	base := objectives.Metrics{GMMin: 1e-4, GMMax: 1.1e-4, GMRipple: 0.1, Power: 1e-4, Area: 1e-9,
+		Switchover: math.NaN(), TransitionWidth: math.NaN(), GMOverIDMin: 12}
+	for _, tc := range []struct {
+		name   string
+		change func(a, b *objectives.Metrics)
+		same   bool
+	}{
+		{"identical, NaN fields included", func(_, _ *objectives.Metrics) {}, true},
+		{"last field differs", func(_, b *objectives.Metrics) { b.GMOverIDMin = math.Nextafter(12, 13) }, false},
+		{"NaN against a number", func(_, b *objectives.Metrics) { b.Switchover = 0.9 }, false},
+		{"−0 against +0", func(a, b *objectives.Metrics) { a.GMRipple, b.GMRipple = math.Copysign(0, -1), 0 }, false},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			a, b := base, base
+			tc.change(&a, &b)
+			if got := a.Same(b); got != tc.same {
+				t.Errorf("Same = %v, want %v", got, tc.same)
+			}
+		})
+	}
+}

@@ -8,7 +8,6 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"reflect"
 	"strings"
 	"testing"
 	"time"
@@ -104,7 +103,7 @@ func TestWriteRun(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if !sameMetrics(ev.Metrics, c.Metrics) {
+		if !ev.Metrics.Same(c.Metrics) {
 			t.Errorf("%s: read back %+v, reported %+v", c.ID, ev.Metrics, c.Metrics)
 		}
 	}
@@ -112,26 +111,6 @@ func TestWriteRun(t *testing.T) {
 	if err := WriteRun(notes, res, RunOptions{}); err == nil {
 		t.Error("no error writing into a regular file")
 	}
-}
-
-// sameMetrics compares metrics bit for bit, NaN matching NaN. It walks
-// every field by reflection, so a field added to Metrics is compared too.
-func sameMetrics(a, b objectives.Metrics) bool {
-	x, y := reflect.ValueOf(a), reflect.ValueOf(b)
-	for i := range x.NumField() {
-		f, g := x.Field(i), y.Field(i)
-		if f.Kind() != reflect.Float64 {
-			if !reflect.DeepEqual(f.Interface(), g.Interface()) {
-				return false
-			}
-			continue
-		}
-		p, q := f.Float(), g.Float()
-		if math.Float64bits(p) != math.Float64bits(q) && !(math.IsNaN(p) && math.IsNaN(q)) {
-			return false
-		}
-	}
-	return true
 }
 
 // TestSummaryTimes: summary.json depends on the run's time only through
