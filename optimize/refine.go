@@ -147,12 +147,18 @@ func (r *runner) refineStarts(budget int) []start {
 		return starts
 	}
 
-	res := summarize(all, len(r.fams), r.scales)
+	r.mu.Lock()
+	res := r.arch.result(all)
+	r.mu.Unlock()
 	if len(res.Front) > 0 {
 		// The front members whose loss would cost the front the most
-		// hypervolume, each weighted at its own trade-off.
-		for _, i := range byContribution(res.Front, r.scales)[:min(room, len(res.Front))] {
-			c := res.Front[i]
+		// hypervolume, each weighted at its own trade-off. The
+		// contributions cost O(F²) hypervolumes of F members, so a front
+		// larger than the reported one is thinned to its most spread
+		// members first, as the report thins it.
+		front := thinFront(res.Front, MaxReportedFront)
+		for _, i := range byContribution(front, r.scales)[:min(room, len(front))] {
+			c := front[i]
 			w := make([]float64, len(c.Outcome.Objectives))
 			for k, f := range c.Outcome.Objectives {
 				w[k] = 1 / (math.Abs(f/r.scales[k]) + weightFloor)

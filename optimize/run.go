@@ -7,6 +7,7 @@ import (
 	"math"
 	"math/rand"
 	"runtime"
+	"slices"
 	"sort"
 	"sync"
 	"time"
@@ -199,6 +200,7 @@ type runner struct {
 	sem      chan struct{}
 	mu       sync.Mutex
 	all      []Candidate
+	arch     *archive
 	feasible int
 	best     float64
 	nearest  float64
@@ -293,6 +295,7 @@ func newRunner(ctx context.Context, prob Problem, set Settings) (*runner, error)
 			}
 		}
 	}
+	r.arch = newArchive(len(fams), r.scales)
 	return r, nil
 }
 
@@ -326,13 +329,21 @@ func (r *runner) expired() bool {
 	return false
 }
 
-// evaluate evaluates one point on a worker slot and records it.
+// evaluate evaluates one point on a worker slot and records it. Once the
+// search has expired it evaluates and records nothing, and returns a
+// failed outcome, so that whatever phase is under way winds down at once.
 func (r *runner) evaluate(key Key, p Point) Outcome {
 	r.sem <- struct{}{}
+	if r.expired() {
+		<-r.sem
+		return Outcome{Failed: true}
+	}
 	o := r.prob.Evaluate(p)
 	<-r.sem
 	r.mu.Lock()
-	r.all = append(r.all, Candidate{Key: key, Point: p.Clone(), Outcome: o})
+	c := Candidate{Key: key, Point: p.Clone(), Outcome: o}
+	r.all = append(r.all, c)
+	r.arch.add(c)
 	if o.Feasible() {
 		r.feasible++
 		r.best = math.Min(r.best, Score(o.Objectives, r.scales, nil))
@@ -397,62 +408,25 @@ func (r *runner) random(budget int) error {
 	return nil
 }
 
-// result assembles the Result from every evaluation, in Key order.
+// result assembles the Result from the archive and every evaluation, in
+// Key order.
 func (r *runner) result() *Result {
-	res := summarize(r.snapshot(), len(r.fams), r.scales)
+	all := r.snapshot()
 	r.mu.Lock()
+	defer r.mu.Unlock()
+	res := r.arch.result(all)
 	res.Elapsed, res.Stopped = time.Since(r.start), r.stopped
-	r.mu.Unlock()
 	return res
 }
 
-// summarize gathers the front, the nearest misses, each family's best and
-// the first feasible evaluation of candidates in Key order.
-func summarize(all []Candidate, nfam int, scales []float64) *Result {
-	res := &Result{All: all, Evaluations: len(all)}
-	var feas []Candidate
-	var infeas []Candidate
-	for i, c := range all {
-		switch {
-		case c.Outcome.Feasible():
-			if res.FirstFeasible == 0 {
-				res.FirstFeasible = i + 1
-			}
-			feas = append(feas, c)
-		case !c.Outcome.Failed:
-			infeas = append(infeas, c)
-		}
-	}
-	objs := make([][]float64, len(feas))
-	for i, c := range feas {
-		objs[i] = c.Outcome.Objectives
-	}
-	if len(feas) > 0 {
-		fronts := NonDominatedSort(objs, nil)
-		seen := map[string]bool{}
-		for _, i := range fronts[0] {
-			k := pointKey(feas[i].Outcome.Objectives)
-			if seen[k] {
-				continue // the same trade-off twice: keep the first found
-			}
-			seen[k] = true
-			res.Front = append(res.Front, feas[i])
-		}
-		sort.SliceStable(res.Front, func(i, j int) bool {
-			return Score(res.Front[i].Outcome.Objectives, scales, nil) < Score(res.Front[j].Outcome.Objectives, scales, nil)
-		})
-	}
-	sort.SliceStable(infeas, func(i, j int) bool { return infeas[i].Outcome.Violation() < infeas[j].Outcome.Violation() })
-	res.Nearest = infeas[:min(len(infeas), NearestKept)]
-	res.BestOf = make([]FamilyBest, nfam)
-	for f := range res.BestOf {
-		res.BestOf[f].Family = f
-	}
-	for _, c := range all {
-		fb := &res.BestOf[c.Point.Family]
-		if !c.Outcome.Failed && (!fb.OK || better(c.Outcome, fb.Candidate.Outcome, scales)) {
-			fb.Candidate, fb.OK = c, true
-		}
+// result returns what the archive holds as a Result over all, the
+// evaluations it was given in Key order.
+func (a *archive) result(all []Candidate) *Result {
+	res := &Result{All: all, Evaluations: len(all), Front: a.sortedFront(),
+		Nearest: slices.Clone(a.nearest), BestOf: slices.Clone(a.best)}
+	if a.anyFeasible {
+		// The first feasible key's place in Key order.
+		res.FirstFeasible = sort.Search(len(all), func(i int) bool { return !all[i].Key.less(a.firstFeasible) }) + 1
 	}
 	return res
 }
