@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io/fs"
+	"math"
 	"os"
 	"path/filepath"
 	"slices"
@@ -21,6 +22,54 @@ type Process struct {
 	Kind  string  // model kind of both cards: "level1" or "ekv"
 	TnomK float64 // temperature at which the card parameters hold, K
 	N, P  Model   // the NMOS and PMOS cards: *Level1 or *EKV
+
+	// File is the file the process was read from, as given to
+	// ReadProcess; pos holds the line and text of every card value
+	// ("nmos.ld"), so that a check made later, against a design, can
+	// point at the line to change (see ErrorAt).
+	File string
+	pos  map[string]fieldPos
+}
+
+// fieldPos is where a card value is written: its line (the card's own
+// line when the value is left out) and its text ("" when left out).
+type fieldPos struct {
+	line int
+	text string
+}
+
+// ErrorAt returns an error located at a card value of the process file,
+// field as in "nmos.ld", for a problem a later check finds with it (a
+// lateral diffusion longer than half a design's channel): it names the
+// file, the value's line (the card's when the value is left out) and
+// text, and what is wanted.
+func (p *Process) ErrorAt(field, want string, err error) *units.Error {
+	fp := p.pos[field]
+	return &units.Error{File: p.File, Line: fp.line, Field: field, Given: fp.text, Want: want, Err: err}
+}
+
+// Threshold returns the magnitude of the zero-bias threshold VTO of the
+// card of polarity t at the card's tnom, V; 0 for a card of another model.
+func (p *Process) Threshold(t Type) float64 {
+	switch c := p.Card(t).(type) {
+	case *Level1:
+		return math.Abs(c.VTO)
+	case *EKV:
+		return math.Abs(c.VTO)
+	}
+	return 0
+}
+
+// LateralDiffusion returns the LD of the card of polarity t, m; 0 for a
+// card of another model.
+func (p *Process) LateralDiffusion(t Type) float64 {
+	switch c := p.Card(t).(type) {
+	case *Level1:
+		return c.LD
+	case *EKV:
+		return c.LD
+	}
+	return 0
 }
 
 // Card returns the process's model card for polarity t, nil for a Type
@@ -66,13 +115,17 @@ func LoadProcess(path string) (*Process, error) {
 //	pmos: {vto: -0.45V, kp: 70uA/V2, gamma: 0.45, phi: 0.8V, lambda: 0.06}
 //
 // Each card takes vto (V, SPICE sign: positive for an NMOS, negative for a
-// PMOS) and kp (A/V², > 0), both required; gamma (√V, ≥ 0, default 0),
-// phi (V, > 0, default 0.7 V), lambda (1/V, ≥ 0, default 0), ld (m, ≥ 0,
-// default 0), tcv (V/K, the magnitude, ≥ 0) and bex. An ekv card takes
-// tcv = 1 mV/K and bex = −1.5 when they are left out. A level1 card
-// follows the SPICE level-1 temperature law unless it gives tcv or bex;
-// then it uses the linear law of Level1.LinearTemp, the other of the two
-// taking its default.
+// PMOS) and kp (A/V²), both required; gamma (√V, default 0), phi (V,
+// default 0.7 V), lambda (1/V, default 0), ld (m, default 0), tcv (V/K,
+// the magnitude) and bex. An ekv card takes tcv = 1 mV/K and bex = −1.5
+// when they are left out. A level1 card follows the SPICE level-1
+// temperature law unless it gives tcv or bex; then it uses the linear law
+// of Level1.LinearTemp, the other of the two taking its default.
+//
+// Every value written must lie in its physical range (CardRanges,
+// TnomRange): |vto| 50 mV … 3 V, kp 1 µA/V² … 5 mA/V², gamma 0 … 4 √V,
+// phi 0.4 … 1.2 V, lambda 0 … 2 /V, ld 0 … 1 µm, tcv 0 … 5 mV/K,
+// bex −3 … 1.5, tnom 200 … 500 K.
 //
 // An error names the file, line and field, what was given and what was
 // wanted; it is a *units.Error.
@@ -87,7 +140,7 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 	if err := m.Require("model", "nmos", "pmos"); err != nil {
 		return nil, err
 	}
-	p := &Process{Name: strings.TrimSuffix(filepath.Base(file), filepath.Ext(file))}
+	p := &Process{Name: strings.TrimSuffix(filepath.Base(file), filepath.Ext(file)), File: file, pos: map[string]fieldPos{}}
 	if name, ok, err := m.String("name"); err != nil {
 		return nil, err
 	} else if ok {
@@ -105,13 +158,13 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 	if p.TnomK, err = m.QuantityOr("tnom", units.Temperature, defaultTnomK); err != nil {
 		return nil, err
 	}
-	if !(p.TnomK > 0) {
-		return nil, m.Errorf("tnom", "a temperature above absolute zero, for example 27C")
+	if r := TnomRange(); m.Has("tnom") && !r.Contains(p.TnomK) {
+		return nil, m.ErrorAt("tnom", m.Text("tnom"), r.Want(), errors.New(r.Why))
 	}
-	if p.N, err = readCard(m, "nmos", NMOS, p.Kind, p.TnomK); err != nil {
+	if p.N, err = readCard(m, "nmos", NMOS, p.Kind, p.TnomK, p.pos); err != nil {
 		return nil, err
 	}
-	if p.P, err = readCard(m, "pmos", PMOS, p.Kind, p.TnomK); err != nil {
+	if p.P, err = readCard(m, "pmos", PMOS, p.Kind, p.TnomK, p.pos); err != nil {
 		return nil, err
 	}
 	return p, nil
@@ -123,7 +176,7 @@ type cardValues struct {
 }
 
 // readCard reads the section key of a process file as a card of kind.
-func readCard(root *units.Map, key string, t Type, kind string, tnomK float64) (Model, error) {
+func readCard(root *units.Map, key string, t Type, kind string, tnomK float64, pos map[string]fieldPos) (Model, error) {
 	m, _, err := root.Map(key)
 	if err != nil {
 		return nil, err
@@ -134,41 +187,20 @@ func readCard(root *units.Map, key string, t Type, kind string, tnomK float64) (
 	if err := m.Require("vto", "kp"); err != nil {
 		return nil, err
 	}
-	vtoWant := "a positive threshold for an NMOS (SPICE sign convention), for example 0.45V"
-	vtoOK := func(v float64) bool { return v > 0 }
-	if t == PMOS {
-		vtoWant = "a negative threshold for a PMOS (SPICE sign convention), for example -0.45V"
-		vtoOK = func(v float64) bool { return v < 0 }
-	}
-	nonNeg := func(v float64) bool { return v >= 0 }
-	positive := func(v float64) bool { return v > 0 }
+	defaults := map[string]float64{"phi": defaultPhi, "tcv": defaultTCV, "bex": defaultBEX}
 	var c cardValues
-	fields := []struct {
-		key   string
-		d     units.Dim
-		def   float64
-		dst   *float64
-		valid func(float64) bool
-		want  string
-	}{
-		{"vto", units.Volt, 0, &c.vto, vtoOK, vtoWant},
-		{"kp", units.AmperePerVoltSq, 0, &c.kp, positive, "a positive transconductance parameter in A/V², for example 280uA/V2"},
-		{"gamma", units.SqrtVolt, 0, &c.gamma, nonNeg, "a body-effect coefficient ≥ 0 in √V, for example 0.5V^0.5"},
-		{"phi", units.Volt, defaultPhi, &c.phi, positive, "a positive surface potential in V, for example 0.8V"},
-		{"lambda", units.PerVolt, 0, &c.lambda, nonNeg, "a channel-length modulation ≥ 0 in 1/V, for example 0.05/V"},
-		{"ld", units.Metre, 0, &c.ld, nonNeg, "a lateral diffusion ≥ 0 in m, for example 20nm"},
-		{"tcv", units.VoltPerKelvin, defaultTCV, &c.tcv, nonNeg, "the magnitude (≥ 0) of the threshold's temperature coefficient in V/K, for example 1mV/K"},
-		{"bex", units.Dimensionless, defaultBEX, &c.bex, nil, ""},
-	}
-	for _, f := range fields {
-		v, err := m.QuantityOr(f.key, f.d, f.def)
+	dst := map[string]*float64{"vto": &c.vto, "kp": &c.kp, "gamma": &c.gamma, "phi": &c.phi,
+		"lambda": &c.lambda, "ld": &c.ld, "tcv": &c.tcv, "bex": &c.bex}
+	for _, r := range CardRanges(t) {
+		v, err := m.QuantityOr(r.Field, r.Dim, defaults[r.Field])
 		if err != nil {
 			return nil, err
 		}
-		if f.valid != nil && m.Has(f.key) && !f.valid(v) {
-			return nil, m.Errorf(f.key, "%s", f.want)
+		if m.Has(r.Field) && !r.Contains(v) {
+			return nil, m.ErrorAt(r.Field, m.Text(r.Field), r.Want(), errors.New(r.Why))
 		}
-		*f.dst = v
+		*dst[r.Field] = v
+		pos[key+"."+r.Field] = fieldPos{line: m.Line(r.Field), text: m.Text(r.Field)}
 	}
 	if kind == "ekv" {
 		return &EKV{Polarity: t, VTO: c.vto, KP: c.kp, Gamma: c.gamma, Phi: c.phi, Lambda: c.lambda,

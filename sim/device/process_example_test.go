@@ -25,7 +25,7 @@ pmos: {vto: -0.45V, kp: 70uA/V2, gamma: 0.45, phi: 0.8V, lambda: 0.06}
 	fmt.Println(err)
 	// Output:
 	// demo-l1 level1 300.15 0.45 0.00028
-	// process.yaml:2: nmos.vto: got "-0.45V", want a positive threshold for an NMOS (SPICE sign convention), for example 0.45V
+	// process.yaml:2: nmos.vto: got "-0.45V", want a positive NMOS threshold (SPICE sign convention) from 50mV to 3V (enhancement thresholds run from about 0.2 V to 1.5 V)
 }
 
 func ExampleBuiltin() {

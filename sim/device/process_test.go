@@ -3,6 +3,7 @@ package device
 import (
 	"errors"
 	"io/fs"
+	"math"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -192,25 +193,25 @@ func TestReadProcessErrors(t *testing.T) {
 		{"missing vto", "model: ekv\nnmos: {kp: 280uA/V2}\npmos: {vto: -0.45V, kp: 70uA/V2}\n",
 			2, "nmos.vto", "required field missing"},
 		{"negative kp", "model: level1\nnmos:\n  vto: 0.45V\n  kp: -280uA/V2\npmos: {vto: -0.45V, kp: 70uA/V2}\n",
-			4, "nmos.kp", `got "-280uA/V2", want a positive transconductance parameter`},
+			4, "nmos.kp", `got "-280uA/V2", want a transconductance parameter µ·Cox from 1uA/V2 to 5mA/V2`},
 		{"zero kp", "model: ekv\nnmos: {vto: 0.45V, kp: 0}\npmos: {vto: -0.45V, kp: 70uA/V2}\n",
-			2, "nmos.kp", "want a positive transconductance parameter"},
+			2, "nmos.kp", "want a transconductance parameter µ·Cox from 1uA/V2 to 5mA/V2"},
 		{"zero phi", "model: level1\nnmos: {vto: 0.45V, kp: 280uA/V2, phi: 0V}\npmos: {vto: -0.45V, kp: 70uA/V2}\n",
-			2, "nmos.phi", "want a positive surface potential"},
+			2, "nmos.phi", "want a surface potential 2φF from 400mV to 1.2V"},
 		{"negative gamma", good[:len(good)-2] + ", gamma: -0.1}\n",
-			3, "pmos.gamma", `got "-0.1", want a body-effect coefficient ≥ 0`},
+			3, "pmos.gamma", `got "-0.1", want a body-effect coefficient from 0V^0.5 to 4V^0.5`},
 		{"negative lambda", good[:len(good)-2] + ", lambda: -0.01/V}\n",
-			3, "pmos.lambda", "want a channel-length modulation ≥ 0"},
+			3, "pmos.lambda", "want a channel-length modulation from 0/V to 2/V"},
 		{"negative ld", good[:len(good)-2] + ", ld: -10nm}\n",
-			3, "pmos.ld", "want a lateral diffusion ≥ 0"},
+			3, "pmos.ld", "want a lateral diffusion from 0m to 1um"},
 		{"negative tcv", good[:len(good)-2] + ", tcv: -1mV/K}\n",
 			3, "pmos.tcv", "magnitude"},
 		{"NMOS with negative vto", "model: level1\nnmos: {vto: -0.45V, kp: 280uA/V2}\npmos: {vto: -0.45V, kp: 70uA/V2}\n",
-			2, "nmos.vto", "want a positive threshold for an NMOS (SPICE sign convention)"},
+			2, "nmos.vto", "want a positive NMOS threshold (SPICE sign convention) from 50mV to 3V"},
 		{"NMOS with zero vto", "model: level1\nnmos: {vto: 0, kp: 280uA/V2}\npmos: {vto: -0.45V, kp: 70uA/V2}\n",
-			2, "nmos.vto", "want a positive threshold for an NMOS"},
+			2, "nmos.vto", "want a positive NMOS threshold"},
 		{"PMOS with positive vto", "model: ekv\nnmos: {vto: 0.45V, kp: 280uA/V2}\n\npmos: {vto: 0.45V, kp: 70uA/V2}\n",
-			4, "pmos.vto", `got "0.45V", want a negative threshold for a PMOS (SPICE sign convention)`},
+			4, "pmos.vto", `got "0.45V", want a negative PMOS threshold (SPICE sign convention) from -3V to -50mV`},
 		{"wrong unit", "model: ekv\nnmos: {vto: 0.45A, kp: 280uA/V2}\npmos: {vto: -0.45V, kp: 70uA/V2}\n",
 			2, "nmos.vto", `got "0.45A", want a voltage in V, for example 1.8V`},
 		{"kp without /V2", "model: ekv\nnmos: {vto: 0.45V, kp: 280uA}\npmos: {vto: -0.45V, kp: 70uA/V2}\n",
@@ -218,7 +219,7 @@ func TestReadProcessErrors(t *testing.T) {
 		{"tnom wrong unit", "model: ekv\ntnom: 27V\n" + good[len("model: level1\n"):],
 			2, "tnom", "want a temperature in °C or K"},
 		{"tnom absolute zero", "model: ekv\ntnom: 0K\n" + good[len("model: level1\n"):],
-			2, "tnom", "above absolute zero"},
+			2, "tnom", "want a nominal temperature from -73.15C to 226.85C"},
 		{"unknown card field", "model: ekv\nnmos: {vt0: 0.45V, kp: 280uA/V2}\npmos: {vto: -0.45V, kp: 70uA/V2}\n",
 			2, "nmos.vt0", `unknown field; did you mean "vto"?`},
 		{"unknown root field", "model: ekv\ntnorm: 27C\n" + good[len("model: level1\n"):],
@@ -325,5 +326,234 @@ func TestLoadProcessMissing(t *testing.T) {
 	_, err := LoadProcess(filepath.Join(t.TempDir(), "none.yaml"))
 	if !errors.Is(err, fs.ErrNotExist) || !strings.Contains(err.Error(), "none.yaml") {
 		t.Errorf("error %v, want one naming the file and wrapping fs.ErrNotExist", err)
+	}
+}
+
+// TestCardRanges reads a card with each value at, just inside and just
+// outside each bound of its range (CardRanges, TnomRange): at and inside
+// are accepted and read back exactly, outside is refused at the value's
+// line and field with the range in the message. One millionth of the
+// range's span is "just": far above float64 rounding, far below any
+// physical difference.
+func TestCardRanges(t *testing.T) {
+	// card writes a process file whose card of polarity ty has field:
+	// text on its own line, first (line 3 for the nmos card, 4 for the
+	// pmos one), the other card being demo numbers in flow style.
+	card := func(ty Type, field, text string) string {
+		def := map[Type][]string{NMOS: {"vto: 0.45V", "kp: 280uA/V2"}, PMOS: {"vto: -0.45V", "kp: 70uA/V2"}}
+		lines := []string{field + ": " + text}
+		for _, l := range def[ty] {
+			if !strings.HasPrefix(l, field+":") {
+				lines = append(lines, l)
+			}
+		}
+		block := ty.String() + ":\n  " + strings.Join(lines, "\n  ") + "\n"
+		if ty == NMOS {
+			return "model: ekv\n" + block + "pmos: {" + strings.Join(def[PMOS], ", ") + "}\n"
+		}
+		return "model: ekv\nnmos: {" + strings.Join(def[NMOS], ", ") + "}\n" + block
+	}
+	type probe struct {
+		x  float64
+		ok bool
+	}
+	probes := func(r Range) []probe {
+		d := 1e-6 * (r.Max - r.Min)
+		return []probe{{r.Min, true}, {r.Min + d, true}, {r.Max - d, true}, {r.Max, true},
+			{r.Min - d, false}, {r.Max + d, false}}
+	}
+	for _, ty := range []Type{NMOS, PMOS} {
+		line := 3
+		if ty == PMOS {
+			line = 4
+		}
+		for _, r := range CardRanges(ty) {
+			for _, pr := range probes(r) {
+				text := units.Format(pr.x, r.Dim)
+				t.Run(ty.String()+"."+r.Field+"="+text, func(t *testing.T) {
+					p, err := ReadProcess("r.yaml", []byte(card(ty, r.Field, text)))
+					if !pr.ok {
+						var e *units.Error
+						if !errors.As(err, &e) {
+							t.Fatalf("error %v, want a *units.Error for %s outside %s", err, text, r.Want())
+						}
+						field := ty.String() + "." + r.Field
+						if e.Line != line || e.Field != field || e.Given != text || !strings.Contains(err.Error(), r.Want()) {
+							t.Errorf("error %q, want r.yaml:%d: %s: got %q, want %s", err, line, field, text, r.Want())
+						}
+						return
+					}
+					if err != nil {
+						t.Fatalf("%s inside %s refused: %v", text, r.Want(), err)
+					}
+					got := cardValue(t, p.Card(ty), r.Field)
+					if got != pr.x {
+						t.Errorf("read %g, wrote %g", got, pr.x)
+					}
+				})
+			}
+		}
+	}
+	r := TnomRange()
+	for _, pr := range probes(r) {
+		text := units.Format(pr.x, r.Dim)
+		t.Run("tnom="+text, func(t *testing.T) {
+			p, err := ReadProcess("r.yaml", []byte("model: level1\ntnom: "+text+"\nnmos: {vto: 0.45V, kp: 280uA/V2}\npmos: {vto: -0.45V, kp: 70uA/V2}\n"))
+			if !pr.ok {
+				var e *units.Error
+				if !errors.As(err, &e) || e.Line != 2 || e.Field != "tnom" || !strings.Contains(err.Error(), r.Want()) {
+					t.Errorf("error %v, want r.yaml:2: tnom: … want %s", err, r.Want())
+				}
+				return
+			}
+			if err != nil {
+				t.Fatalf("%s refused: %v", text, err)
+			}
+			if p.TnomK != pr.x || p.N.(*Level1).TnomK != pr.x {
+				t.Errorf("tnom %g K, wrote %g K", p.TnomK, pr.x)
+			}
+		})
+	}
+}
+
+// cardValue returns the value called field of a card.
+func cardValue(t *testing.T, m Model, field string) float64 {
+	t.Helper()
+	c, ok := m.(*EKV)
+	if !ok {
+		t.Fatalf("card %T, want *EKV", m)
+	}
+	switch field {
+	case "vto":
+		return c.VTO
+	case "kp":
+		return c.KP
+	case "gamma":
+		return c.Gamma
+	case "phi":
+		return c.Phi
+	case "lambda":
+		return c.Lambda
+	case "ld":
+		return c.LD
+	case "tcv":
+		return c.TCV
+	case "bex":
+		return c.BEX
+	}
+	t.Fatalf("no card field %q", field)
+	return 0
+}
+
+// TestCardRangesRefuseTypos: the slips of the issue that asked for the
+// ranges, each of which used to give numbers (or a solver failure)
+// instead of an error at its line.
+func TestCardRangesRefuseTypos(t *testing.T) {
+	tests := []struct{ field, text string }{
+		{"kp", "1e30"}, {"bex", "1000"}, {"tcv", "1V/K"}, {"lambda", "1e6"}, {"gamma", "1e6"},
+		{"vto", "100V"}, {"vto", "450uV"}, {"phi", "1e-9"}, {"phi", "8V"}, {"kp", "280A/V2"}, {"ld", "20um"},
+	}
+	for _, tt := range tests {
+		pmos := map[string]string{"vto": "-0.45V", "kp": "70uA/V2", tt.field: tt.text}
+		text := "model: level1\nnmos: {vto: 0.45V, kp: 280uA/V2}\npmos:\n  vto: " + pmos["vto"] + "\n  kp: " + pmos["kp"] + "\n"
+		line := 4
+		switch tt.field {
+		case "kp":
+			line = 5
+		case "vto":
+		default:
+			text += "  " + tt.field + ": " + tt.text + "\n"
+			line = 6
+		}
+		_, err := ReadProcess("t.yaml", []byte(text))
+		var e *units.Error
+		if !errors.As(err, &e) || e.Field != "pmos."+tt.field || e.Given != tt.text || e.Line != line {
+			t.Errorf("%s: %s: error %v, want one at t.yaml:%d: pmos.%s", tt.field, tt.text, err, line, tt.field)
+		}
+	}
+	// A tnom of a million degrees.
+	if _, err := ReadProcess("t.yaml", []byte("model: ekv\ntnom: 1e6\nnmos: {vto: 0.45V, kp: 280uA/V2}\npmos: {vto: -0.45V, kp: 70uA/V2}\n")); err == nil ||
+		!strings.HasPrefix(err.Error(), "t.yaml:2: tnom: ") {
+		t.Errorf("tnom 1e6: error %v", err)
+	}
+}
+
+// TestCardRangesHoldPhysics checks the ranges against the textbook
+// formulas their comments cite (Sze, Physics of Semiconductor Devices;
+// constants CODATA 2018; εox = 3.9·ε0, εSi = 11.7·ε0, ni = 1e10 cm⁻³ at
+// 300 K, from memory): the values of real processes lie inside.
+func TestCardRangesHoldPhysics(t *testing.T) {
+	const (
+		eps0  = 8.8541878128e-12 // F/m, CODATA 2018
+		epsOx = 3.9 * eps0
+		epsSi = 11.7 * eps0
+		ni    = 1e16 // m⁻³ (1e10 cm⁻³)
+	)
+	ut := ThermalVoltage(300)
+	cox := func(tox float64) float64 { return epsOx / tox }
+	in := func(ty Type, field string, x float64) bool {
+		for _, r := range CardRanges(ty) {
+			if r.Field == field {
+				return r.Contains(x)
+			}
+		}
+		t.Fatalf("no range for %s", field)
+		return false
+	}
+	tests := []struct {
+		what  string
+		field string
+		x     float64
+	}{
+		// 2φF = 2·U_T·ln(N/ni) for channel doping 1e15 and 1e18 cm⁻³.
+		{"phi, N = 1e15 cm⁻³", "phi", 2 * ut * math.Log(1e21/ni)},
+		{"phi, N = 1e18 cm⁻³", "phi", 2 * ut * math.Log(1e24/ni)},
+		// µ·Cox: holes at 50 cm²/Vs under 100 nm, electrons at 700 cm²/Vs under 1 nm.
+		{"kp, holes, 100 nm", "kp", 50e-4 * cox(100e-9)},
+		{"kp, electrons, 1 nm", "kp", 700e-4 * cox(1e-9)},
+		// γ = √(2q·εSi·N)/Cox: an old 5 V process and a heavily doped 20 nm one.
+		{"gamma, 1e16 cm⁻³, 25 nm", "gamma", math.Sqrt(2*Charge*epsSi*1e22) / cox(25e-9)},
+		{"gamma, 1e18 cm⁻³, 20 nm", "gamma", math.Sqrt(2*Charge*epsSi*1e24) / cox(20e-9)},
+		{"gamma, 5e18 cm⁻³, 1.5 nm", "gamma", math.Sqrt(2*Charge*epsSi*5e24) / cox(1.5e-9)},
+	}
+	for _, tt := range tests {
+		if !in(NMOS, tt.field, tt.x) {
+			t.Errorf("%s: %g outside the range", tt.what, tt.x)
+		}
+	}
+	// The phi range's stated span: 0.6 V to 0.95 V for 1e15 to 1e18 cm⁻³.
+	if lo, hi := 2*ut*math.Log(1e21/ni), 2*ut*math.Log(1e24/ni); math.Abs(lo-0.595) > 0.005 || math.Abs(hi-0.952) > 0.005 {
+		t.Errorf("2φF = %.3f V and %.3f V, the comment says 0.60 V and 0.95 V", lo, hi)
+	}
+	// Every built-in demo card lies inside (Builtin would panic otherwise;
+	// this says which value when it does not).
+	for _, name := range BuiltinNames() {
+		data, err := builtinFS.ReadFile("processes/" + name + ".yaml")
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := ReadProcess(name, data); err != nil {
+			t.Errorf("built-in %s: %v", name, err)
+		}
+	}
+}
+
+// TestProcessErrorAt: a check made after reading points at the line of
+// the card value it is about, or at the card when the value is left out.
+func TestProcessErrorAt(t *testing.T) {
+	text := "model: level1\nnmos:\n  vto: 0.45V\n  kp: 280uA/V2\n  ld: 40nm\npmos: {vto: -0.5V, kp: 70uA/V2}\n"
+	p, err := ReadProcess("dir/p.yaml", []byte(text))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := p.ErrorAt("nmos.ld", "less", nil).Error(); got != `dir/p.yaml:5: nmos.ld: got "40nm", want less` {
+		t.Errorf("ErrorAt(nmos.ld) = %q", got)
+	}
+	if got := p.ErrorAt("pmos.ld", "less", nil).Error(); got != `dir/p.yaml:6: pmos.ld: want less` {
+		t.Errorf("ErrorAt(pmos.ld) = %q", got)
+	}
+	if p.Threshold(NMOS) != 0.45 || p.Threshold(PMOS) != 0.5 || p.LateralDiffusion(NMOS) != 40e-9 || p.LateralDiffusion(PMOS) != 0 {
+		t.Errorf("thresholds %g, %g V, lateral diffusions %g, %g m", p.Threshold(NMOS), p.Threshold(PMOS),
+			p.LateralDiffusion(NMOS), p.LateralDiffusion(PMOS))
 	}
 }
