@@ -3,7 +3,10 @@ package optimize
 import (
 	"context"
 	"fmt"
+	"math"
+	"runtime"
 	"sort"
+	"sync"
 	"time"
 
 	"pairsmith/objectives"
@@ -48,6 +51,12 @@ type StageResult struct {
 	Binding     []string
 	Evaluations int
 	Elapsed     time.Duration
+	// FrontSize is the number of members of the whole feasible front,
+	// of which at most MaxReportedFront are reported.
+	FrontSize int
+	// Truncated says the search was stopped while the reported
+	// candidates were re-evaluated: those not done yet are left out.
+	Truncated bool
 }
 
 // SearchOptions tune Search beyond the spec, whose search settings
@@ -74,7 +83,7 @@ func Search(ctx context.Context, spec *objectives.Spec, opt SearchOptions) (*Sta
 	if err != nil {
 		return nil, err
 	}
-	return gather(prob, res)
+	return gather(ctx, prob, res, set)
 }
 
 // MaxReportedFront bounds how many members of the front a result reports
@@ -103,55 +112,132 @@ func thinFront(front []Candidate, n int) []Candidate {
 }
 
 // gather re-evaluates the candidates worth reporting and ranks the
-// families.
-func gather(prob *StageProblem, res *Result) (*StageResult, error) {
+// families. The re-evaluations run on the search's workers, each reported
+// to progress; once ctx is done no more start, and those not re-evaluated
+// are left out of the result (Truncated says so). They start in order of
+// importance — the front's best, each family's best, the rest of the
+// front, the nearest misses — so that an interrupted gather still reports
+// the best and every family.
+func gather(ctx context.Context, prob *StageProblem, res *Result, set Settings) (*StageResult, error) {
 	out := &StageResult{Spec: prob.Spec, Search: res, Evaluations: res.Evaluations, Elapsed: res.Elapsed}
 	scales := prob.Scales()
-	seen := map[Key]*StageCandidate{}
-	add := func(c Candidate, pareto bool) (*StageCandidate, error) {
-		if sc, ok := seen[c.Key]; ok {
-			sc.Pareto = sc.Pareto || pareto
-			return sc, nil
-		}
-		d := prob.Design(c.Point)
-		ev, err := objectives.Evaluate(d)
-		if err != nil {
-			return nil, fmt.Errorf("re-evaluate %s: %w", d.Topology, err)
-		}
-		vs := prob.Checks(ev.Metrics, prob.Spec.Targets)
-		sc := &StageCandidate{
-			Topology: d.Topology, Design: d, Eval: ev, Metrics: ev.Metrics, Violations: vs,
-			Feasible: objectives.TotalViolation(vs) == 0, Pareto: pareto,
-			Score: Score(prob.Spec.Axes(ev.Metrics), scales, nil), Key: c.Key,
-		}
-		seen[c.Key] = sc
-		out.Candidates = append(out.Candidates, sc)
-		return sc, nil
+	front := thinFront(res.Front, MaxReportedFront)
+	out.FrontSize = len(res.Front)
+
+	// The candidates to report, once each, in report order (the front,
+	// each family's best, the nearest misses), and the order they are
+	// re-evaluated in.
+	type item struct {
+		c      Candidate
+		pareto bool
+		sc     *StageCandidate
 	}
-	for _, c := range thinFront(res.Front, MaxReportedFront) {
-		if _, err := add(c, true); err != nil {
-			return nil, err
+	var items []*item
+	byKey := map[Key]*item{}
+	want := func(c Candidate, pareto bool) *item {
+		if it, ok := byKey[c.Key]; ok {
+			it.pareto = it.pareto || pareto
+			return it
+		}
+		it := &item{c: c, pareto: pareto}
+		byKey[c.Key] = it
+		items = append(items, it)
+		return it
+	}
+	for _, c := range front {
+		want(c, true)
+	}
+	famItem := make([]*item, len(res.BestOf))
+	for i, fb := range res.BestOf {
+		if fb.OK {
+			famItem[i] = want(fb.Candidate, false)
+		}
+	}
+	for _, c := range res.Nearest {
+		want(c, false)
+	}
+	order := make([]*item, 0, len(items))
+	if len(front) > 0 {
+		order = append(order, byKey[front[0].Key])
+	}
+	for _, it := range famItem {
+		if it != nil {
+			order = append(order, it)
+		}
+	}
+	order = append(order, items...)
+
+	workers := set.Workers
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	var (
+		wg     sync.WaitGroup
+		mu     sync.Mutex
+		done   int
+		errOut error
+		sem    = make(chan struct{}, workers)
+		start  = map[*item]bool{}
+	)
+	for _, it := range order {
+		if start[it] {
+			continue
+		}
+		start[it] = true
+		sem <- struct{}{}
+		if ctx.Err() != nil {
+			<-sem
+			out.Truncated = true
+			break
+		}
+		wg.Add(1)
+		go func(it *item) {
+			defer wg.Done()
+			defer func() { <-sem }()
+			d := prob.Design(it.c.Point)
+			ev, err := objectives.Evaluate(d)
+			mu.Lock()
+			defer mu.Unlock()
+			if err != nil {
+				if errOut == nil {
+					errOut = fmt.Errorf("re-evaluate %s: %w", d.Topology, err)
+				}
+				return
+			}
+			vs := prob.Checks(ev.Metrics, prob.Spec.Targets)
+			it.sc = &StageCandidate{
+				Topology: d.Topology, Design: d, Eval: ev, Metrics: ev.Metrics, Violations: vs,
+				Feasible: objectives.TotalViolation(vs) == 0,
+				Score:    Score(prob.Spec.Axes(ev.Metrics), scales, nil), Key: it.c.Key,
+			}
+			done++
+			if set.Progress != nil {
+				set.Progress(Progress{Evaluations: res.Evaluations, Budget: set.Evaluations,
+					Elapsed: res.Elapsed, Best: math.Inf(1), Nearest: math.Inf(1),
+					Phase: PhaseReport, Reported: done, Reporting: len(items)})
+			}
+		}(it)
+	}
+	wg.Wait()
+	if errOut != nil {
+		return nil, errOut
+	}
+	for _, it := range items {
+		if it.sc != nil {
+			it.sc.Pareto = it.pareto
+			out.Candidates = append(out.Candidates, it.sc)
 		}
 	}
 	counts := map[int]int{}
 	for _, c := range res.All {
 		counts[c.Point.Family]++
 	}
-	for _, fb := range res.BestOf {
+	for i, fb := range res.BestOf {
 		fr := FamilyRank{Topology: prob.Family(fb.Family).Name(), Evaluations: counts[fb.Family]}
-		if fb.OK {
-			sc, err := add(fb.Candidate, false)
-			if err != nil {
-				return nil, err
-			}
-			fr.Best, fr.Feasible = sc, sc.Feasible
+		if it := famItem[i]; it != nil && it.sc != nil {
+			fr.Best, fr.Feasible = it.sc, it.sc.Feasible
 		}
 		out.Families = append(out.Families, fr)
-	}
-	for _, c := range res.Nearest {
-		if _, err := add(c, false); err != nil {
-			return nil, err
-		}
 	}
 	// Ids of one width, so that they sort as text too.
 	width := max(2, len(fmt.Sprint(len(out.Candidates))))

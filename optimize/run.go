@@ -67,8 +67,15 @@ type Progress struct {
 	Best        float64 // best score so far (see Score); +Inf before a feasible one
 	Nearest     float64 // smallest total violation so far
 	Elapsed     time.Duration
-	Phase       string // "genetic", "refine", "random"
+	Phase       string // "refine (defaults)", "genetic", "refine", "random", PhaseReport
+	// Reported and Reporting count, in the "report" phase after the
+	// search, the reported candidates re-evaluated so far and in all.
+	Reported, Reporting int
 }
+
+// PhaseReport is the phase after the search, in which the reported
+// candidates are evaluated again (see Search).
+const PhaseReport = "report"
 
 // Key orders evaluations independently of the order they finish in. The
 // runs of a refinement, which proceed side by side, interleave: step k of

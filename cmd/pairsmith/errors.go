@@ -22,6 +22,9 @@ const (
 	// exitInfeasible: `run` found no candidate that meets the spec; its
 	// results, with the nearest candidates, are still written.
 	exitInfeasible = 3
+	// exitInterrupted: `run` was stopped by Ctrl-C or SIGTERM before its
+	// budget was spent; what it had found is written, complete.
+	exitInterrupted = 4
 )
 
 // runError marks an error returned by a command's own work, as opposed to
@@ -59,6 +62,17 @@ func (e *infeasibleError) Error() string {
 	return msg + " (the nearest candidates are in " + e.dir + ")"
 }
 
+// interruptedError is the outcome of a run stopped by a signal: its
+// results, complete for what it found, are written.
+type interruptedError struct {
+	evaluations int
+	dir         string
+}
+
+func (e *interruptedError) Error() string {
+	return fmt.Sprintf("interrupted after %d evaluations; what was found is in %s", e.evaluations, e.dir)
+}
+
 // exitCode says how the program ends for an error from a command's work.
 func exitCode(err error) int {
 	var (
@@ -67,11 +81,18 @@ func exitCode(err error) int {
 		fe *report.FormatError
 		ie *inputError
 		ne *infeasibleError
+		xe *interruptedError
+		oe *report.OutputError
+		we *report.OwnedError
 	)
+	if errors.As(err, &xe) {
+		return exitInterrupted
+	}
 	if errors.As(err, &ne) {
 		return exitInfeasible
 	}
-	if errors.As(err, &ue) || errors.As(err, &re) || errors.As(err, &fe) || errors.As(err, &ie) {
+	if errors.As(err, &ue) || errors.As(err, &re) || errors.As(err, &fe) || errors.As(err, &ie) ||
+		errors.As(err, &oe) || errors.As(err, &we) {
 		return exitBadInput
 	}
 	return exitFailed

@@ -51,7 +51,9 @@ type progress struct {
 	mu     sync.Mutex
 	latest optimize.Progress
 	shown  int // evaluations in the last line drawn
-	width  int // runes of the last bar drawn, to blank what is left of it
+	// shownReported is the reported candidates re-evaluated in it.
+	shownReported int
+	width         int // runes of the last bar drawn, to blank what is left of it
 
 	stop chan struct{}
 	wg   sync.WaitGroup
@@ -72,10 +74,22 @@ func newProgress(w io.Writer, deadline time.Time) *progress {
 // and takes constant time; reports arriving out of order are dropped.
 func (p *progress) update(pr optimize.Progress) {
 	p.mu.Lock()
-	if pr.Evaluations > p.latest.Evaluations {
+	switch {
+	case pr.Evaluations > p.latest.Evaluations:
 		p.latest = pr
+	case pr.Phase == optimize.PhaseReport && pr.Reported > p.latest.Reported:
+		// After the search: the search's figures stay, the phase moves.
+		p.latest.Phase, p.latest.Reported, p.latest.Reporting = pr.Phase, pr.Reported, pr.Reporting
 	}
 	p.mu.Unlock()
+}
+
+// phaseText names the phase of a report: "genetic", "report 12/217".
+func phaseText(pr optimize.Progress) string {
+	if pr.Phase == optimize.PhaseReport {
+		return fmt.Sprintf("%s %d/%d", pr.Phase, pr.Reported, pr.Reporting)
+	}
+	return pr.Phase
 }
 
 // start begins drawing.
@@ -109,10 +123,10 @@ func (p *progress) draw(final bool) {
 	p.mu.Lock()
 	defer p.mu.Unlock()
 	pr := p.latest
-	if !final && pr.Evaluations == p.shown {
+	if !final && pr.Evaluations == p.shown && pr.Reported == p.shownReported {
 		return
 	}
-	p.shown = pr.Evaluations
+	p.shown, p.shownReported = pr.Evaluations, pr.Reported
 	now := p.now()
 	if p.terminal {
 		line := barLine(pr, p.deadline, now)
@@ -214,8 +228,8 @@ func barLine(pr optimize.Progress, deadline, now time.Time) string {
 		b.WriteString(" ETA " + shortDuration(left))
 	}
 	line := []rune(b.String())
-	if pr.Phase != "" && len(line)+1+len([]rune(pr.Phase)) <= barMax {
-		return string(line) + " " + pr.Phase
+	if ph := phaseText(pr); ph != "" && len(line)+1+len([]rune(ph)) <= barMax {
+		return string(line) + " " + ph
 	}
 	if len(line) > barMax {
 		line = line[:barMax]
@@ -236,8 +250,8 @@ func logLine(pr optimize.Progress, deadline, now time.Time, final bool) string {
 	if left, ok := eta(pr, deadline, now); ok {
 		b.WriteString(", ETA " + shortDuration(left))
 	}
-	if pr.Phase != "" {
-		b.WriteString(" (" + pr.Phase + ")")
+	if ph := phaseText(pr); ph != "" {
+		b.WriteString(" (" + ph + ")")
 	}
 	return b.String()
 }

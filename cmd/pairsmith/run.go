@@ -7,7 +7,7 @@ import (
 	"io"
 	"os"
 	"os/signal"
-	"path/filepath"
+	"syscall"
 	"time"
 
 	"github.com/spf13/cobra"
@@ -26,6 +26,7 @@ type runFlags struct {
 	timeBudget  time.Duration // time parsed by check
 	seed        int64
 	workers     int
+	force       bool
 }
 
 // check validates the flags that were given; an error here is a usage
@@ -94,9 +95,13 @@ func newRunCmd(stdout, stderr io.Writer) *cobra.Command {
 			"a testbench deck (candidates/), pareto.csv, pareto.svg, curves.svg and\n" +
 			"report.html. stdout gets the families ranked with each one's best candidate;\n" +
 			"stderr shows progress. The flags override the spec's search settings.\n\n" +
+			"DIR holds one run's results at a time, replaced whole: a directory that holds\n" +
+			"another run's results is refused unless --force, and a second run into a\n" +
+			"directory being written is refused. Ctrl-C or SIGTERM stops the search and\n" +
+			"writes what was found.\n\n" +
 			"Exit codes: 0 a candidate meets the spec, 3 none does (everything is still\n" +
-			"written, with the nearest candidates and the targets that bind), 2 bad input,\n" +
-			"1 anything else.",
+			"written, with the nearest candidates and the targets that bind), 4 the run was\n" +
+			"interrupted (what was found is written), 2 bad input, 1 anything else.",
 		Args: oneFile("spec sheet (SPEC.yaml)"),
 		PreRunE: func(cmd *cobra.Command, _ []string) error {
 			return f.check(cmd)
@@ -109,6 +114,7 @@ func newRunCmd(stdout, stderr io.Writer) *cobra.Command {
 	fl.StringVar(&f.time, "time", "", "time budget `D` such as 10m or 1h30m; the search stops at whichever budget ends first")
 	fl.Int64Var(&f.seed, "seed", 0, "random seed `S` (overrides search.seed); the same seed gives the same result")
 	fl.IntVar(&f.workers, "workers", 0, "evaluate on `W` goroutines, 0 for one per core (does not change the result)")
+	fl.BoolVar(&f.force, "force", false, "replace the results of an earlier run in DIR (they stay until the new ones are written)")
 	return c
 }
 
@@ -119,15 +125,23 @@ func runSearch(cmd *cobra.Command, f *runFlags, specPath string, stdout, stderr 
 		return err
 	}
 	f.apply(cmd, spec)
-	// Fail on an unusable output directory now, not after the search.
-	if err := os.MkdirAll(filepath.Join(f.out, report.CandidatesDir), 0o755); err != nil {
-		return badInput("output directory %s: %w", f.out, err)
+	// Take the output directory now: one that cannot be written, holds
+	// another run's results or is being written by another run is found
+	// before the search, not after.
+	rd, err := report.OpenRunDir(f.out, f.force)
+	if err != nil {
+		return err
 	}
-	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt)
+	defer rd.Close()
+	// Ctrl-C, and SIGTERM (what timeout, systemd and batch schedulers
+	// send), stop the search; what was found is still written. A second
+	// one ends the program at once: the directory then keeps the earlier
+	// results, since the new ones replace them whole or not at all.
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 	defer stop()
 	go func() {
 		<-ctx.Done()
-		stop() // a second interrupt ends the program at once
+		stop()
 	}()
 
 	workers := spec.Search.WorkerCount()
@@ -139,8 +153,11 @@ func runSearch(cmd *cobra.Command, f *runFlags, specPath string, stdout, stderr 
 	if spec.Search.Time > 0 {
 		budget += " or " + spec.Search.Time.String()
 	}
-	fmt.Fprintf(stderr, "pairsmith run: %q, %d families, budget %s, seed %d, %d workers\n",
-		spec.Name, len(spec.Topologies), budget, spec.Search.Seed, workers)
+	fmt.Fprintf(stderr, "pairsmith run %s: %q, %d families, budget %s, seed %d, %d workers\n",
+		rd.ID, spec.Name, len(spec.Topologies), budget, spec.Search.Seed, workers)
+	if rd.Previous != "" {
+		fmt.Fprintf(stderr, "pairsmith run: the results of run %s in %s are replaced when this run has written its own\n", rd.Previous, f.out)
+	}
 	pr := newProgress(stderr, deadline)
 	pr.start()
 	res, err := optimize.Search(ctx, spec, optimize.SearchOptions{Strategy: optimize.Hybrid, Progress: pr.update})
@@ -148,17 +165,24 @@ func runSearch(cmd *cobra.Command, f *runFlags, specPath string, stdout, stderr 
 	if err != nil {
 		return fmt.Errorf("run %s: %w", specPath, err)
 	}
-	interrupted := ctx.Err() != nil && res.Evaluations < spec.Search.Evaluations
+	interrupted := ctx.Err() != nil && (res.Evaluations < spec.Search.Evaluations || res.Truncated)
 	if interrupted {
 		fmt.Fprintf(stderr, "pairsmith run: interrupted after %d evaluations; writing what was found\n", res.Evaluations)
 	}
-	if err := report.WriteRun(f.out, res, report.RunOptions{Strategy: optimize.Hybrid, Workers: workers, Interrupted: interrupted}); err != nil {
+	if err := report.WriteRun(rd.Stage(), res, report.RunOptions{Strategy: optimize.Hybrid, Workers: workers,
+		Interrupted: interrupted, RunID: rd.ID}); err != nil {
+		return err
+	}
+	if err := rd.Commit(); err != nil {
 		return err
 	}
 	if err := report.RunTable(stdout, res, f.out); err != nil {
 		return err
 	}
-	if res.Best == nil {
+	switch {
+	case interrupted:
+		return &interruptedError{evaluations: res.Evaluations, dir: f.out}
+	case res.Best == nil:
 		return &infeasibleError{binding: res.Binding, dir: f.out}
 	}
 	return nil

@@ -410,11 +410,12 @@ func TestRunTestbenchInNgspice(t *testing.T) {
 }
 
 // withoutTimes drops the lines of summary.json that depend on the
-// machine's speed.
+// machine's speed, and the run's id, which is new every run.
 func withoutTimes(raw []byte) string {
 	var keep []string
 	for _, l := range strings.Split(string(raw), "\n") {
-		if t := strings.TrimSpace(l); strings.HasPrefix(t, `"seconds":`) || strings.HasPrefix(t, `"evaluations_per_second":`) {
+		if t := strings.TrimSpace(l); strings.HasPrefix(t, `"seconds":`) || strings.HasPrefix(t, `"evaluations_per_second":`) ||
+			strings.HasPrefix(t, `"run_id":`) {
 			continue
 		}
 		keep = append(keep, l)
@@ -583,24 +584,39 @@ func TestRunBadSpecs(t *testing.T) {
 	}
 }
 
-// TestRunProcessFile: a spec whose process is a file beside it gives
-// design files that name the process by its absolute path, so that `eval`
-// reads them from any working directory and reproduces their metrics.
+// TestRunProcessFile: a spec whose process is a file beside it gives a
+// result directory with a copy of the process, which the design files
+// name relative to themselves, so that `eval` reproduces their metrics
+// from any working directory, after the directory has moved, and after
+// the original process file is gone.
 func TestRunProcessFile(t *testing.T) {
 	dir := t.TempDir()
-	writeFile(t, dir, "mine.yaml", goodProcess)
+	proc := writeFile(t, dir, "mine.yaml", goodProcess)
 	spec := writeFile(t, dir, "spec.yaml", strings.Replace(goodSpec, "process: demo18-l1", "process: mine.yaml", 1))
 	o := runSpec(t, spec)
+	if copied, err := os.ReadFile(filepath.Join(o.dir, "process.yaml")); err != nil || string(copied) != goodProcess {
+		t.Fatalf("process.yaml in the result is not a copy of the process file (%v)", err)
+	}
+	moved := filepath.Join(t.TempDir(), "elsewhere")
+	if err := os.Rename(o.dir, moved); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.Remove(proc); err != nil {
+		t.Fatal(err)
+	}
 	t.Chdir(t.TempDir())
 	for _, c := range o.summary["candidates"].([]any) {
 		cm := c.(map[string]any)
-		path := filepath.Join(o.dir, cm["design"].(string))
+		path := filepath.Join(moved, cm["design"].(string))
 		text, err := os.ReadFile(path)
 		if err != nil {
 			t.Fatal(err)
 		}
-		if want := "\nprocess: " + filepath.Join(dir, "mine.yaml") + "\n"; !strings.Contains(string(text), want) {
-			t.Errorf("%s does not name the process by its absolute path %q", path, want)
+		if want := "\nprocess: ../process.yaml\n"; !strings.Contains(string(text), want) {
+			t.Errorf("%s does not name the run's copy of the process relative to itself (%q)", path, want)
+		}
+		if id := o.summary["run_id"].(string); !strings.Contains(string(text), id) {
+			t.Errorf("%s does not carry the run id %s", path, id)
 		}
 		got := evalJSON(t, path)["metrics"].(map[string]any)
 		for k, w := range cm["metrics"].(map[string]any) {
@@ -660,7 +676,7 @@ func TestRunBadFlags(t *testing.T) {
 		{[]string{"run", "-o", dir}, "pairsmith: run: want one spec sheet (SPEC.yaml), got 0 arguments"},
 		{[]string{"run", spec, spec, "-o", dir}, "pairsmith: run: want one spec sheet (SPEC.yaml), got 2 arguments"},
 		{[]string{"run", filepath.Join(dir, "nothere.yaml"), "-o", dir}, "pairsmith: spec: open " + filepath.Join(dir, "nothere.yaml") + ": "},
-		{[]string{"run", spec, "-o", file}, "pairsmith: output directory " + file + ": "},
+		{[]string{"run", spec, "-o", file}, "pairsmith: output " + file + ": "},
 	} {
 		code, _, stderr := runCmd(t, tc.args...)
 		if code != exitBadInput {
