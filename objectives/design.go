@@ -94,9 +94,11 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 		}
 	}
 	given := topologies.Values{}
-	if pm, ok, err := m.Map("params"); err != nil {
+	pm, ok, err := m.Map("params")
+	if err != nil {
 		return nil, err
-	} else if ok {
+	}
+	if ok {
 		var known []string
 		for _, p := range fam.Params() {
 			known = append(known, p.Name)
@@ -129,6 +131,9 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 		}
 	}
 	if d.Params, err = topologies.Complete(fam, given); err != nil {
+		return nil, err
+	}
+	if err := checkDesignLengths(d, fam, pm); err != nil {
 		return nil, err
 	}
 	return d, nil

@@ -316,7 +316,7 @@ func TestReadDesignErrors(t *testing.T) {
 		{name: "bad process", text: "topology: n-pair\nprocess: demo81\nsupply: 1.8V\n",
 			field: "process", line: 2, given: "demo81", is: fs.ErrNotExist, msg: []string{"demo18", "demo33-l1"}},
 		{name: "supply 0", text: "topology: n-pair\nprocess: demo18\nsupply: 0V\n",
-			field: "supply", line: 3, given: "0V", msg: []string{"above 0 V"}},
+			field: "supply", line: 3, given: "0V", msg: []string{"from 450mV"}},
 		{name: "supply in amperes", text: "topology: n-pair\nprocess: demo18\nsupply: 1.8A\n",
 			field: "supply", line: 3, given: "1.8A", msg: []string{"voltage"}},
 		{name: "temperature out of range", text: head + "temperature: 400C\n",

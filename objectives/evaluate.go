@@ -2,10 +2,14 @@ package objectives
 
 import (
 	"fmt"
+	"math"
 	"runtime"
+	"strconv"
+	"strings"
 
 	"pairsmith/sim"
 	"pairsmith/topologies"
+	"pairsmith/units"
 )
 
 // DeviceReport is one transistor at the middle of the sweep, with SPICE
@@ -59,7 +63,8 @@ func Build(d *Design) (*topologies.Stage, error) {
 }
 
 // sweep builds and sweeps a design: the one code path behind Evaluate
-// and MeasureDesign, so that both give the same metrics.
+// and MeasureDesign, so that both give the same metrics and refuse the
+// same unphysical sweeps (CheckPhysical).
 func sweep(d *Design) (*topologies.Stage, *sim.Solver, *sim.Result, error) {
 	st, err := Build(d)
 	if err != nil {
@@ -71,6 +76,9 @@ func sweep(d *Design) (*topologies.Stage, *sim.Solver, *sim.Result, error) {
 	}
 	res := &sim.Result{}
 	if err := s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0)); err != nil {
+		return nil, nil, nil, err
+	}
+	if err := CheckPhysical(st, res); err != nil {
 		return nil, nil, nil, err
 	}
 	return st, s, res, nil
@@ -132,4 +140,126 @@ func (ev *Evaluation) Doc() JSON {
 		Curve: ev.Curve(), Metrics: ev.Metrics, MidVCM: ev.MidVCM, Devices: ev.Devices,
 		Caution: Caution,
 	}
+}
+
+// Tolerances below which a negative pair current or gm counts as zero:
+// the solver's default relative tolerance (sim.Options.RelTol, 1e-6) of
+// the sweep's largest value, plus its absolute current tolerance
+// (sim.Options.AbsTol, 1e-12 A; per volt for gm).
+const (
+	physRelTol = 1e-6
+	physAbsTol = 1e-12
+)
+
+// Unphysical is one way in which a sweep's solution is not a working
+// stage, and where.
+type Unphysical struct {
+	Quantity string  // the probe: "i_n", "i_p" or "gm"
+	Points   int     // how many sweep points show it
+	From, To float64 // the first and last common mode that shows it, V
+	Worst    float64 // the most negative value (A or S)
+	WorstVCM float64 // where it is, V
+}
+
+// UnphysicalError is a sweep whose solution is not a physical operating
+// point of the stage: an input pair whose total current is reversed (below
+// zero by more than the solver's tolerance: its drains, held on summing
+// nodes, act as sources, so the pair is out of headroom), or a negative
+// gm (the output moving against the input). Such a sweep yields no
+// metrics: Evaluate and MeasureDesign return this error instead, `eval`
+// exits 1 with it, and the search counts the candidate as a failed
+// evaluation.
+type UnphysicalError struct {
+	Circuit  string       // the circuit's title: what and under which conditions
+	Total    int          // points in the sweep
+	Findings []Unphysical // in the order i_n, i_p, gm; at least one
+}
+
+// VCM returns the first common mode at which the sweep is unphysical.
+func (e *UnphysicalError) VCM() float64 {
+	v := math.Inf(1)
+	for _, f := range e.Findings {
+		v = math.Min(v, f.From)
+	}
+	return v
+}
+
+func (e *UnphysicalError) Error() string {
+	var b strings.Builder
+	fmt.Fprintf(&b, "%s: unphysical result at vcm = %s, not a metric: ", e.Circuit, short(e.VCM(), units.Volt))
+	for i, f := range e.Findings {
+		if i > 0 {
+			b.WriteString("; ")
+		}
+		unit, what := units.Ampere, ""
+		switch f.Quantity {
+		case topologies.ProbeIN:
+			what = "the NMOS pair's current is reversed (i_n < 0: out of headroom, its drains' summing node is below its common source)"
+		case topologies.ProbeIP:
+			what = "the PMOS pair's current is reversed (i_p < 0: out of headroom, its drains' summing node is above its common source)"
+		default:
+			unit, what = units.Siemens, "gm is negative (the output moves against the input)"
+		}
+		fmt.Fprintf(&b, "%s at %d of %d points, vcm %s to %s, down to %s at %s", what, f.Points, e.Total,
+			short(f.From, units.Volt), short(f.To, units.Volt), short(f.Worst, unit), short(f.WorstVCM, units.Volt))
+	}
+	return b.String()
+}
+
+// CheckPhysical returns an *UnphysicalError when some point of the sweep
+// has an input pair's current reversed or a negative gm, beyond the
+// solver's tolerance (physRelTol of the sweep's largest value plus
+// physAbsTol); nil when every point is physical.
+func CheckPhysical(st *topologies.Stage, res *sim.Result) error {
+	c := st.Circuit
+	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
+	var iMax, gMax float64
+	for i := range res.VCM {
+		iMax = math.Max(iMax, math.Abs(in[i])+math.Abs(ip[i]))
+		if res.GM != nil {
+			gMax = math.Max(gMax, math.Abs(res.GM[i]))
+		}
+	}
+	series := []struct {
+		name string
+		v    []float64
+		tol  float64
+	}{
+		{topologies.ProbeIN, in, physRelTol*iMax + physAbsTol},
+		{topologies.ProbeIP, ip, physRelTol*iMax + physAbsTol},
+		{"gm", res.GM, physRelTol*gMax + physAbsTol},
+	}
+	e := &UnphysicalError{Circuit: c.Title, Total: res.Len()}
+	for _, s := range series {
+		f := Unphysical{Quantity: s.name}
+		for i, x := range s.v {
+			if !(x < -s.tol) {
+				continue
+			}
+			if f.Points == 0 {
+				f.From, f.Worst, f.WorstVCM = res.VCM[i], x, res.VCM[i]
+			}
+			f.Points++
+			f.To = res.VCM[i]
+			if x < f.Worst {
+				f.Worst, f.WorstVCM = x, res.VCM[i]
+			}
+		}
+		if f.Points > 0 {
+			e.Findings = append(e.Findings, f)
+		}
+	}
+	if len(e.Findings) == 0 {
+		return nil
+	}
+	return e
+}
+
+// short writes x with at most four significant digits and an SI prefix.
+func short(x float64, d units.Dim) string {
+	r, err := strconv.ParseFloat(strconv.FormatFloat(x, 'g', 4, 64), 64)
+	if err != nil {
+		r = x
+	}
+	return units.Format(r, d)
 }

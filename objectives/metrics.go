@@ -136,7 +136,9 @@ func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 }
 
 // Ripple returns gm_max/gm_min − 1, or +Inf when gm_min is zero (below
-// DeadGM·gm_max) or negative.
+// DeadGM·gm_max) or negative. Evaluate and MeasureDesign refuse a sweep
+// whose gm is negative beyond the solver's tolerance (CheckPhysical), so
+// in their metrics +Inf always means a gm that falls to zero.
 func Ripple(gmMin, gmMax float64) float64 {
 	if !(gmMax > 0) || !(gmMin > DeadGM*gmMax) {
 		return math.Inf(1)

@@ -2,6 +2,7 @@ package objectives
 
 import (
 	"errors"
+	"fmt"
 	"path/filepath"
 	"strings"
 
@@ -20,7 +21,8 @@ type conditions struct {
 }
 
 // readConditions reads the process (a built-in name or a file relative to
-// baseDir), the supply and the temperature (27C when not given).
+// baseDir), the supply (from MinSupply of the process to MaxSupply) and
+// the temperature (27C when not given).
 func readConditions(m *units.Map, baseDir string) (conditions, error) {
 	var c conditions
 	var err error
@@ -48,8 +50,8 @@ func readConditions(m *units.Map, baseDir string) (conditions, error) {
 	if c.Supply, _, err = m.Quantity("supply", units.Volt); err != nil {
 		return c, err
 	}
-	if !(c.Supply > 0) || c.Supply > 20 {
-		return c, m.Errorf("supply", "a supply voltage above 0 V and at most 20 V")
+	if !(c.Supply >= MinSupply(c.Process)) || c.Supply > MaxSupply {
+		return c, m.Errorf("supply", "%s", supplyWant(c.Process))
 	}
 	if c.TempK, err = m.QuantityOr("temperature", units.Temperature, 27+units.ZeroCelsius); err != nil {
 		return c, err
@@ -62,7 +64,9 @@ func readConditions(m *units.Map, baseDir string) (conditions, error) {
 
 // readRange reads a common-mode range {low, high, step} (a design's sweep,
 // a spec's input_range): rail to rail at DefaultStep by default, within a
-// supply beyond either rail, low below high, and at most a million points.
+// supply beyond either rail, low below high, a step no larger than the
+// range and at most a million points. A range narrower than a step the
+// file does not write is blamed on the end it writes, not on the step.
 func readRange(rm *units.Map, supply float64) (low, high, step float64, err error) {
 	if err = rm.Check("low", "high", "step"); err != nil {
 		return
@@ -90,6 +94,14 @@ func readRange(rm *units.Map, supply float64) (low, high, step float64, err erro
 		err = rm.Errorf(key, "low below high (low %s, high %s)", v(low), v(high))
 	case !(step > 0):
 		err = rm.Errorf("step", "a step above 0 V, for example 10mV")
+	case step > high-low && rm.Has("step"):
+		err = rm.Errorf("step", "a step no larger than the range (%s)", v(high-low))
+	case step > high-low:
+		key, want := "high", fmt.Sprintf("a high end at least one step (%s) above low (%s)", v(step), v(low))
+		if !rm.Has("high") {
+			key, want = "low", fmt.Sprintf("a low end at least one step (%s) below high (%s)", v(step), v(high))
+		}
+		err = rm.Errorf(key, "%s, or a smaller step", want)
 	case (high-low)/step > 1e6:
 		err = rm.Errorf("step", "a step giving at most a million points")
 	}

@@ -202,9 +202,6 @@ func readSpec(m *units.Map, baseDir string) (*Spec, error) {
 		if s.Range.Low, s.Range.High, s.Step, err = readRange(rm, s.Supply); err != nil {
 			return nil, err
 		}
-		if span := s.Range.High - s.Range.Low; s.Step > span {
-			return nil, rm.Errorf("step", "a step no larger than the range (%s)", units.Format(span, units.Volt))
-		}
 	}
 	s.Targets = NoTargets()
 	if tm, ok, err := m.Map("targets"); err != nil {
@@ -218,6 +215,9 @@ func readSpec(m *units.Map, baseDir string) (*Spec, error) {
 		return nil, err
 	}
 	if s.Topologies, err = readTopologies(m); err != nil {
+		return nil, err
+	}
+	if err := checkSpecLengths(s); err != nil {
 		return nil, err
 	}
 	s.Search = DefaultSearch()

@@ -396,7 +396,7 @@ func TestReadSpecErrors(t *testing.T) {
 		{name: "unknown process", text: "process: demo81\nsupply: 1.8V\n",
 			field: "process", line: 1, given: "demo81", is: fs.ErrNotExist, msg: []string{`did you mean "demo18"`, "demo33-l1"}},
 		{name: "zero supply", text: "process: demo18\nsupply: 0V\n",
-			field: "supply", line: 2, given: "0V", msg: []string{"above 0 V"}},
+			field: "supply", line: 2, given: "0V", msg: []string{"from 450mV"}},
 		{name: "temperature out of range", text: head + "temperature: 300C\n",
 			field: "temperature", line: 4, given: "300C"},
 		// trade-off axes
