@@ -102,7 +102,7 @@ func WriteRun(dir string, res *optimize.StageResult, opt RunOptions) error {
 				return fmt.Errorf("write run: candidate %s: %w", c.ID, err)
 			}
 		}
-		if err := Testbench(&deck, c.Design, st, TestbenchOptions{DC: true}); err != nil {
+		if err := Testbench(&deck, c.Design, st, TestbenchOptions{DC: true, Level1Equivalent: true}); err != nil {
 			return fmt.Errorf("write run: candidate %s: %w", c.ID, err)
 		}
 		if err := write(CandidateNetlist(c.ID), deck.Bytes()); err != nil {
@@ -209,6 +209,7 @@ type candidateJSON struct {
 	Topology       string                 `json:"topology"`
 	Design         string                 `json:"design"`
 	Netlist        string                 `json:"netlist"`
+	NetlistModel   string                 `json:"netlist_model"` // DeckLevel1 or DeckLevel1Equivalent
 	Feasible       bool                   `json:"feasible"`
 	Pareto         bool                   `json:"pareto"`
 	Score          *float64               `json:"score"`
@@ -250,8 +251,8 @@ func Rate(res *optimize.StageResult) float64 {
 //	 "first_feasible", "stopped", "seconds", "evaluations_per_second",
 //	 "caution",
 //	 "families": [{"topology", "rank", "feasible", "best", "evaluations"}],
-//	 "candidates": [{"id", "topology", "design", "netlist", "feasible",
-//	   "pareto", "score", "total_violation", "axes", "params", "metrics",
+//	 "candidates": [{"id", "topology", "design", "netlist", "netlist_model",
+//	   "feasible", "pareto", "score", "total_violation", "axes", "params", "metrics",
 //	   "violations": [{"target", "value", "limit", "amount"}]}]}
 //
 // "best" is the best feasible candidate's id, null when none is;
@@ -259,7 +260,10 @@ func Rate(res *optimize.StageResult) float64 {
 // none is feasible, worst first ([] otherwise); a family's "best" is the
 // id of its best feasible or least-violating candidate, null when every
 // evaluation of it failed. "design" and "netlist" are paths relative to
-// the run directory, "metrics" are as `eval --json` writes them and
+// the run directory; "netlist_model" says what the deck's model cards
+// are: "level1", the process's own, or "level1-equivalent", an EKV
+// process's nearest level-1 cards (Level1Equivalent), whose numbers differ
+// from pairsmith's. "metrics" are as `eval --json` writes them and
 // "violations" lists the targets a candidate misses ([] when it meets
 // them all). "stopped" is null when the search spent its budget, else
 // "time" or "interrupt". Every value is in SI units; NaN and infinities
@@ -295,7 +299,7 @@ func Summary(res *optimize.StageResult, opt RunOptions) ([]byte, error) {
 	for _, c := range res.Candidates {
 		cj := candidateJSON{
 			ID: c.ID, Topology: c.Topology, Design: CandidateDesign(c.ID), Netlist: CandidateNetlist(c.ID),
-			Feasible: c.Feasible, Pareto: c.Pareto, Score: jnum(c.Score),
+			NetlistModel: DeckModel(c.Design.Process), Feasible: c.Feasible, Pareto: c.Pareto, Score: jnum(c.Score),
 			TotalViolation: objectives.TotalViolation(c.Violations),
 			Axes:           map[string]*float64{}, Params: map[string]float64{},
 			Metrics: c.Metrics, Violations: Misses(c.Violations),

@@ -12,6 +12,7 @@ import (
 
 	"pairsmith/objectives"
 	"pairsmith/report"
+	"pairsmith/sim/device"
 	"pairsmith/topologies"
 	"pairsmith/units"
 )
@@ -222,18 +223,28 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 	return c
 }
 
+// level1EquivalentFlag is the flag that asks `netlist --testbench` for the
+// level-1 equivalent of an EKV process.
+const level1EquivalentFlag = "level1-equivalent"
+
 func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 	var (
-		testbench, dc bool
-		out           string
+		testbench, dc, equivalent bool
+		out                       string
 	)
 	c := &cobra.Command{
 		Use:   "netlist DESIGN.yaml",
 		Short: "Write a design as a SPICE .subckt or a self-contained testbench",
-		Long: "Write the stage of a design file as a SPICE .subckt. With --testbench, write a\n" +
-			"deck that ngspice -b runs as it is: model cards (level-1 processes), the supply\n" +
-			"VDD, the inputs from VCM and VID, and VOUT, whose current is the differential\n" +
-			"output current (gm = d I(VOUT) / d VID). --dc adds the design's sweep as .dc.",
+		Long: "Write the stage of a design file as a SPICE .subckt (no model cards: include\n" +
+			"your own). With --testbench, write a deck that ngspice -b runs as it is: model\n" +
+			"cards, the supply VDD, the inputs from VCM and VID, and VOUT, whose current is\n" +
+			"the differential output current (gm = d I(VOUT) / d VID). --dc adds the design's\n" +
+			"sweep and a .control block that runs it at VID = +0.1 mV and -0.1 mV and prints gm\n" +
+			"against VCM.\n\n" +
+			"ngspice cannot simulate EKV processes (demo18, demo33): for them --testbench\n" +
+			"refuses (exit 2) unless --" + level1EquivalentFlag + " asks for a deck with the nearest\n" +
+			"level-1 cards, whose numbers differ from pairsmith's EKV results (its first lines\n" +
+			"say how).",
 		Args: oneFile("design file (DESIGN.yaml)"),
 		RunE: work(func(args []string) error {
 			d, err := loadDesign(args[0])
@@ -246,17 +257,42 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 			}
 			var b bytes.Buffer
 			what := "netlist"
+			model := report.DeckModel(d.Process)
 			if testbench {
 				what = "testbench"
-				err = report.Testbench(&b, d, st, report.TestbenchOptions{DC: dc})
+				err = report.Testbench(&b, d, st, report.TestbenchOptions{DC: dc, Level1Equivalent: equivalent})
 			} else {
 				err = report.Subckt(&b, d, st)
+			}
+			kind := report.KindName(d.Process.Kind)
+			var nm *report.NoSpiceModelError
+			if errors.As(err, &nm) {
+				alt := "a level-1 process"
+				if _, ok := device.Builtin(d.Process.Name + "-l1"); ok {
+					alt = "a level-1 process (" + d.Process.Name + "-l1 has " + d.Process.Name + "'s numbers on level-1 cards)"
+				}
+				return badInput("netlist %s: %v; no deck written. Add --%s for a deck with the nearest "+
+					"level-1 cards (its numbers differ from pairsmith's %s results), or use %s",
+					args[0], err, level1EquivalentFlag, kind, alt)
 			}
 			if err != nil {
 				return fmt.Errorf("netlist %s: %w", args[0], err)
 			}
 			if err := writeOut(stdout, out, b.Bytes()); err != nil {
 				return err
+			}
+			switch {
+			case model == report.DeckLevel1Equivalent && testbench:
+				fmt.Fprintf(stderr, "pairsmith: note: process %s uses the %s model, which ngspice cannot simulate; "+
+					"the deck carries its nearest level-1 equivalent (its first lines say how the cards were mapped), "+
+					"and its numbers differ from pairsmith's %s results, most in weak and moderate inversion\n",
+					d.Process.Name, kind, kind)
+			case model == report.DeckLevel1Equivalent:
+				fmt.Fprintf(stderr, "pairsmith: note: the .subckt carries no model cards; process %s uses the %s model, "+
+					"which ngspice cannot simulate: include your foundry's models, or use --testbench --%s\n",
+					d.Process.Name, kind, level1EquivalentFlag)
+			case equivalent:
+				fmt.Fprintf(stderr, "pairsmith: note: process %s is level 1 already; the deck carries its own cards\n", d.Process.Name)
 			}
 			if out != "" {
 				fmt.Fprintf(stderr, "%s written to %s\n", what, out)
@@ -265,11 +301,16 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 		}),
 	}
 	c.Flags().BoolVar(&testbench, "testbench", false, "write a self-contained deck for ngspice -b")
-	c.Flags().BoolVar(&dc, "dc", false, "with --testbench, add the design's common-mode sweep as .dc")
+	c.Flags().BoolVar(&dc, "dc", false, "with --testbench, add the design's common-mode sweep and print gm against VCM")
+	c.Flags().BoolVar(&equivalent, level1EquivalentFlag, false,
+		"with --testbench, write an EKV process's nearest level-1 equivalent instead of refusing")
 	c.Flags().StringVarP(&out, "output", "o", "", "write to `FILE` instead of stdout")
 	c.PreRunE = func(*cobra.Command, []string) error {
 		if dc && !testbench {
 			return errors.New("--dc needs --testbench")
+		}
+		if equivalent && !testbench {
+			return errors.New("--" + level1EquivalentFlag + " needs --testbench")
 		}
 		return nil
 	}

@@ -69,8 +69,10 @@ func Require(t testing.TB) string {
 // Run simulates deck with `ngspice -b` in a temporary directory and returns
 // the named vectors of its analysis, for example "v(out)", "i(vdd)" or
 // "@m1[id]". The deck must be a complete netlist with a title line and one
-// analysis line (.op, .dc or .tran) and no .control block of its own; a
-// missing .end is added. Vectors must be real (not from an .ac analysis).
+// analysis line (.op, .dc or .tran); a missing .end is added. A .control
+// block of the deck's own (the gm block of a `netlist --testbench --dc`
+// deck) is left out: Run's own block replaces it, and runs the deck's
+// analysis line once. Vectors must be real (not from an .ac analysis).
 // Errors carry the tail of ngspice's error output.
 func Run(deck string, vectors ...string) (Table, error) {
 	return RunContext(context.Background(), deck, vectors...)
@@ -142,23 +144,118 @@ func RunContext(ctx context.Context, deck string, vectors ...string) (Table, err
 	return tab, nil
 }
 
+// Batch is what `ngspice -b` did with a deck run as it is.
+type Batch struct {
+	Stdout, Stderr string
+	ExitCode       int
+}
+
+// RunBatch runs deck exactly as a user would, `ngspice -b deck.cir` in a
+// temporary directory (with ngspice's start-up file, as a user gets it),
+// and returns what ngspice printed and its exit code. Only a failure to
+// start ngspice is an error; an exit code other than 0 is not.
+func RunBatch(ctx context.Context, deck string) (Batch, error) {
+	bin, err := Path()
+	if err != nil {
+		return Batch{}, err
+	}
+	dir, err := os.MkdirTemp("", "pairsmith-ngspice-")
+	if err != nil {
+		return Batch{}, fmt.Errorf("ngspice: %w", err)
+	}
+	defer os.RemoveAll(dir)
+	if err := os.WriteFile(filepath.Join(dir, "deck.cir"), []byte(deck), 0o644); err != nil {
+		return Batch{}, fmt.Errorf("ngspice: writing deck: %w", err)
+	}
+	cmd := exec.CommandContext(ctx, bin, "-b", "deck.cir")
+	cmd.Dir = dir
+	var stdout, stderr bytes.Buffer
+	cmd.Stdout, cmd.Stderr = &stdout, &stderr
+	err = cmd.Run()
+	b := Batch{Stdout: stdout.String(), Stderr: stderr.String()}
+	var ee *exec.ExitError
+	if errors.As(err, &ee) {
+		b.ExitCode = ee.ExitCode()
+	} else if err != nil {
+		return b, fmt.Errorf("ngspice -b: %w", err)
+	}
+	return b, nil
+}
+
+// FirstError returns the first line of ngspice's output s that reports an
+// error, or "".
+func FirstError(s string) string { return firstError(s) }
+
+// ReadPrint reads the table that ngspice's `print VECTOR` command writes
+// for a swept analysis with `set nobreak`: a header line
+// "Index   v-sweep   VECTOR", a rule, then one line "index scale value"
+// a point. It returns the scale and the vector's values.
+func ReadPrint(out, vector string) (scale, values []float64, err error) {
+	lines := strings.Split(out, "\n")
+	start := -1
+	for i, l := range lines {
+		f := strings.Fields(l)
+		if len(f) == 3 && f[0] == "Index" && f[2] == vector {
+			if start >= 0 {
+				return nil, nil, fmt.Errorf("ngspice print: two tables of %s (a page break? set nobreak)", vector)
+			}
+			start = i + 1
+		}
+	}
+	if start < 0 {
+		return nil, nil, fmt.Errorf("ngspice print: no table of %s in the output", vector)
+	}
+	for _, l := range lines[start:] {
+		f := strings.Fields(l)
+		if len(f) == 0 || strings.HasPrefix(f[0], "---") {
+			continue
+		}
+		if len(f) != 3 {
+			break
+		}
+		if _, err := strconv.Atoi(f[0]); err != nil {
+			break
+		}
+		x, err1 := strconv.ParseFloat(f[1], 64)
+		y, err2 := strconv.ParseFloat(f[2], 64)
+		if err := errors.Join(err1, err2); err != nil {
+			return nil, nil, fmt.Errorf("ngspice print: line %q: %w", l, err)
+		}
+		scale, values = append(scale, x), append(values, y)
+	}
+	if len(scale) == 0 {
+		return nil, nil, fmt.Errorf("ngspice print: the table of %s has no rows", vector)
+	}
+	return scale, values, nil
+}
+
 func outName(i int) string { return "out" + strconv.Itoa(i) + ".txt" }
 
-// withControl inserts the control block before the deck's .end line.
+// withControl drops the deck's own control block and inserts Run's before
+// the deck's .end line.
 func withControl(deck string, vectors []string) (string, error) {
-	lines := strings.Split(strings.ReplaceAll(deck, "\r\n", "\n"), "\n")
-	end := -1
-	for i, l := range lines {
-		if i == 0 {
-			continue // the title line is free text
-		}
+	all := strings.Split(strings.ReplaceAll(deck, "\r\n", "\n"), "\n")
+	var lines []string
+	end, control := -1, 0 // control: line number of an open .control, 0 if none
+	for i, l := range all {
 		f := strings.ToLower(strings.TrimSpace(l))
-		if strings.HasPrefix(f, ".control") {
-			return "", fmt.Errorf("ngspice: deck line %d: the deck has its own .control block; Run supplies one", i+1)
+		switch {
+		case i == 0: // the title line is free text
+		case control > 0:
+			if f == ".endc" || strings.HasPrefix(f, ".endc ") {
+				control = 0
+			}
+			continue
+		case f == ".control" || strings.HasPrefix(f, ".control "):
+			control = i + 1
+			continue
+		case f == ".end" || strings.HasPrefix(f, ".end "):
+			end = len(lines)
 		}
-		if f == ".end" || strings.HasPrefix(f, ".end ") {
-			end = i
-		}
+		lines = append(lines, l)
+	}
+	if control > 0 {
+		return "", fmt.Errorf("ngspice: deck line %d: .control without .endc", control)
 	}
 	if strings.TrimSpace(deck) == "" {
 		return "", errors.New("ngspice: empty deck")

@@ -1,6 +1,7 @@
 package ngspice
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"os"
@@ -102,6 +103,64 @@ func TestRunManyVectors(t *testing.T) {
 	}
 }
 
+// TestRunReplacesOwnControl: a deck's own .control block is left out and
+// Run's runs the deck's analysis line as written. The deck's block would
+// alter the source to 2 V and stop ngspice before Run's wrdata; if it ran,
+// there would be no output or v(b) would be 4/3 V. Source: the
+// voltage-divider rule, v(b) = 2/3 of 1 V.
+func TestRunReplacesOwnControl(t *testing.T) {
+	Require(t)
+	deck := "divider\nv1 a 0 1\nr1 a b 1k\nr2 b 0 2k\n.op\n.CONTROL\nalter v1 dc = 2\nrun\nquit 1\n.endc\n.end\n"
+	tab, err := Run(deck, "v(b)")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := tab.Vectors["v(b)"]; len(got) != 1 || math.Abs(got[0]-2.0/3) > 1e-12 {
+		t.Errorf("v(b) = %v, want [0.6667] from the deck's own 1 V source", got)
+	}
+}
+
+// TestRunBatchAndReadPrint runs a deck with its own .control block as a
+// user would and reads the table its print command writes. Source: Ohm's
+// law, i = v/1k into the source's + terminal as −v/1k (common practice, no
+// source, for SPICE's sign).
+func TestRunBatchAndReadPrint(t *testing.T) {
+	Require(t)
+	var b strings.Builder
+	b.WriteString("sweep\nv1 a 0 0\nr1 a 0 1k\n.dc v1 0 1 0.01\n.control\nset nobreak\nrun\nlet cur = i(v1)\nprint cur\nquit 0\n.endc\n.end\n")
+	out, err := RunBatch(context.Background(), b.String())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if out.ExitCode != 0 || FirstError(out.Stderr) != "" {
+		t.Fatalf("exit %d, stderr %q", out.ExitCode, out.Stderr)
+	}
+	scale, cur, err := ReadPrint(out.Stdout, "cur")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(scale) != 101 {
+		t.Fatalf("%d rows, want 101 (more than one page: nobreak keeps one table)", len(scale))
+	}
+	for i, v := range scale {
+		// print writes 7 significant digits.
+		if want := -v / 1e3; math.Abs(cur[i]-want) > 1e-6*math.Abs(want)+1e-18 {
+			t.Errorf("cur at %g V = %g, want %g", v, cur[i], want)
+		}
+	}
+	if _, _, err := ReadPrint(out.Stdout, "nosuch"); err == nil {
+		t.Error("ReadPrint found a table of a vector that was not printed")
+	}
+
+	bad, err := RunBatch(context.Background(), "t\nv1 a 0 1\n.op\n.control\nrun\nquit 3\n.endc\n.end\n")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if bad.ExitCode != 3 {
+		t.Errorf("exit code %d, want the deck's quit 3", bad.ExitCode)
+	}
+}
+
 func TestRunErrors(t *testing.T) {
 	Require(t)
 	tests := []struct {
@@ -112,7 +171,7 @@ func TestRunErrors(t *testing.T) {
 		{"unknown vector", "t\nv1 a 0 1\nr1 a 0 1k\n.op\n.end\n", []string{"v(nosuch)"}, "nosuch"},
 		{"bad element", "t\nv1 a 0 1\nr1 a 0 1k foo\n.op\n.end\n", []string{"v(a)"}, "foo"},
 		{"no analysis", "t\nv1 a 0 1\nr1 a 0 1k\n.end\n", []string{"v(a)"}, "ngspice"},
-		{"own control", "t\nv1 a 0 1\n.control\nop\n.endc\n.end\n", []string{"v(a)"}, ".control"},
+		{"open control", "t\nv1 a 0 1\n.op\n.control\nop\n.end\n", []string{"v(a)"}, ".control without .endc"},
 		{"empty deck", "  \n", []string{"v(a)"}, "empty deck"},
 		{"no vectors", "t\nv1 a 0 1\n.op\n.end\n", nil, "no vectors"},
 		{"bad vector name", "t\nv1 a 0 1\n.op\n.end\n", []string{"v(a) v(b)"}, "single word"},
