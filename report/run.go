@@ -9,6 +9,7 @@ import (
 	"os"
 	"path"
 	"path/filepath"
+	"reflect"
 	"slices"
 	"strconv"
 	"strings"
@@ -57,6 +58,9 @@ type RunOptions struct {
 	// Interrupted says the user stopped the search before its budget was
 	// spent.
 	Interrupted bool
+	// RunID identifies the run (see RunDir); summary.json, every
+	// candidate file and the report carry it. "" leaves it out.
+	RunID string
 }
 
 // stopped says why the search ended early, "" when it spent its budget.
@@ -86,12 +90,19 @@ func WriteRun(dir string, res *optimize.StageResult, opt RunOptions) error {
 	}
 	write := func(rel string, data []byte) error {
 		if err := os.WriteFile(filepath.Join(dir, filepath.FromSlash(rel)), data, 0o644); err != nil {
-			return fmt.Errorf("write run: %w", err)
+			return &OutputError{Path: dir, Err: err}
 		}
 		return nil
 	}
+	procData, procRef, err := processCopy(res.Spec)
+	if err != nil {
+		return err
+	}
+	if err := write(ProcessFile, procData); err != nil {
+		return err
+	}
 	for _, c := range res.Candidates {
-		if err := write(CandidateDesign(c.ID), CandidateFile(res.Spec, c)); err != nil {
+		if err := write(CandidateDesign(c.ID), CandidateFile(res.Spec, c, procRef, opt.RunID)); err != nil {
 			return err
 		}
 		var deck bytes.Buffer
@@ -105,7 +116,7 @@ func WriteRun(dir string, res *optimize.StageResult, opt RunOptions) error {
 		if err := Testbench(&deck, c.Design, st, TestbenchOptions{DC: true, Level1Equivalent: true}); err != nil {
 			return fmt.Errorf("write run: candidate %s: %w", c.ID, err)
 		}
-		if err := write(CandidateNetlist(c.ID), deck.Bytes()); err != nil {
+		if err := write(CandidateNetlist(c.ID), withRunID(deck.Bytes(), c.ID, opt.RunID)); err != nil {
 			return err
 		}
 	}
@@ -156,13 +167,55 @@ func oneLine(s string) string {
 	}), " ")
 }
 
+// withRunID puts a comment naming the run and the candidate on the
+// second line of a deck (the first is the deck's title).
+func withRunID(deck []byte, id, runID string) []byte {
+	if runID == "" {
+		return deck
+	}
+	title, rest, _ := bytes.Cut(deck, []byte("\n"))
+	out := append([]byte(nil), title...)
+	out = append(out, fmt.Sprintf("\n* candidate %s of `pairsmith run` %s\n", id, runID)...)
+	return append(out, rest...)
+}
+
+// processCopy returns the text of the run's process copy (ProcessFile)
+// and the process reference the candidate files use: a built-in process
+// keeps its name (the copy is its text, for the record); a process file is
+// copied and referred to relative to the candidate files, so that a
+// result directory stays valid when it is moved. The copy must still read
+// as the process the run used: a file changed since is an error.
+func processCopy(spec *objectives.Spec) ([]byte, string, error) {
+	if spec.ProcessPath == "" {
+		data, ok := device.BuiltinSource(spec.ProcessRef)
+		if !ok {
+			return nil, "", fmt.Errorf("write run: no built-in process %q", spec.ProcessRef)
+		}
+		return data, spec.ProcessRef, nil
+	}
+	data, err := os.ReadFile(spec.ProcessPath)
+	if err != nil {
+		return nil, "", fmt.Errorf("write run: copy the process: %w", err)
+	}
+	p, err := device.ReadProcess(spec.Process.File, data) // as the spec read it, so that only a change tells
+	if err != nil || !reflect.DeepEqual(p, spec.Process) {
+		return nil, "", fmt.Errorf("write run: the process file %s changed during the run; run again", spec.ProcessPath)
+	}
+	return data, "../" + ProcessFile, nil
+}
+
 // CandidateFile returns a candidate's design file: a comment header
-// saying it comes from a pairsmith run of the spec, whether it meets the
-// spec (and what it misses), and the caution, then Design.Format, which
+// saying it comes from a pairsmith run (runID, when not "") of the spec,
+// whether it meets the spec (and what it misses), and the caution, then
+// Design.Format with the process referred to as processRef, which
 // `pairsmith eval` reads back into the same design bit for bit.
-func CandidateFile(spec *objectives.Spec, c *optimize.StageCandidate) []byte {
+func CandidateFile(spec *objectives.Spec, c *optimize.StageCandidate, processRef, runID string) []byte {
 	var b bytes.Buffer
-	fmt.Fprintf(&b, "# Candidate %s from `pairsmith run` of the spec sheet %q.\n", c.ID, oneLine(spec.Name))
+	run := "`pairsmith run`"
+	if runID != "" {
+		run = "`pairsmith run` " + runID
+	}
+	fmt.Fprintf(&b, "# Candidate %s from %s of the spec sheet %q.\n", c.ID, run, oneLine(spec.Name))
 	switch {
 	case c.Feasible && c.Pareto:
 		fmt.Fprintf(&b, "# %s; meets every target of the spec and lies on the Pareto front.\n", c.Topology)
@@ -171,9 +224,11 @@ func CandidateFile(spec *objectives.Spec, c *optimize.StageCandidate) []byte {
 	default:
 		fmt.Fprintf(&b, "# %s; misses %s.\n", c.Topology, strings.Join(MissTexts(spec, c.Violations), "; "))
 	}
-	b.WriteString("# Evaluate it with `pairsmith eval` (the process is a built-in name or an absolute path).\n")
+	b.WriteString("# Evaluate it with `pairsmith eval` (the process is a built-in name or the run's copy, relative to this file).\n")
 	fmt.Fprintf(&b, "# %s\n", objectives.Caution)
-	b.Write(c.Design.Format())
+	d := *c.Design
+	d.ProcessRef = processRef
+	b.Write(d.Format())
 	return b.Bytes()
 }
 
@@ -221,6 +276,7 @@ type candidateJSON struct {
 }
 
 type summaryJSON struct {
+	RunID                string           `json:"run_id,omitempty"`
 	Spec                 *objectives.Spec `json:"spec"`
 	Strategy             string           `json:"strategy"`
 	Feasible             bool             `json:"feasible"`
@@ -272,7 +328,7 @@ func Rate(res *optimize.StageResult) float64 {
 func Summary(res *optimize.StageResult, opt RunOptions) ([]byte, error) {
 	spec := res.Spec
 	s := summaryJSON{
-		Spec: spec, Strategy: opt.Strategy.String(), Feasible: res.Best != nil,
+		RunID: opt.RunID, Spec: spec, Strategy: opt.Strategy.String(), Feasible: res.Best != nil,
 		Binding: append([]string{}, res.Binding...), Evaluations: res.Evaluations,
 		Seconds: res.Elapsed.Seconds(), EvaluationsPerSecond: Rate(res),
 		Caution: objectives.Caution, Families: []familyJSON{}, Candidates: []candidateJSON{},

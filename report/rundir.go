@@ -164,7 +164,7 @@ func (d *RunDir) Stage() string { return d.stage }
 // none.
 func (d *RunDir) current() string {
 	target, err := os.Readlink(filepath.Join(d.Dir, StateDir, "current"))
-	if err != nil {
+	if err != nil || !runIDPattern.MatchString(filepath.Base(target)) {
 		return ""
 	}
 	return filepath.Base(target)
