@@ -95,7 +95,7 @@ func readRange(rm *units.Map, supply float64) (low, high, step float64, err erro
 	case !(step > 0):
 		err = rm.Errorf("step", "a step above 0 V, for example 10mV")
 	case step > high-low && rm.Has("step"):
-		err = rm.Errorf("step", "a step no larger than the range (%s)", v(high-low))
+		err = rm.Errorf("step", "a step no larger than the range (%s)", short(high-low, units.Volt))
 	case step > high-low:
 		key, want := "high", fmt.Sprintf("a high end at least one step (%s) above low (%s)", v(step), v(low))
 		if !rm.Has("high") {
