@@ -227,20 +227,28 @@ func (f *Figure) Save(path string) error {
 		return fmt.Errorf("plot %s: %w", path, err)
 	}
 	if err := os.WriteFile(path, data, 0o644); err != nil {
-		return fmt.Errorf("plot: %w", err)
+		return &OutputError{Path: path, Err: err}
 	}
 	return nil
 }
 
 // ScaleSI returns the factor and SI prefix that bring values up to
-// maxAbs into the range 1 … 1000: 2.2e-4 gives 1e6 and "µ". Zero or a
-// non-finite maxAbs gives 1 and "".
+// maxAbs into the range 1 … 1000, as SI chooses them (maxAbs rounded to
+// Digits figures first): 2.2e-4 gives 1e6 and "µ", for an axis label
+// "gm (µS)". Beyond femto and giga the prefix is a power of ten and a
+// space, as SI's scientific notation writes it: 3.2e-18 gives 1e18 and
+// "1e-18 ", for "gm (1e-18 S)". Zero or a non-finite maxAbs gives 1 and
+// "".
 func ScaleSI(maxAbs float64) (factor float64, prefix string) {
 	if !(maxAbs > 0) || math.IsInf(maxAbs, 0) {
 		return 1, ""
 	}
-	k := int(math.Floor(math.Log10(maxAbs) / 3))
-	k = min(max(k, siPrefixLow), siPrefixHigh)
+	_, _, exp := sigDigits(maxAbs, Digits)
+	// Powers of ten of a float64 stay within ±300, whose factor is finite.
+	k := min(max(floorDiv3(exp), -100), 100)
+	if k < siPrefixLow || k > siPrefixHigh {
+		return math.Pow(10, float64(-3*k)), "1e" + strconv.Itoa(3*k) + " "
+	}
 	return math.Pow(1000, float64(-k)), siPrefix(k)
 }
 

@@ -156,30 +156,6 @@ func TestPlotSinglePair(t *testing.T) {
 	}
 }
 
-func TestScaleSI(t *testing.T) {
-	tests := []struct {
-		max    float64
-		factor float64
-		prefix string
-	}{
-		{2.2e-4, 1e6, "µ"},
-		{2e-5, 1e6, "µ"},
-		{1e-6, 1e6, "µ"},
-		{9.99e-4, 1e6, "µ"},
-		{1e-3, 1e3, "m"},
-		{3, 1, ""},
-		{5e-9, 1e9, "n"},
-		{0, 1, ""},
-		{math.Inf(1), 1, ""},
-	}
-	for _, tc := range tests {
-		f, p := ScaleSI(tc.max)
-		if math.Abs(f-tc.factor) > 1e-9*tc.factor || p != tc.prefix {
-			t.Errorf("ScaleSI(%g) = %g, %q; want %g, %q", tc.max, f, p, tc.factor, tc.prefix)
-		}
-	}
-}
-
 func TestNiceTicks(t *testing.T) {
 	// The 1-2-5 rule for axis labels (common practice, no source).
 	tests := []struct {

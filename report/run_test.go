@@ -403,7 +403,7 @@ func TestRunTable(t *testing.T) {
 		t.Errorf("nearest miss %q, then %q", lines[second], lines[second+1])
 	}
 	for _, w := range []string{"best: c01 (n-pair)", "results in out (open " + filepath.Join("out", "report.html") + ")",
-		"500 evaluations in 2.0 s, 250 evaluations/s", objectives.Caution} {
+		"500 evaluations in 2 s, 250 evaluations/s", objectives.Caution} {
 		if !strings.Contains(b.String(), w) {
 			t.Errorf("table lacks %q", w)
 		}

@@ -6,6 +6,8 @@ import (
 	"image/color"
 	"math"
 	"slices"
+	"strconv"
+	"strings"
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
@@ -40,14 +42,84 @@ func familyColour(name string) color.Color {
 	return familyColours[i%len(familyColours)]
 }
 
-// familyGlyph returns a family's marker shape, so that families stay
-// apart in grey print too.
-func familyGlyph(name string) draw.GlyphDrawer {
-	shapes := []draw.GlyphDrawer{draw.CircleGlyph{}, draw.SquareGlyph{}, draw.TriangleGlyph{},
-		draw.PyramidGlyph{}, draw.CrossGlyph{}, draw.PlusGlyph{}, draw.BoxGlyph{}, draw.RingGlyph{}}
-	i := max(familyIndex(name), 0)
-	return shapes[i%len(shapes)]
+// mark is a family's marker in the run plots: a circle, a regular
+// polygon or a star, drawn filled for a member of the Pareto front and as
+// an outline (hollow) for every other candidate, so that shape and colour
+// say the family and the fill says whether it is on the front. Every
+// shape has a filled and a hollow form that tell apart (crosses and
+// pluses, which have no inside, are not used).
+type mark struct {
+	sides  int     // 0: a circle; else the polygon's corners (the star's points)
+	rot    float64 // the first corner's angle from straight up, radians
+	star   float64 // > 0: a star whose inner corners are at this fraction of the radius
+	size   float64 // radius factor that evens out the shapes' visual weight
+	hollow bool
 }
+
+// familyMarks are the families' markers, in the order of topologies.All().
+var familyMarks = [...]mark{
+	{sides: 0, size: 1},                   // circle
+	{sides: 4, rot: math.Pi / 4, size: 1}, // square
+	{sides: 3, size: 1.3},                 // triangle, point up
+	{sides: 4, size: 1.2},                 // diamond
+	{sides: 3, rot: math.Pi, size: 1.3},   // triangle, point down
+	{sides: 5, size: 1.1},                 // pentagon
+	{sides: 5, star: 0.45, size: 1.45},    // star
+	{sides: 6, rot: math.Pi / 6, size: 1}, // hexagon
+}
+
+// familyMark returns a family's filled marker.
+func familyMark(name string) mark {
+	i := max(familyIndex(name), 0)
+	return familyMarks[i%len(familyMarks)]
+}
+
+// outline returns the hollow form of a marker.
+func (m mark) outline() mark {
+	m.hollow = true
+	return m
+}
+
+// DrawGlyph implements draw.GlyphDrawer.
+func (m mark) DrawGlyph(c *draw.Canvas, sty draw.GlyphStyle, pt vg.Point) {
+	r := sty.Radius * vg.Length(m.size)
+	var p vg.Path
+	if m.sides == 0 {
+		p.Move(vg.Point{X: pt.X + r, Y: pt.Y})
+		p.Arc(pt, r, 0, 2*math.Pi)
+	} else {
+		n := m.sides
+		step := 2 * math.Pi / float64(n)
+		if m.star > 0 {
+			n, step = 2*n, step/2
+		}
+		for i := 0; i < n; i++ {
+			ri := r
+			if m.star > 0 && i%2 == 1 {
+				ri = r * vg.Length(m.star)
+			}
+			a := m.rot + float64(i)*step
+			q := vg.Point{X: pt.X + ri*vg.Length(math.Sin(a)), Y: pt.Y + ri*vg.Length(math.Cos(a))}
+			if i == 0 {
+				p.Move(q)
+			} else {
+				p.Line(q)
+			}
+		}
+	}
+	p.Close()
+	if m.hollow {
+		c.SetLineStyle(draw.LineStyle{Color: sty.Color, Width: vg.Points(1.1)})
+		c.Stroke(p)
+		return
+	}
+	c.SetColor(sty.Color)
+	c.Fill(p)
+}
+
+// styleGrey is the colour of the legend entries that explain a style
+// (filled, hollow, thin, bold) rather than a family: no family has it.
+var styleGrey = color.Gray{Y: 0x80}
 
 // axisView is how a trade-off axis (or a metric standing in for one) is
 // drawn: its label and unit, the value of a candidate in SI units and the
@@ -94,14 +166,36 @@ func viewOf(spec *objectives.Spec, axis string) axisView {
 func (a axisView) scaled(maxAbs float64) (factor float64, label string) {
 	switch a.unit {
 	case "%":
-		return 1, a.name + " (%)"
+		f, p := plainScale(maxAbs)
+		return f, a.name + " (" + p + "%)"
 	case "m²":
-		return 1e12, a.name + " (µm²)"
+		f, p := plainScale(maxAbs * 1e12)
+		return 1e12 * f, a.name + " (" + p + "µm²)"
 	case "":
-		return 1, a.name
+		f, p := plainScale(maxAbs)
+		if p == "" {
+			return 1, a.name
+		}
+		return f, a.name + " (" + strings.TrimSpace(p) + ")"
 	}
 	f, p := ScaleSI(maxAbs)
 	return f, a.name + " (" + p + a.unit + ")"
+}
+
+// plainScale returns the factor and label prefix of an axis in a unit
+// that keeps no SI prefix (per cent, µm²): 1 and "" while values up to
+// maxAbs are written plainly (Plain's decimal range), else a power of ten
+// as ScaleSI gives beyond its prefixes ("1e21 " for "gm ripple (1e21 %)").
+func plainScale(maxAbs float64) (factor float64, prefix string) {
+	if !(maxAbs > 0) || math.IsInf(maxAbs, 0) {
+		return 1, ""
+	}
+	_, _, exp := sigDigits(maxAbs, Digits)
+	if exp >= -3 && exp < 6 {
+		return 1, ""
+	}
+	k := min(max(floorDiv3(exp), -100), 100)
+	return math.Pow(10, float64(-3*k)), "1e" + strconv.Itoa(3*k) + " "
 }
 
 // finiteVal reports whether v can be plotted.
@@ -141,23 +235,25 @@ func budgetLine(pts plotter.XYs) (*plotter.Line, error) {
 	return l, nil
 }
 
-// ParetoFigure draws the trade-offs of a run: the candidates on the Pareto
-// front, coloured and shaped by family, with the first trade-off axis
-// across and one panel for each further axis, the spec's budgets as dashed
-// lines, and the other reported candidates (family bests off the front,
-// nearest misses) as rings in their family's colour. Every axis starts at
-// zero; the legend is beside the panels.
+// ParetoFigure draws the trade-offs of a run, with the first trade-off
+// axis across and one panel for each further axis: every reported
+// candidate in its family's colour and shape, filled when it is on the
+// Pareto front and hollow when it is not (a family's best off the front,
+// a nearest miss), the spec's budgets as dashed lines. The legend beside
+// the panels names each family by its filled marker and explains the
+// filled and hollow forms in grey, a colour no family has; the subtitle
+// says how much of the front is shown. Every axis starts at zero.
 func ParetoFigure(res *optimize.StageResult) (*Figure, error) {
 	spec := res.Spec
 	xv, yvs := panelAxes(spec)
 	var families []string
 	front, off := 0, 0
 	for _, c := range res.Candidates {
-		if !c.Pareto {
+		if c.Pareto {
+			front++
+		} else {
 			off++
-			continue
 		}
-		front++
 		if !slices.Contains(families, c.Topology) {
 			families = append(families, c.Topology)
 		}
@@ -167,29 +263,27 @@ func ParetoFigure(res *optimize.StageResult) (*Figure, error) {
 		Title:   fmt.Sprintf("Pareto front of %s", oneLine(spec.Name)),
 		Caption: objectives.Caution,
 		SharedX: true,
+		Width:   runFigureWidth,
 	}
 	if front > 0 {
-		fig.Subtitle = fmt.Sprintf("%d candidates on the front, coloured by family; rings: other reported candidates; dashed: budgets", front)
+		reported, whole := FrontSize(res)
+		shown := fmt.Sprintf("%d on the front", reported)
+		if whole > reported {
+			shown = fmt.Sprintf("the most spread %d of the %d on the front", reported, whole)
+		}
+		fig.Subtitle = "filled: " + shown + "; hollow: other reported candidates; colour and shape: family; dashed: budgets"
 	} else {
-		fig.Subtitle = "no candidate meets the spec: the rings are the nearest misses; dashed: budgets"
+		fig.Subtitle = "no candidate meets the spec: hollow, the nearest misses; colour and shape: family; dashed: budgets"
 	}
 	legend := figureLegend()
 	for _, fam := range families {
-		legend.Add(fam, glyphThumb(familyColour(fam), familyGlyph(fam)))
+		legend.Add(fam, glyphThumb(familyColour(fam), familyMark(fam)))
 	}
-	// Families with candidates off the front only: their ring's colour.
-	var offOnly []string
-	for _, c := range res.Candidates {
-		if !slices.Contains(families, c.Topology) && !slices.Contains(offOnly, c.Topology) {
-			offOnly = append(offOnly, c.Topology)
-		}
-	}
-	sortFamilies(offOnly)
-	for _, fam := range offOnly {
-		legend.Add(fam, glyphThumb(familyColour(fam), draw.RingGlyph{}))
+	if front > 0 {
+		legend.Add("on the front", glyphThumb(styleGrey, mark{size: 1}))
 	}
 	if off > 0 {
-		legend.Add("off the front", glyphThumb(color.Gray{Y: 0x60}, draw.RingGlyph{}))
+		legend.Add("not on the front", glyphThumb(styleGrey, mark{size: 1, hollow: true}))
 	}
 	xLim := axisLimit(res.Candidates, xv, front > 0)
 	xScale, xLabel := xv.scaled(xLim)
@@ -236,32 +330,28 @@ func ParetoFigure(res *optimize.StageResult) (*Figure, error) {
 			budgets = true
 		}
 		// The other candidates first, so that the front is drawn over them.
-		for _, c := range res.Candidates {
-			if pt, ok := point(c); ok && !c.Pareto {
-				s, err := plotter.NewScatter(plotter.XYs{pt})
+		for _, onFront := range []bool{false, true} {
+			for _, fam := range families {
+				var pts plotter.XYs
+				for _, c := range res.Candidates {
+					if pt, ok := point(c); ok && c.Pareto == onFront && c.Topology == fam {
+						pts = append(pts, pt)
+					}
+				}
+				if len(pts) == 0 {
+					continue
+				}
+				s, err := plotter.NewScatter(pts)
 				if err != nil {
 					return nil, fmt.Errorf("plot Pareto front: %w", err)
 				}
-				s.GlyphStyle = draw.GlyphStyle{Color: familyColour(c.Topology), Radius: vg.Points(3.5), Shape: draw.RingGlyph{}}
+				m := familyMark(fam)
+				if !onFront {
+					m = m.outline()
+				}
+				s.GlyphStyle = draw.GlyphStyle{Color: familyColour(fam), Radius: vg.Points(3), Shape: m}
 				p.Add(s)
 			}
-		}
-		for _, fam := range families {
-			var pts plotter.XYs
-			for _, c := range res.Candidates {
-				if pt, ok := point(c); ok && c.Pareto && c.Topology == fam {
-					pts = append(pts, pt)
-				}
-			}
-			if len(pts) == 0 {
-				continue
-			}
-			s, err := plotter.NewScatter(pts)
-			if err != nil {
-				return nil, fmt.Errorf("plot Pareto front: %w", err)
-			}
-			s.GlyphStyle = draw.GlyphStyle{Color: familyColour(fam), Radius: vg.Points(3), Shape: familyGlyph(fam)}
-			p.Add(s)
 		}
 		fig.Panels = append(fig.Panels, p)
 	}
@@ -293,7 +383,7 @@ type glyph struct {
 }
 
 // glyphThumb returns the legend thumbnail of a marker.
-func glyphThumb(c color.Color, shape draw.GlyphDrawer) glyph {
+func glyphThumb(c color.Color, shape mark) glyph {
 	return glyph{draw.GlyphStyle{Color: c, Radius: vg.Points(3), Shape: shape}}
 }
 
@@ -346,30 +436,41 @@ func nanTo0(v float64) float64 {
 	return 0
 }
 
-// CurvesFigure draws gm against vcm of every family's best candidate on one
-// chart, one line per family in its colour: solid for a candidate that
-// meets the spec, dashed for a nearest miss. The spec's gm_min target is a
-// dashed red line and the y axis starts at zero.
+// CurvesFigure draws gm against vcm on one chart: every reported member
+// of the Pareto front as a thin line and every family's best candidate as
+// a bold one, each in its family's colour; a best that misses the spec is
+// dashed. The spec's gm_min target is a dashed red line and the y axis
+// starts at zero. The legend names each family's best and explains the
+// thin lines in grey, a colour no family has.
 func CurvesFigure(res *optimize.StageResult) (*Figure, error) {
 	spec := res.Spec
 	type line struct {
-		c  *optimize.StageCandidate
-		xs []float64
-		ys []float64
+		c      *optimize.StageCandidate
+		xs, ys []float64
 	}
-	var lines []line
+	curveOf := func(c *optimize.StageCandidate) line {
+		l := line{c: c}
+		for _, pt := range c.Eval.Curve() {
+			l.xs, l.ys = append(l.xs, pt.VCM), append(l.ys, pt.GM)
+		}
+		return l
+	}
+	var thin, bold []line
 	top := 0.0
+	for _, c := range res.Candidates {
+		if c.Pareto && c.Eval != nil {
+			l := curveOf(c)
+			top = math.Max(top, maxAbs(l.ys))
+			thin = append(thin, l)
+		}
+	}
 	for _, f := range res.Families {
 		if f.Best == nil || f.Best.Eval == nil {
 			continue
 		}
-		curve := f.Best.Eval.Curve()
-		l := line{c: f.Best}
-		for _, pt := range curve {
-			l.xs, l.ys = append(l.xs, pt.VCM), append(l.ys, pt.GM)
-		}
+		l := curveOf(f.Best)
 		top = math.Max(top, maxAbs(l.ys))
-		lines = append(lines, l)
+		bold = append(bold, l)
 	}
 	gmTarget := math.NaN()
 	if spec.Targets.Has(objectives.TargetGMMin) {
@@ -383,7 +484,15 @@ func CurvesFigure(res *optimize.StageResult) (*Figure, error) {
 	}
 	p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = spec.Range.Low, spec.Range.High, 0, yTop
 	legend := figureLegend()
-	for _, l := range lines {
+	for _, l := range thin {
+		pl, err := SeriesLine(l.xs, l.ys, scale, faded(familyColour(l.c.Topology)), nil)
+		if err != nil {
+			return nil, fmt.Errorf("plot gm of %s: %w", l.c.ID, err)
+		}
+		pl.LineStyle.Width = thinWidth
+		p.Add(pl)
+	}
+	for _, l := range bold {
 		var dashes []vg.Length
 		label := fmt.Sprintf("%s (%s)", l.c.Topology, l.c.ID)
 		if !l.c.Feasible {
@@ -394,8 +503,17 @@ func CurvesFigure(res *optimize.StageResult) (*Figure, error) {
 		if err != nil {
 			return nil, fmt.Errorf("plot gm of %s: %w", l.c.ID, err)
 		}
+		pl.LineStyle.Width = boldWidth
 		p.Add(pl)
 		legend.Add(label, pl)
+	}
+	if len(thin) > 0 {
+		l, err := plotter.NewLine(plotter.XYs{{}, {X: 1}})
+		if err != nil {
+			return nil, err
+		}
+		l.LineStyle = draw.LineStyle{Color: styleGrey, Width: thinWidth}
+		legend.Add(fmt.Sprintf("thin: %d front members", len(thin)), l)
 	}
 	if finiteVal(gmTarget) {
 		bl, err := budgetLine(plotter.XYs{{X: spec.Range.Low, Y: gmTarget * scale}, {X: spec.Range.High, Y: gmTarget * scale}})
@@ -405,9 +523,19 @@ func CurvesFigure(res *optimize.StageResult) (*Figure, error) {
 		p.Add(bl)
 		legend.Add("gm_min target", bl)
 	}
-	sub := "the best candidate of each family; dashed: misses the spec"
-	if len(lines) == 0 {
+	var sub string
+	switch {
+	case len(thin) == 0 && len(bold) == 0:
 		sub = "no family has an evaluated candidate"
+	case len(thin) == 0:
+		sub = "bold: the best candidate of each family (dashed: misses the spec); no candidate is on the front"
+	default:
+		reported, whole := FrontSize(res)
+		front := fmt.Sprintf("the %d reported members of the front", reported)
+		if whole > reported {
+			front = fmt.Sprintf("the most spread %d of the %d on the front", reported, whole)
+		}
+		sub = "thin: " + front + "; bold: each family's best (dashed: misses the spec)"
 	}
 	return &Figure{
 		Title:    fmt.Sprintf("gm over the input range, %s", oneLine(spec.Name)),
@@ -415,6 +543,25 @@ func CurvesFigure(res *optimize.StageResult) (*Figure, error) {
 		Caption:  objectives.Caution,
 		Panels:   []*plot.Plot{p},
 		Legend:   &legend,
+		Width:    runFigureWidth,
 		Height:   11 * vg.Centimeter,
 	}, nil
 }
+
+// faded returns a colour at 60 % opacity, so that the thin lines of the
+// front stay behind the bold ones where they cross.
+func faded(c color.Color) color.Color {
+	r, g, b, _ := c.RGBA()
+	return color.NRGBA{R: uint8(r >> 8), G: uint8(g >> 8), B: uint8(b >> 8), A: 0x99}
+}
+
+// runFigureWidth is the width of the run plots: wide enough for the
+// legend beside the panels, narrower than report.html's text column.
+const runFigureWidth = 24 * vg.Centimeter
+
+// Line widths of the gm curves: the front's members and the families'
+// bests.
+const (
+	thinWidth = vg.Length(0.5)
+	boldWidth = vg.Length(2.2)
+)

@@ -1,10 +1,13 @@
 package report
 
 import (
+	"fmt"
 	"io"
+	"math"
 	"path/filepath"
 	"strconv"
 	"strings"
+	"time"
 	"unicode/utf8"
 
 	"pairsmith/objectives"
@@ -69,15 +72,9 @@ func RunTable(w io.Writer, res *optimize.StageResult, dir string) error {
 		}
 	}
 	e.printf("\n")
-	front := 0
-	for _, c := range res.Candidates {
-		if c.Pareto {
-			front++
-		}
-	}
 	if b := res.Best; b != nil {
-		e.printf("best: %s (%s), score %s; %d candidates written, %d on the Pareto front\n",
-			b.ID, b.Topology, strconv.FormatFloat(b.Score, 'f', 3, 64), len(res.Candidates), front)
+		e.printf("best: %s (%s), score %s; %d candidates written, %s\n",
+			b.ID, b.Topology, ScoreText(b.Score), len(res.Candidates), FrontText(res))
 	} else {
 		e.printf("no candidate meets the spec; the targets that bind: %s\n", strings.Join(res.Binding, ", "))
 		if near := nearest(res); near != nil {
@@ -86,9 +83,53 @@ func RunTable(w io.Writer, res *optimize.StageResult, dir string) error {
 		e.printf("%d candidates written (the nearest misses and each family's best)\n", len(res.Candidates))
 	}
 	e.printf("results in %s (open %s)\n", dir, filepath.Join(dir, ReportFile))
-	e.printf("%d evaluations in %.1f s, %.0f evaluations/s\n", res.Evaluations, res.Elapsed.Seconds(), Rate(res))
+	e.printf("%d evaluations in %s, %s evaluations/s\n", res.Evaluations, SecondsText(res.Elapsed), Plain(math.Round(Rate(res)), Digits))
 	e.printf("\n%s\n", objectives.Caution)
 	return e.err
+}
+
+// FrontSize returns how many members of the Pareto front a result
+// reports (with design files) and how many the whole front has; the
+// reported ones are at most optimize.MaxReportedFront, the most spread
+// by crowding distance when the front is larger.
+func FrontSize(res *optimize.StageResult) (reported, whole int) {
+	for _, c := range res.Candidates {
+		if c.Pareto {
+			reported++
+		}
+	}
+	whole = reported
+	if res.Search != nil {
+		whole = max(whole, len(res.Search.Front))
+	}
+	return reported, whole
+}
+
+// FrontText says how much of the Pareto front a result reports: "12 on
+// the Pareto front", or, when the front was thinned to its most spread
+// members, "200 of 1234 on the Pareto front (the most spread 200
+// reported)".
+func FrontText(res *optimize.StageResult) string {
+	reported, whole := FrontSize(res)
+	if whole > reported {
+		return fmt.Sprintf("%d of %d on the Pareto front (the most spread %d reported)", reported, whole, reported)
+	}
+	return fmt.Sprintf("%d on the Pareto front", reported)
+}
+
+// ScoreText writes a candidate's score for reading, to Digits significant
+// figures ("0.7342"), a dash when it has none.
+func ScoreText(score float64) string {
+	if !finiteVal(score) {
+		return "—"
+	}
+	return Plain(score, Digits)
+}
+
+// SecondsText writes a run's elapsed time in seconds to a tenth of a
+// second and at most Digits figures: "2 s", "45.3 s", "1235 s".
+func SecondsText(d time.Duration) string {
+	return Plain(math.Round(d.Seconds()*10)/10, Digits) + " s"
 }
 
 // nearest returns the reported candidate of least total violation.

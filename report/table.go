@@ -11,8 +11,8 @@ import (
 	"pairsmith/objectives"
 )
 
-// Significant figures of the numbers in text tables.
-const tableDigits = 4
+// Significant figures of the numbers in text tables and the report.
+const tableDigits = Digits
 
 // errWriter remembers the first write error, so that a table can be
 // written line by line and checked once.
@@ -70,10 +70,13 @@ func (t *textTable) write(e *errWriter, indent string) {
 	}
 }
 
-// Celsius writes a temperature in kelvin as degrees Celsius: "27 °C".
+// Celsius writes a temperature in kelvin as degrees Celsius to at most
+// Digits significant figures: "27 °C", "-40 °C", "26.85 °C". The
+// difference from 273.15 K is rounded to 1 µK first, so that 300.15 K is
+// 27 °C and not 27.000000000000023.
 func Celsius(tempK float64) string {
 	c := math.Round((tempK-273.15)*1e6) / 1e6
-	return strconv.FormatFloat(c, 'f', -1, 64) + " °C"
+	return Plain(c, Digits) + " °C"
 }
 
 // Conditions describes where an evaluation was taken, in one line:
@@ -161,16 +164,13 @@ func MetricsTable(w io.Writer, ev *objectives.Evaluation) error {
 }
 
 // areaText writes an area in m² as µm², the unit layout uses, to four
-// significant figures: 4.2e-10 m² is "420 µm²".
+// significant figures (Plain): 4.2e-10 m² is "420 µm²", 1e-20 m²
+// "1e-8 µm²".
 func areaText(a float64) string {
-	if !finiteVal(a) {
-		return SI(a, "µm²", tableDigits)
+	if math.IsNaN(a) {
+		return "NaN"
 	}
-	s := strconv.FormatFloat(a*1e12, 'g', tableDigits, 64)
-	if f, err := strconv.ParseFloat(s, 64); err == nil && math.Abs(f) >= 1 && math.Abs(f) < 1e6 {
-		s = strconv.FormatFloat(f, 'f', -1, 64)
-	}
-	return s + " µm²"
+	return Plain(a*1e12, tableDigits) + " µm²"
 }
 
 // DevicesTable writes the transistors of an evaluation at the middle of
@@ -186,7 +186,7 @@ func DevicesTable(w io.Writer, ev *objectives.Evaluation) error {
 	for _, d := range ev.Devices {
 		wtxt := SI(d.W, "m", tableDigits)
 		if d.M != 1 && d.M != 0 {
-			wtxt = strconv.FormatFloat(d.M, 'g', -1, 64) + "×" + wtxt
+			wtxt = Plain(d.M, tableDigits) + "×" + wtxt
 		}
 		t.add(d.Name, d.Type, d.Role, wtxt, SI(d.L, "m", tableDigits),
 			SIFixed(d.ID, "A", tableDigits), volts(d.VGS), volts(d.VDS), volts(d.VTH), volts(d.VDSAT),
@@ -197,10 +197,12 @@ func DevicesTable(w io.Writer, ev *objectives.Evaluation) error {
 }
 
 // volts writes a terminal voltage in V with three decimals (1 mV), as a
-// SPICE operating-point listing does, so the column lines up.
+// SPICE operating-point listing does, so the column lines up; from 10 V
+// on (where three decimals would be more than Digits figures) and for
+// NaN and infinities, as SIFixed writes it.
 func volts(v float64) string {
-	if !finiteVal(v) {
-		return SI(v, "V", tableDigits)
+	if !finiteVal(v) || math.Abs(v) >= 9.9995 {
+		return SIFixed(v, "V", tableDigits)
 	}
 	s := strconv.FormatFloat(v, 'f', 3, 64)
 	if s == "-0.000" {

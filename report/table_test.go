@@ -14,67 +14,6 @@ import (
 	"pairsmith/topologies"
 )
 
-func TestSI(t *testing.T) {
-	// Prefixes and symbols: SI brochure, 9th edition, table 7 (µ for
-	// micro, m for milli, …); rounding to significant figures is common
-	// practice, no source.
-	tests := []struct {
-		v      float64
-		unit   string
-		digits int
-		want   string
-	}{
-		{1.9566230946951727e-4, "S", 4, "195.7 µS"},
-		{2e-5, "m", 4, "20 µm"},
-		{1e-6, "m", 4, "1 µm"},
-		{1.8, "V", 4, "1.8 V"},
-		{0.01, "V", 4, "10 mV"},
-		{0.9832603363556242, "V", 4, "983.3 mV"},
-		{8.014244604479885e-5, "W", 4, "80.14 µW"},
-		{-1.966e-5, "A", 4, "-19.66 µA"},
-		{999.96e-6, "S", 4, "1 mS"}, // rounds up into the next prefix
-		{999.94e-6, "S", 4, "999.9 µS"},
-		{5.600749530370578e-10, "S", 4, "560.1 pS"},
-		{1.5e-15, "A", 3, "1.5 fA"},
-		{2e-18, "A", 3, "0.002 fA"}, // below femto keeps femto
-		{4.5e12, "Hz", 3, "4500 GHz"},
-		{4500, "", 3, "4.5 k"},
-		{0.5, "", 3, "500 m"},
-		{0, "V", 4, "0 V"},
-		{math.NaN(), "V", 4, "NaN"},
-		{math.Inf(1), "", 4, "∞"},
-		{math.Inf(-1), "V", 4, "-∞ V"},
-		{123456, "Ω", 2, "120 kΩ"},
-	}
-	for _, tc := range tests {
-		if got := SI(tc.v, tc.unit, tc.digits); got != tc.want {
-			t.Errorf("SI(%g, %q, %d) = %q, want %q", tc.v, tc.unit, tc.digits, got, tc.want)
-		}
-	}
-}
-
-func TestPercentAndRipple(t *testing.T) {
-	tests := []struct {
-		f      float64
-		pct    string
-		ripple string
-	}{
-		{0.42, "42.0 %", "42.0 %"},
-		{0.1300085825648707, "13.0 %", "13.0 %"},
-		{1, "100.0 %", "100.0 %"},
-		// design.md §4: an unbounded ripple is ∞ in text.
-		{math.Inf(1), "∞", "∞ (gm falls to zero)"},
-	}
-	for _, tc := range tests {
-		if got := Percent(tc.f); got != tc.pct {
-			t.Errorf("Percent(%g) = %q, want %q", tc.f, got, tc.pct)
-		}
-		if got := RippleText(tc.f); got != tc.ripple {
-			t.Errorf("RippleText(%g) = %q, want %q", tc.f, got, tc.ripple)
-		}
-	}
-}
-
 // fakeEval makes an evaluation by hand, with a flat curve of the design's
 // sweep, so that table tests do not depend on the solver.
 func fakeEval(t *testing.T, topology string, m objectives.Metrics, single bool) *objectives.Evaluation {
@@ -216,25 +155,6 @@ func TestFamiliesTable(t *testing.T) {
 	for _, f := range topologies.All() {
 		if !strings.Contains(b.String(), f.Name()+" — "+f.Summary()+"\n") {
 			t.Errorf("no line for %s", f.Name())
-		}
-	}
-}
-
-func TestSIFixed(t *testing.T) {
-	// As SI, keeping the trailing zeros of the significant figures.
-	tests := []struct {
-		v    float64
-		want string
-	}{
-		{9.9e-6, "9.900 µA"},
-		{-9.9e-6, "-9.900 µA"},
-		{1.72e-4, "172.0 µA"},
-		{2e-5, "20.00 µA"},
-		{999.96e-6, "1.000 mA"},
-	}
-	for _, tc := range tests {
-		if got := SIFixed(tc.v, "A", 4); got != tc.want {
-			t.Errorf("SIFixed(%g) = %q, want %q", tc.v, got, tc.want)
 		}
 	}
 }
