@@ -83,8 +83,26 @@ func Search(ctx context.Context, spec *objectives.Spec, opt SearchOptions) (*Sta
 	if err != nil {
 		return nil, err
 	}
-	return gather(ctx, prob, res, set)
+	// The reported candidates are re-evaluated even when ctx or the
+	// deadline ended the search — that is what an interrupted run
+	// writes — but only for gatherGrace after it ended: past that the
+	// rest are left out, so that an interrupt is honoured at once.
+	gctx, cancel := context.WithCancel(context.WithoutCancel(ctx))
+	defer cancel()
+	stopAfter := func() { time.AfterFunc(gatherGrace, cancel) }
+	defer context.AfterFunc(ctx, stopAfter)()
+	if !set.Deadline.IsZero() {
+		t := time.AfterFunc(time.Until(set.Deadline.Add(gatherGrace)), cancel)
+		defer t.Stop()
+	}
+	return gather(gctx, prob, res, set)
 }
+
+// gatherGrace is how long the reported candidates are still re-evaluated
+// once an interrupt or the time budget has ended the search: enough for
+// the best and every family's best at any sweep step the spec allows, and
+// short enough that the run ends within a second of the signal.
+const gatherGrace = 500 * time.Millisecond
 
 // MaxReportedFront bounds how many members of the front a result reports
 // (with design files and netlists); a larger front is thinned to its most

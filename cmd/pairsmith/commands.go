@@ -40,12 +40,14 @@ func newRoot(stdout, stderr io.Writer) *cobra.Command {
 			"circuit solver and compact MOSFET models, searches topology and sizing for the\n" +
 			"stages that meet a spec sheet, and writes SPICE netlists of them.\n\n" +
 			objectives.Caution,
+		Version:           version(),
 		SilenceErrors:     true,
 		SilenceUsage:      true,
 		CompletionOptions: cobra.CompletionOptions{DisableDefaultCmd: true},
 	}
 	root.SetOut(stdout)
 	root.SetErr(stderr)
+	root.SetVersionTemplate("pairsmith {{.Version}}\n")
 	root.AddCommand(newRunCmd(stdout, stderr), newTopologiesCmd(stdout), newEvalCmd(stdout, stderr), newNetlistCmd(stdout, stderr))
 	return root
 }
@@ -92,7 +94,7 @@ func writeOut(stdout io.Writer, path string, data []byte) error {
 		return err
 	}
 	if err := os.WriteFile(path, data, 0o644); err != nil {
-		return fmt.Errorf("write output: %w", err)
+		return &report.OutputError{Path: path, Err: err}
 	}
 	return nil
 }
@@ -166,8 +168,8 @@ func writeJSON(w io.Writer, v any) error {
 
 func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 	var (
-		asJSON, devices bool
-		plotPath        string
+		asJSON, devices, plotSet bool
+		plotPath                 string
 	)
 	c := &cobra.Command{
 		Use:   "eval DESIGN.yaml",
@@ -178,7 +180,7 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 			"--plot draws gm and the two pair currents against vcm.",
 		Args: oneFile("design file (DESIGN.yaml)"),
 		RunE: work(func(args []string) error {
-			if plotPath != "" {
+			if plotSet {
 				if _, err := report.PlotFormat(plotPath); err != nil {
 					return err
 				}
@@ -208,7 +210,7 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 					}
 				}
 			}
-			if plotPath != "" {
+			if plotSet {
 				if err := report.PlotEval(plotPath, ev); err != nil {
 					return err
 				}
@@ -219,6 +221,7 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 	}
 	c.Flags().BoolVar(&asJSON, "json", false, "write the JSON document instead of the table")
 	c.Flags().StringVar(&plotPath, "plot", "", "also draw gm and the pair currents to `FILE` (.svg or .png)")
+	c.PreRun = func(cmd *cobra.Command, _ []string) { plotSet = cmd.Flags().Changed("plot") }
 	c.Flags().BoolVar(&devices, "devices", false, "also list the transistors at the middle of the sweep")
 	return c
 }

@@ -484,8 +484,17 @@ func TestNetlist(t *testing.T) {
 	if code != exitOK || !strings.Contains(withDC, "\n.dc VCM 0 1.8 0.01\n") {
 		t.Errorf("--dc: exit %d, no .dc VCM 0 1.8 0.01 line", code)
 	}
-	if code, _, _ := runCmd(t, "netlist", "-o", filepath.Join(dir, "no", "such", "dir.cir"), design); code != exitFailed {
-		t.Errorf("unwritable -o: exit %d, want %d", code, exitFailed)
+	// An output path that cannot be written is bad input, as in `run`
+	// and `eval --plot`: exit 2 with the path on the first line.
+	bad := filepath.Join(dir, "no", "such", "dir.cir")
+	if code, _, stderr := runCmd(t, "netlist", "-o", bad, design); code != exitBadInput || !strings.HasPrefix(stderr, "pairsmith: output "+bad+": ") {
+		t.Errorf("unwritable -o: exit %d, stderr %q; want %d naming %s", code, stderr, exitBadInput, bad)
+	}
+	if code, _, stderr := runCmd(t, "eval", "--plot", filepath.Join(dir, "no", "gm.svg"), design); code != exitBadInput || !strings.Contains(stderr, "pairsmith: output ") {
+		t.Errorf("unwritable --plot: exit %d, stderr %q; want %d", code, stderr, exitBadInput)
+	}
+	if code, _, stderr := runCmd(t, "eval", "--plot", "", design); code != exitBadInput || !strings.Contains(stderr, "plot file") {
+		t.Errorf("--plot '': exit %d, stderr %q; want %d saying the plot file has no extension", code, stderr, exitBadInput)
 	}
 }
 

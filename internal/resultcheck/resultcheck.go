@@ -29,7 +29,8 @@ type summary struct {
 }
 
 // Verify checks that dir holds the complete results of one run and
-// returns its id: summary.json reads; every candidate it lists has its
+// returns its id: summary.json reads and lists candidates (an
+// interrupted run too reports what it found); every candidate it lists has its
 // design file and deck, both carrying the run's id; the candidates
 // directory holds nothing else; pareto.csv lists exactly the Pareto
 // candidates; report.html carries the run's id; and every design file,
@@ -46,6 +47,9 @@ func Verify(dir string) (string, error) {
 	}
 	if s.RunID == "" {
 		return "", fmt.Errorf("summary.json has no run_id")
+	}
+	if len(s.Candidates) == 0 {
+		return s.RunID, fmt.Errorf("summary.json of run %s lists no candidate", s.RunID)
 	}
 	var listed, pareto []string
 	for _, c := range s.Candidates {
