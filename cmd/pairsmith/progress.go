@@ -24,6 +24,10 @@ const (
 	barMax = 79
 )
 
+// eraseLine is the ANSI control sequence that erases from the cursor to
+// the end of the line (ECMA-48 EL, CSI K).
+const eraseLine = "\x1b[K"
+
 // isTerminal reports whether w is a character device (a terminal), by the
 // file mode alone, which needs nothing beyond the standard library.
 func isTerminal(w io.Writer) bool {
@@ -53,7 +57,6 @@ type progress struct {
 	shown  int // evaluations in the last line drawn
 	// shownReported is the reported candidates re-evaluated in it.
 	shownReported int
-	width         int // runes of the last bar drawn, to blank what is left of it
 
 	stop chan struct{}
 	wg   sync.WaitGroup
@@ -129,17 +132,14 @@ func (p *progress) draw(final bool) {
 	p.shown, p.shownReported = pr.Evaluations, pr.Reported
 	now := p.now()
 	if p.terminal {
-		line := barLine(pr, p.deadline, now)
-		pad := ""
-		if n := len([]rune(line)); n < p.width {
-			pad = strings.Repeat(" ", p.width-n)
-		}
-		p.width = len([]rune(line))
+		// Back to the line's start, the bar, then erase to the end of
+		// the line (ANSI "EL"): whatever a shorter bar or the
+		// terminal's own echo of ^C left there goes.
 		end := ""
 		if final {
 			end = "\n"
 		}
-		fmt.Fprintf(p.w, "\r%s%s%s", line, pad, end)
+		fmt.Fprintf(p.w, "\r%s%s%s", barLine(pr, p.deadline, now), eraseLine, end)
 		return
 	}
 	fmt.Fprintln(p.w, logLine(pr, p.deadline, now, final))
@@ -224,8 +224,8 @@ func barLine(pr optimize.Progress, deadline, now time.Time) string {
 	var b strings.Builder
 	b.WriteString("[" + strings.Repeat("#", n) + strings.Repeat(".", barWidth-n) + "]")
 	fmt.Fprintf(&b, " %.0f%% %s %.0f/s feasible %d %s", 100*frac, countText(pr), rate(pr), pr.Feasible, bestText(pr))
-	if left, ok := eta(pr, deadline, now); ok {
-		b.WriteString(" ETA " + shortDuration(left))
+	if left, ok := eta(pr, deadline, now); ok && pr.Phase != optimize.PhaseReport {
+		b.WriteString(" ETA " + shortDuration(left)) // after the search it has no meaning
 	}
 	line := []rune(b.String())
 	if ph := phaseText(pr); ph != "" && len(line)+1+len([]rune(ph)) <= barMax {
