@@ -51,3 +51,40 @@ func TestSearchInterrupted(t *testing.T) {
 		}
 	}
 }
+
+// TestPayloadsKeptByTheArchive: the record of every evaluation drops its
+// payload (most of its memory), while the front, the nearest misses and
+// the family bests keep theirs.
+func TestPayloadsKeptByTheArchive(t *testing.T) {
+	spec, err := objectives.LoadSpec(filepath.Join("..", "testdata", "specs", "strain-gauge.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	prob, err := NewStageProblem(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Run(context.Background(), prob, Settings{Evaluations: 600, Seed: 2, Strategy: Hybrid})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, c := range res.All {
+		if c.Outcome.Payload != nil {
+			t.Fatalf("evaluation %+v keeps its payload in All", c.Key)
+		}
+	}
+	kept := append(append([]Candidate(nil), res.Front...), res.Nearest...)
+	for _, fb := range res.BestOf {
+		if fb.OK {
+			kept = append(kept, fb.Candidate)
+		}
+	}
+	if len(res.Front) == 0 || len(kept) == len(res.Front) {
+		t.Fatalf("front %d, kept %d: the test needs both feasible and other candidates", len(res.Front), len(kept))
+	}
+	for _, c := range kept {
+		if _, ok := c.Outcome.Payload.(*StageOutcome); !ok {
+			t.Errorf("archived candidate %+v lost its payload", c.Key)
+		}
+	}
+}

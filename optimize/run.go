@@ -109,7 +109,8 @@ type Candidate struct {
 
 // Result is what a search found.
 type Result struct {
-	// All holds every evaluation, in Key order.
+	// All holds every evaluation, in Key order, without its Payload
+	// (Front, Nearest and BestOf keep theirs).
 	All []Candidate
 	// Front is the non-dominated set of the feasible candidates, sorted
 	// by Score.
@@ -349,8 +350,12 @@ func (r *runner) evaluate(key Key, p Point) Outcome {
 	<-r.sem
 	r.mu.Lock()
 	c := Candidate{Key: key, Point: p.Clone(), Outcome: o}
-	r.all = append(r.all, c)
 	r.arch.add(c)
+	// The record of every evaluation keeps no payload: only the
+	// archive's members need theirs, and a payload (a stage's metrics
+	// and violations) is most of an evaluation's memory.
+	c.Outcome.Payload = nil
+	r.all = append(r.all, c)
 	if o.Feasible() {
 		r.feasible++
 		r.best = math.Min(r.best, Score(o.Objectives, r.scales, nil))
