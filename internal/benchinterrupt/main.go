@@ -57,6 +57,10 @@ func bench(bin, spec string, evaluations int, at string) error {
 			if err != nil {
 				return err
 			}
+			if latency == 0 {
+				fmt.Printf("%v at %3.0f %% (%5.1f s): the run had ended, exit %d\n", sig, 100*frac, delay.Seconds(), code)
+				continue
+			}
 			fmt.Printf("%v at %3.0f %% (%5.1f s): exit %d, %4.0f ms from the signal to exit\n",
 				sig, 100*frac, delay.Seconds(), code, latency.Seconds()*1000)
 		}
