@@ -12,6 +12,7 @@ import (
 
 	"pairsmith/objectives"
 	"pairsmith/optimize"
+	"pairsmith/sim/device"
 )
 
 // pageRow is one row of a two-column table on the report page.
@@ -339,7 +340,8 @@ func RunPage(res *optimize.StageResult, opt RunOptions, paretoSVG, curvesSVG []b
 		{ParetoPlotFile, "the Pareto front plot"},
 		{CurvesPlotFile, "the gm curves plot"},
 		{CandidatesDir + "/<id>.yaml", "design files: pairsmith eval reads them as they are"},
-		{CandidatesDir + "/<id>.cir", "testbench decks with the common-mode sweep: ngspice -b runs them as they are"},
+		{CandidatesDir + "/<id>.cir", deckText(res.Spec.Process)},
+		{ProcessFile, "the run's copy of its process, which the design files refer to"},
 	}
 	var b bytes.Buffer
 	if err := runPageTemplate.Execute(&b, d); err != nil {
@@ -486,3 +488,15 @@ Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}
 
 // runID is the run's id for the page header, "" when it has none.
 func runID(opt RunOptions) string { return opt.RunID }
+
+// deckText says what the run's decks are and whether they run as they
+// are: a level-1 process's decks carry its own cards, and ngspice
+// reproduces pairsmith's numbers; an EKV process's carry the nearest
+// level-1 cards, so they run but their numbers differ.
+func deckText(p *device.Process) string {
+	if DeckModel(p) == DeckLevel1 {
+		return "testbench decks with the common-mode sweep, printing gm: ngspice -b runs them as they are, with the process's own level-1 cards, and reproduces these numbers"
+	}
+	return "testbench decks with the common-mode sweep, printing gm: ngspice cannot simulate this " + KindName(p.Kind) +
+		" process, so they carry its nearest level-1 equivalent (their first lines say so); ngspice -b runs them as they are, but their numbers differ from these, most in weak and moderate inversion"
+}

@@ -290,3 +290,23 @@ func TestCurvesFigureFront(t *testing.T) {
 		t.Errorf("subtitle %q lacks %q", fig.Subtitle, want)
 	}
 }
+
+// TestRunPageSaysWhichDecksRun: the page says whether the run's decks
+// carry the process's own cards (level 1: ngspice reproduces the numbers)
+// or an EKV process's nearest level-1 equivalent (they run, with other
+// numbers), as summary.json's netlist_model does.
+func TestRunPageSaysWhichDecksRun(t *testing.T) {
+	for _, tc := range []struct{ spec, want, not string }{
+		{"sensor-l1.yaml", "with the process's own level-1 cards", "level-1 equivalent"},
+		{"strain-gauge.yaml", "nearest level-1 equivalent", "own level-1 cards"},
+	} {
+		res := searchSpec(t, tc.spec, 200)
+		page, err := RunPage(res, RunOptions{}, nil, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(string(page), tc.want) || strings.Contains(string(page), tc.not) {
+			t.Errorf("%s: the page does not say %q (or says %q) of its decks", tc.spec, tc.want, tc.not)
+		}
+	}
+}
