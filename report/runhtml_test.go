@@ -297,7 +297,7 @@ func TestCurvesFigureFront(t *testing.T) {
 // numbers), as summary.json's netlist_model does.
 func TestRunPageSaysWhichDecksRun(t *testing.T) {
 	for _, tc := range []struct{ spec, want, not string }{
-		{"sensor-l1.yaml", "with the process's own level-1 cards", "level-1 equivalent"},
+		{"sensor-l1.yaml", "own level-1 cards, and reproduces these numbers", "level-1 equivalent"},
 		{"strain-gauge.yaml", "nearest level-1 equivalent", "own level-1 cards"},
 	} {
 		res := searchSpec(t, tc.spec, 200)
