@@ -306,3 +306,38 @@ func TestCheckPhysicalTolerance(t *testing.T) {
 		}
 	}
 }
+
+// TestTemperatureCardsHold: a temperature at which a card has no valid
+// instance is bad input. Under the SPICE level-1 law PHI(T) ≈ (T/Tnom)·
+// (PHI − Eg) + Eg (ngspice's mos1temp.c; Eg ≈ 1.12 V) falls below zero
+// when a lightly doped card (phi 0.4 V) is heated far above its tnom: the
+// channel turns intrinsic. The error is at the temperature when the file
+// writes one, else at the process's tnom.
+func TestTemperatureCardsHold(t *testing.T) {
+	proc := "model: level1\ntnom: 200K\nnmos: {vto: 0.45V, kp: 280uA/V2, phi: 0.4V}\npmos: {vto: -0.45V, kp: 70uA/V2}\n"
+	tests := []struct {
+		name, text  string
+		file, field string
+		line        int
+		given       string
+	}{
+		{"design at 226C", "topology: n-pair\nprocess: proc.yaml\nsupply: 1.8V\ntemperature: 226C\n", "", "temperature", 4, "226C"},
+		{"design at the default 27C", "topology: n-pair\nprocess: proc.yaml\nsupply: 1.8V\n", "proc.yaml", "tnom", 2, "200K"},
+	}
+	for _, tt := range tests {
+		dir := t.TempDir()
+		err := readWithProcess(proc, readDesign)("d.yaml", []byte(tt.text), dir)
+		file := "d.yaml"
+		if tt.file != "" {
+			file = filepath.Join(dir, tt.file)
+		}
+		want := fmt.Sprintf("%s:%d: %s: got %q, want ", file, tt.line, tt.field, tt.given)
+		if err == nil || !strings.HasPrefix(err.Error(), want) || !strings.Contains(err.Error(), "PHI at") {
+			t.Errorf("%s: error %v, want it to start %q and name PHI", tt.name, err, want)
+		}
+	}
+	// At its own tnom the card holds.
+	if err := readWithProcess(proc, readDesign)("d.yaml", []byte("topology: n-pair\nprocess: proc.yaml\nsupply: 1.8V\ntemperature: 200K\n"), t.TempDir()); err != nil {
+		t.Errorf("at tnom: %v", err)
+	}
+}

@@ -112,6 +112,9 @@ func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
 	m.GMMin, m.GMMax, m.GMOverIDMin = math.Inf(1), math.Inf(-1), math.Inf(1)
 	for i, g := range res.GM {
+		// A gm below zero here lies within the solver's tolerance of it
+		// (CheckPhysical refuses a sweep with one beyond): it is zero.
+		g = math.Max(g, 0)
 		m.GMMin = math.Min(m.GMMin, g)
 		m.GMMax = math.Max(m.GMMax, g)
 		if tot := in[i] + ip[i]; tot > 0 {

@@ -59,6 +59,9 @@ func readConditions(m *units.Map, baseDir string) (conditions, error) {
 	if c.TempK < 200 || c.TempK > 500 {
 		return c, m.Errorf("temperature", "a temperature from -73C to 226C")
 	}
+	if err := checkCardsAt(m, c); err != nil {
+		return c, err
+	}
 	return c, nil
 }
 
@@ -106,4 +109,23 @@ func readRange(rm *units.Map, supply float64) (low, high, step float64, err erro
 		err = rm.Errorf("step", "a step giving at most a million points")
 	}
 	return
+}
+
+// checkCardsAt refuses a temperature at which a card of the process has
+// no valid instance (the SPICE level-1 law can drive PHI below zero when
+// the temperature is far from a low tnom): at the temperature field when
+// it is written, else at the process's tnom.
+func checkCardsAt(m *units.Map, c conditions) error {
+	for _, t := range []device.Type{device.NMOS, device.PMOS} {
+		g := device.Geometry{W: 1e-6, L: 1e-6 + 2*c.Process.LateralDiffusion(t)}
+		if _, err := c.Process.Card(t).Instance(g, c.TempK); err != nil {
+			want := fmt.Sprintf("a temperature at which the process's %s card holds", t)
+			if m.Has("temperature") {
+				return m.ErrorAt("temperature", m.Text("temperature"), want, err)
+			}
+			return c.Process.ErrorAt("tnom", fmt.Sprintf("a tnom from which the %s card holds at %s", t,
+				units.Format(c.TempK, units.Temperature)), err)
+		}
+	}
+	return nil
 }

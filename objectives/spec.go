@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"os"
 	"path/filepath"
 	"runtime"
 	"slices"
@@ -126,11 +125,12 @@ type Spec struct {
 	Search     Search
 }
 
-// LoadSpec reads a spec sheet; see ReadSpec.
+// LoadSpec reads a spec sheet of at most units.MaxFileSize bytes; see
+// ReadSpec.
 func LoadSpec(path string) (*Spec, error) {
-	data, err := os.ReadFile(path)
+	data, err := units.ReadInput(path, "spec")
 	if err != nil {
-		return nil, fmt.Errorf("spec: %w", err)
+		return nil, err
 	}
 	return ReadSpec(path, data, filepath.Dir(path))
 }

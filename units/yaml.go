@@ -8,6 +8,7 @@ import (
 	"os"
 	"strconv"
 	"strings"
+	"unicode/utf8"
 
 	"gopkg.in/yaml.v3"
 )
@@ -79,7 +80,8 @@ func (e *syntaxError) Error() string { return "YAML syntax error: " + e.msg }
 func (e *syntaxError) Unwrap() error { return e.err }
 
 // fromYAMLError turns a yaml.v3 parse error into an *Error with its line.
-func fromYAMLError(file string, err error) *Error {
+// yaml.v3 leaves the line out of some errors; see problemLine.
+func fromYAMLError(file string, data []byte, err error) *Error {
 	msg := strings.TrimPrefix(err.Error(), "yaml: ")
 	line := 0
 	if rest, ok := strings.CutPrefix(msg, "line "); ok {
@@ -89,7 +91,49 @@ func fromYAMLError(file string, err error) *Error {
 			}
 		}
 	}
+	if line == 0 {
+		line = problemLine(data, msg)
+	}
 	return &Error{File: file, Line: line, Err: &syntaxError{msg: msg, err: err}}
+}
+
+// problemLine finds the line of a yaml.v3 error that gives none: the
+// first use of an unknown anchor or the definition of one that contains
+// itself, else the first character YAML does not allow, else line 1
+// (yaml.v3 counts lines from 0 and writes none for a problem on its
+// line 0).
+func problemLine(data []byte, msg string) int {
+	lineOf := func(i int) int { return 1 + bytes.Count(data[:i], []byte("\n")) }
+	for _, f := range []struct{ prefix, mark string }{{"unknown anchor '", "*"}, {"anchor '", "&"}} {
+		if rest, ok := strings.CutPrefix(msg, f.prefix); ok {
+			if name, _, ok := strings.Cut(rest, "'"); ok {
+				if i := bytes.Index(data, []byte(f.mark+name)); i >= 0 {
+					return lineOf(i)
+				}
+			}
+		}
+	}
+	if i := badChar(data); i >= 0 {
+		return lineOf(i)
+	}
+	return 1
+}
+
+// badChar returns the offset of the first byte of data that is not valid
+// UTF-8 or starts a character YAML does not allow in a file (YAML 1.2,
+// §5.1: tab, line feed, carriage return, NEL and the printable
+// characters only), or −1 if there is none.
+func badChar(data []byte) int {
+	for i := 0; i < len(data); {
+		r, size := utf8.DecodeRune(data[i:])
+		ok := r == '\t' || r == '\n' || r == '\r' || r == 0x85 || (r >= 0x20 && r <= 0x7e) ||
+			(r >= 0xa0 && r <= 0xd7ff) || (r >= 0xe000 && r <= 0xfffd) || r >= 0x10000
+		if !ok || (r == utf8.RuneError && size == 1) {
+			return i
+		}
+		i += size
+	}
+	return -1
 }
 
 // Map is one YAML mapping of an input file, read with the line of every
@@ -108,32 +152,88 @@ type Map struct {
 	val  map[string]*yaml.Node
 }
 
-// ReadFile reads a YAML file whose root is a mapping.
-func ReadFile(path string) (*Map, error) {
-	data, err := os.ReadFile(path)
+// Limits of an input file. pairsmith's spec sheets, design files and
+// process files are a few kB and their lists a handful of names (seven
+// families, five trade-off axes), so a file or a list far beyond them is
+// a mistake (a wrong file, a generated list gone astray), refused before
+// it costs time and memory. A 1 MiB YAML file parses in about half a
+// second; the 49 MB list that prompted the limits took 19 s and 1.9 GB
+// before it was rejected.
+const (
+	MaxFileSize  = 1 << 20 // bytes of one input file: 1 MiB
+	MaxListItems = 1000    // items of one YAML list
+)
+
+// ErrTooLarge is the cause of an Error for a file over MaxFileSize or a
+// list over MaxListItems.
+var ErrTooLarge = errors.New("too large")
+
+// tooLarge is the error for a file of size bytes (or more, when atLeast)
+// over MaxFileSize.
+func tooLarge(file string, size int64, atLeast bool) *Error {
+	more := ""
+	if atLeast {
+		more = "more than "
+	}
+	return &Error{File: file, Want: "an input file of at most 1 MiB",
+		Err: fmt.Errorf("%w: %s%d bytes", ErrTooLarge, more, size)}
+}
+
+// ReadInput reads a whole input file of at most MaxFileSize bytes. A
+// larger file is refused with an *Error naming it (cause ErrTooLarge),
+// after a stat when the file is a regular one and after reading at most
+// MaxFileSize+1 bytes otherwise (a device or a pipe). Other failures are
+// returned as "what: cause".
+func ReadInput(path, what string) ([]byte, error) {
+	f, err := os.Open(path)
 	if err != nil {
-		return nil, fmt.Errorf("read YAML: %w", err)
+		return nil, fmt.Errorf("%s: %w", what, err)
+	}
+	defer f.Close()
+	if st, err := f.Stat(); err == nil && st.Mode().IsRegular() && st.Size() > MaxFileSize {
+		return nil, tooLarge(path, st.Size(), false)
+	}
+	data, err := io.ReadAll(io.LimitReader(f, MaxFileSize+1))
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", what, err)
+	}
+	if len(data) > MaxFileSize {
+		return nil, tooLarge(path, MaxFileSize, true)
+	}
+	return data, nil
+}
+
+// ReadFile reads a YAML file whose root is a mapping, of at most
+// MaxFileSize bytes (see ReadInput).
+func ReadFile(path string) (*Map, error) {
+	data, err := ReadInput(path, "read YAML")
+	if err != nil {
+		return nil, err
 	}
 	return ReadBytes(path, data)
 }
 
 // ReadBytes reads YAML text whose root is a mapping; file names it in
 // errors. A syntax error, a root that is not a mapping, more than one YAML
-// document and a field written twice in any mapping are errors.
+// document, a field written twice in any mapping, text over MaxFileSize
+// bytes and a list of more than MaxListItems items are errors.
 func ReadBytes(file string, data []byte) (*Map, error) {
+	if len(data) > MaxFileSize {
+		return nil, tooLarge(file, int64(len(data)), false)
+	}
 	dec := yaml.NewDecoder(bytes.NewReader(data))
 	var doc yaml.Node
 	if err := dec.Decode(&doc); err != nil {
 		if errors.Is(err, io.EOF) {
 			return nil, &Error{File: file, Line: 1, Want: "a YAML mapping of fields", Err: errors.New("the file is empty")}
 		}
-		return nil, fromYAMLError(file, err)
+		return nil, fromYAMLError(file, data, err)
 	}
 	var next yaml.Node
 	switch err := dec.Decode(&next); {
 	case errors.Is(err, io.EOF):
 	case err != nil:
-		return nil, fromYAMLError(file, err)
+		return nil, fromYAMLError(file, data, err)
 	default:
 		return nil, &Error{File: file, Line: next.Line, Err: errors.New("a second YAML document; want one per file")}
 	}
@@ -168,25 +268,34 @@ func join(path, key string) string {
 }
 
 // checkDuplicates walks the tree (not following aliases) and rejects a
-// field written twice in one mapping.
+// field written twice in one mapping and a list of more than MaxListItems
+// items, at the line of its field (of the list itself in a list).
 func checkDuplicates(file, path string, n *yaml.Node) error {
+	return checkNode(file, path, n.Line, n)
+}
+
+func checkNode(file, path string, line int, n *yaml.Node) error {
 	switch n.Kind {
 	case yaml.MappingNode:
 		first := map[string]int{}
 		for i := 0; i+1 < len(n.Content); i += 2 {
 			k := n.Content[i]
-			if line, dup := first[k.Value]; dup {
+			if at, dup := first[k.Value]; dup {
 				return &Error{File: file, Line: k.Line, Field: join(path, k.Value),
-					Err: fmt.Errorf("%w (first at line %d)", ErrDuplicate, line)}
+					Err: fmt.Errorf("%w (first at line %d)", ErrDuplicate, at)}
 			}
 			first[k.Value] = k.Line
-			if err := checkDuplicates(file, join(path, k.Value), n.Content[i+1]); err != nil {
+			if err := checkNode(file, join(path, k.Value), k.Line, n.Content[i+1]); err != nil {
 				return err
 			}
 		}
 	case yaml.SequenceNode:
+		if len(n.Content) > MaxListItems {
+			return &Error{File: file, Line: line, Field: path, Want: fmt.Sprintf("a list of at most %d items", MaxListItems),
+				Err: fmt.Errorf("%w: %d items", ErrTooLarge, len(n.Content))}
+		}
 		for i, c := range n.Content {
-			if err := checkDuplicates(file, fmt.Sprintf("%s[%d]", path, i), c); err != nil {
+			if err := checkNode(file, fmt.Sprintf("%s[%d]", path, i), c.Line, c); err != nil {
 				return err
 			}
 		}

@@ -146,6 +146,9 @@ func designCases() []badCase {
 		{name: "ld longer than L, no length written", code: exitBadInput,
 			edits: []edit{{"proc", "  lambda: 0.06/V\n", "  lambda: 0.06/V\n  ld: 700nm\n"}, {"design", "  ln: 1um\n", ""}},
 			file:  "proc.yaml", line: 16, field: "pmos.ld", say: []string{`got "700nm"`, "lp = 1um", "so below 500nm"}},
+		{name: "temperature at which the card does not hold", code: exitBadInput,
+			edits: []edit{{"proc", "  phi: 0.8V\n  lambda: 0.05", "  phi: 0.4V\n  lambda: 0.05"}, {"design", "temperature: 27C", "temperature: 226C"}},
+			file:  "design.yaml", line: 4, field: "temperature", say: []string{`got "226C"`, "nmos card", "PHI at 499.15 K"}},
 		// The rest of a design file.
 		d("wrong unit", "wn: 20um", "wn: 20uV", 7, "params.wn", `got "20uV"`, "length"),
 		d("unknown parameter", "itail: 20uA", "itial: 20uA", 9, "params.itial", `did you mean "itail"`),

@@ -39,7 +39,7 @@ type fieldPos struct {
 }
 
 // ErrorAt returns an error located at a card value of the process file,
-// field as in "nmos.ld", for a problem a later check finds with it (a
+// field as in "nmos.ld" (or "tnom"), for a problem a later check finds with it (a
 // lateral diffusion longer than half a design's channel): it names the
 // file, the value's line (the card's when the value is left out) and
 // text, and what is wanted.
@@ -94,11 +94,12 @@ const (
 	defaultBEX = -1.5
 )
 
-// LoadProcess reads a process file; see ReadProcess for its format.
+// LoadProcess reads a process file of at most units.MaxFileSize bytes;
+// see ReadProcess for its format.
 func LoadProcess(path string) (*Process, error) {
-	data, err := os.ReadFile(path)
+	data, err := units.ReadInput(path, "process file")
 	if err != nil {
-		return nil, fmt.Errorf("process file: %w", err)
+		return nil, err
 	}
 	return ReadProcess(path, data)
 }
@@ -161,6 +162,7 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 	if r := TnomRange(); m.Has("tnom") && !r.Contains(p.TnomK) {
 		return nil, m.ErrorAt("tnom", m.Text("tnom"), r.Want(), errors.New(r.Why))
 	}
+	p.pos["tnom"] = fieldPos{line: m.Line("tnom"), text: m.Text("tnom")}
 	if p.N, err = readCard(m, "nmos", NMOS, p.Kind, p.TnomK, p.pos); err != nil {
 		return nil, err
 	}
