@@ -16,6 +16,8 @@ import (
 	"strings"
 	"testing"
 	"time"
+
+	"pairsmith/internal/external"
 )
 
 // InstallHint says how to get chromium on a Debian or Ubuntu machine.
@@ -43,16 +45,7 @@ func Path() (string, error) {
 // otherwise skips the test with a message saying how to install it.
 func Require(t testing.TB) string {
 	t.Helper()
-	p, err := Path()
-	if err == nil {
-		return p
-	}
-	if _, ci := os.LookupEnv("CI"); ci {
-		t.Fatalf("chromium is required in CI: %v (install it with %q)", err, InstallHint)
-		return ""
-	}
-	t.Skipf("chromium is not installed (%v); install it with %q to run this test", err, InstallHint)
-	return ""
+	return external.Require(t, "chromium", Path, InstallHint)
 }
 
 // Window is the size of the browser window in CSS pixels. Pages are laid

@@ -20,6 +20,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"pairsmith/internal/external"
 )
 
 // InstallHint says how to get ngspice on a Debian or Ubuntu machine.
@@ -54,16 +56,7 @@ func Path() (string, error) {
 // the test with a message saying how to install ngspice.
 func Require(t testing.TB) string {
 	t.Helper()
-	p, err := Path()
-	if err == nil {
-		return p
-	}
-	if _, ci := os.LookupEnv("CI"); ci {
-		t.Fatalf("ngspice is required in CI: %v (install it with %q)", err, InstallHint)
-		return ""
-	}
-	t.Skipf("ngspice is not installed (%v); install it with %q to run this test", err, InstallHint)
-	return ""
+	return external.Require(t, "ngspice", Path, InstallHint)
 }
 
 // Run simulates deck with `ngspice -b` in a temporary directory and returns
