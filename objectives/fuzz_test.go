@@ -222,7 +222,8 @@ func fuzzDesign(family, process uint8, supply, temp uint16, params []byte) *obje
 
 // FuzzEvaluate evaluates random in-bounds designs (see fuzzDesign). Each
 // either fails clearly — a point without a DC solution
-// (*sim.ConvergenceError), or another error naming the design's family —
+// (*sim.ConvergenceError) or a sweep that is not a physical operating
+// point (*objectives.UnphysicalError), either naming the design's family —
 // or gives physical metrics: gm_min ≥ 0 and gm_max ≥ gm_min, both finite;
 // power and area above zero and finite; a ripple ≥ 0 that is infinite only
 // where gm falls below DeadGM·gm_max (Ripple's definition); a switchover
@@ -234,9 +235,12 @@ func FuzzEvaluate(f *testing.F) {
 		d := fuzzDesign(family, process, supply, temp, params)
 		ev, err := objectives.Evaluate(d)
 		if err != nil {
-			var ce *sim.ConvergenceError
-			if errors.As(err, &ce) {
-				return
+			var (
+				ce *sim.ConvergenceError
+				ue *objectives.UnphysicalError
+			)
+			if !errors.As(err, &ce) && !errors.As(err, &ue) {
+				t.Fatalf("%s: error %q (%T) is neither a point without a DC solution nor an unphysical sweep", d.Format(), err, err)
 			}
 			if msg := err.Error(); !strings.Contains(msg, d.Topology) {
 				t.Fatalf("%s: error %q does not name the design", d.Format(), msg)

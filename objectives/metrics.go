@@ -153,7 +153,10 @@ func Ripple(gmMin, gmMax float64) float64 {
 // ∫ vcm · d share / ∫ d share with share = i_n / (i_n + i_p) — and the
 // transition width, from the lowest vcm where the share reaches 10 % to
 // the highest where it is still below 90 %, both interpolated linearly
-// between samples. Either is NaN when the share does not cover the
+// between samples. A share that moves both ways can put that ratio
+// outside the sweep (a net change small beside the moves); the switchover
+// is then the centre of all the moves, ∫ vcm · |d share| / ∫ |d share|,
+// which is inside. Either is NaN when the share does not cover the
 // span it needs: no net change of share for the switchover, a share that
 // never reaches 10 % or 90 % for the width.
 func Handover(vcm, in, ip []float64) (switchover, width float64) {
@@ -163,7 +166,8 @@ func Handover(vcm, in, ip []float64) (switchover, width float64) {
 	// crossings.
 	var (
 		first, prevX, prevS float64
-		num                 float64
+		num, absNum, absSum float64 // Σ vcm·Δshare, Σ vcm·|Δshare|, Σ |Δshare|
+		firstX              float64
 		lo                  = math.NaN()
 		seen                int
 		crossHi             = math.NaN() // upward 90 % crossing after the last point below it
@@ -175,12 +179,15 @@ func Handover(vcm, in, ip []float64) (switchover, width float64) {
 		}
 		x, sh := vcm[i], in[i]/tot
 		if seen == 0 {
-			first = sh
+			first, firstX = sh, x
 			if sh >= 0.1 {
 				lo = x
 			}
 		} else {
-			num += 0.5 * (prevX + x) * (sh - prevS)
+			mid, ds := 0.5*(prevX+x), sh-prevS
+			num += mid * ds
+			absNum += mid * math.Abs(ds)
+			absSum += math.Abs(ds)
 			if math.IsNaN(lo) && sh >= 0.1 {
 				lo = cross(prevX, prevS, x, sh, 0.1)
 			}
@@ -199,6 +206,9 @@ func Handover(vcm, in, ip []float64) (switchover, width float64) {
 	}
 	if total := prevS - first; math.Abs(total) > 1e-3 {
 		switchover = num / total
+		if !(switchover >= firstX && switchover <= prevX) {
+			switchover = absNum / absSum
+		}
 	}
 	// The highest vcm still below 90 % is where the share last crosses
 	// 90 % upwards (crossHi); a share that ends below 90 % has none.
