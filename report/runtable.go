@@ -106,11 +106,15 @@ func FrontSize(res *optimize.StageResult) (reported, whole int) {
 }
 
 // FrontText says how much of the Pareto front a result reports: "12 on
-// the Pareto front", or, when the front was thinned to its most spread
+// the Pareto front", "none on the Pareto front (no candidate meets the
+// spec)", or, when the front was thinned to its most spread
 // members, "200 of 1234 on the Pareto front (the most spread 200
 // reported)".
 func FrontText(res *optimize.StageResult) string {
 	reported, whole := FrontSize(res)
+	if whole == 0 {
+		return "none on the Pareto front (no candidate meets the spec)"
+	}
 	if whole > reported {
 		return fmt.Sprintf("%d of %d on the Pareto front (the most spread %d reported)", reported, whole, reported)
 	}
