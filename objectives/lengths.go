@@ -3,6 +3,7 @@ package objectives
 import (
 	"errors"
 	"fmt"
+	"maps"
 	"math"
 
 	"pairsmith/sim/device"
@@ -69,10 +70,7 @@ func lengthUses(fam topologies.Family, v topologies.Values, cond topologies.Cond
 		if p.Unit != units.Metre {
 			continue
 		}
-		moved := make(topologies.Values, len(v))
-		for k, x := range v {
-			moved[k] = x
-		}
+		moved := maps.Clone(v)
 		moved[p.Name] = 1.25 * v[p.Name]
 		st, err := fam.Build(moved, cond)
 		if err != nil {

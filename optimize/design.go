@@ -57,6 +57,11 @@ type StageResult struct {
 	// Truncated says the search was stopped while the reported
 	// candidates were re-evaluated: those not done yet are left out.
 	Truncated bool
+	// Unreported says why candidates worth reporting were left out: their
+	// re-evaluation at the spec's step failed (a point without a DC
+	// solution, or an unphysical one between the coarse sweep's samples),
+	// in report order.
+	Unreported []error
 }
 
 // SearchOptions tune Search beyond the spec, whose search settings
@@ -149,6 +154,7 @@ func gather(ctx context.Context, prob *StageProblem, res *Result, set Settings) 
 		c      Candidate
 		pareto bool
 		sc     *StageCandidate
+		err    error // why its re-evaluation failed
 	}
 	var items []*item
 	byKey := map[Key]*item{}
@@ -190,12 +196,11 @@ func gather(ctx context.Context, prob *StageProblem, res *Result, set Settings) 
 		workers = runtime.GOMAXPROCS(0)
 	}
 	var (
-		wg     sync.WaitGroup
-		mu     sync.Mutex
-		done   int
-		errOut error
-		sem    = make(chan struct{}, workers)
-		start  = map[*item]bool{}
+		wg    sync.WaitGroup
+		mu    sync.Mutex
+		done  int
+		sem   = make(chan struct{}, workers)
+		start = map[*item]bool{}
 	)
 	for _, it := range order {
 		if start[it] {
@@ -217,9 +222,12 @@ func gather(ctx context.Context, prob *StageProblem, res *Result, set Settings) 
 			mu.Lock()
 			defer mu.Unlock()
 			if err != nil {
-				if errOut == nil {
-					errOut = fmt.Errorf("re-evaluate %s: %w", d.Topology, err)
-				}
+				// Left out, not fatal: a candidate judged on the coarse
+				// sweep can fail the fine one (no DC solution, or an
+				// unphysical point between the coarse samples), and one
+				// bad candidate must not lose the whole run.
+				it.err = fmt.Errorf("%s: %w", d.Topology, err)
+				done++
 				return
 			}
 			vs := prob.Checks(ev.Metrics, prob.Spec.Targets)
@@ -237,10 +245,10 @@ func gather(ctx context.Context, prob *StageProblem, res *Result, set Settings) 
 		}(it)
 	}
 	wg.Wait()
-	if errOut != nil {
-		return nil, errOut
-	}
 	for _, it := range items {
+		if it.err != nil {
+			out.Unreported = append(out.Unreported, it.err)
+		}
 		if it.sc != nil {
 			it.sc.Pareto = it.pareto
 			out.Candidates = append(out.Candidates, it.sc)

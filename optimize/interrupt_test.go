@@ -2,6 +2,7 @@ package optimize
 
 import (
 	"context"
+	"errors"
 	"path/filepath"
 	"sync"
 	"testing"
@@ -86,5 +87,43 @@ func TestPayloadsKeptByTheArchive(t *testing.T) {
 		if _, ok := c.Outcome.Payload.(*StageOutcome); !ok {
 			t.Errorf("archived candidate %+v lost its payload", c.Key)
 		}
+	}
+}
+
+// TestGatherLeavesOutFailedCandidates: a candidate worth reporting whose
+// re-evaluation fails — here a current switch whose PMOS pair runs
+// backwards (an objectives.UnphysicalError, the tail of 2 µA at 86 °C of
+// objectives' own unphysical case) — is left out with its reason, and the
+// rest of the result stands, instead of failing the whole run.
+func TestGatherLeavesOutFailedCandidates(t *testing.T) {
+	spec, err := objectives.ReadSpec("hot.yaml", []byte("process: demo18\nsupply: 1.8V\ntemperature: 86C\ntopologies: [current-switch]\n"), t.TempDir())
+	if err != nil {
+		t.Fatal(err)
+	}
+	prob, err := NewStageProblem(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	good, _ := prob.Start(0)
+	v := prob.Values(0, good)
+	v["vref"], v["vhead"], v["itail"] = 0, 0.6, 2e-6
+	bad := prob.Normalize(0, v)
+	if _, err := objectives.Evaluate(prob.Design(Point{X: bad})); !errors.As(err, new(*objectives.UnphysicalError)) {
+		t.Fatalf("the bad point evaluates with %v, want an UnphysicalError", err)
+	}
+	res := &Result{
+		Front:   []Candidate{{Key: Key{Slot: 0}, Point: Point{X: good}}},
+		Nearest: []Candidate{{Key: Key{Slot: 1}, Point: Point{X: bad}}},
+		BestOf:  []FamilyBest{{Candidate: Candidate{Key: Key{Slot: 0}, Point: Point{X: good}}, OK: true}},
+	}
+	out, err := gather(context.Background(), prob, res, Settings{})
+	if err != nil {
+		t.Fatalf("gather: %v, want the bad candidate left out", err)
+	}
+	if len(out.Candidates) != 1 || out.Candidates[0].Key != (Key{Slot: 0}) {
+		t.Errorf("reported %d candidates, want the good one alone", len(out.Candidates))
+	}
+	if len(out.Unreported) != 1 || !errors.As(out.Unreported[0], new(*objectives.UnphysicalError)) {
+		t.Errorf("unreported %v, want the bad candidate's UnphysicalError", out.Unreported)
 	}
 }

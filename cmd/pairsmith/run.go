@@ -165,6 +165,9 @@ func runSearch(cmd *cobra.Command, f *runFlags, specPath string, stdout, stderr 
 	if err != nil {
 		return fmt.Errorf("run %s: %w", specPath, err)
 	}
+	for _, err := range res.Unreported {
+		fmt.Fprintf(stderr, "pairsmith run: a candidate is left out of the results: %v\n", err)
+	}
 	interrupted := ctx.Err() != nil && (res.Evaluations < spec.Search.Evaluations || res.Truncated)
 	if interrupted {
 		fmt.Fprintf(stderr, "pairsmith run: interrupted after %d evaluations; writing what was found\n", res.Evaluations)
