@@ -186,6 +186,29 @@ func mostSpread(objs [][]float64, front []int, n int, tieLess func(a, b int) boo
 	return out
 }
 
+// ThinFront keeps at most n members of a front, those of largest
+// crowding distance (K. Deb, A. Pratap, S. Agarwal, T. Meyarivan, "A fast
+// and elitist multiobjective genetic algorithm: NSGA-II", IEEE Trans.
+// Evol. Comput. 6(2), 2002), ties to the earlier member, in their original
+// order; a front of at most n members is returned as it is.
+func ThinFront(front []Candidate, n int) []Candidate {
+	if len(front) <= n {
+		return front
+	}
+	objs := make([][]float64, len(front))
+	idx := make([]int, len(front))
+	for i, c := range front {
+		objs[i], idx[i] = c.Outcome.Objectives, i
+	}
+	keep := mostSpread(objs, idx, n, func(a, b int) bool { return a < b })
+	sort.Ints(keep)
+	out := make([]Candidate, 0, n)
+	for _, i := range keep {
+		out = append(out, front[i])
+	}
+	return out
+}
+
 // translatingMigrator moves the best candidate of each island to the next
 // (a ring), translated into the receiving family: the parameters the two
 // families share (by name) take the migrant's values, the others those of

@@ -33,6 +33,11 @@ const (
 	weightFloor = 0.05
 	// simplexSize is the initial simplex's edge in normalised units.
 	simplexSize = 0.08
+	// contributionFront is the most members of the front whose
+	// hypervolume contributions rank the starts (a larger front is
+	// thinned first, ThinFront): 200 members of three objectives take
+	// milliseconds, BenchmarkContributions.
+	contributionFront = 200
 )
 
 // start is a refinement start: a point, the weights of its
@@ -154,9 +159,9 @@ func (r *runner) refineStarts(budget int) []start {
 		// The front members whose loss would cost the front the most
 		// hypervolume, each weighted at its own trade-off. The
 		// contributions cost O(F²) hypervolumes of F members, so a front
-		// larger than the reported one is thinned to its most spread
-		// members first, as the report thins it.
-		front := thinFront(res.Front, MaxReportedFront)
+		// larger than contributionFront is thinned to its most spread
+		// members first.
+		front := ThinFront(res.Front, contributionFront)
 		for _, i := range byContribution(front, r.scales)[:min(room, len(front))] {
 			c := front[i]
 			w := make([]float64, len(c.Outcome.Objectives))

@@ -17,6 +17,7 @@ import (
 	"pairsmith/objectives"
 	"pairsmith/optimize"
 	"pairsmith/sim/device"
+	"pairsmith/sizing"
 	"pairsmith/topologies"
 )
 
@@ -64,7 +65,7 @@ type RunOptions struct {
 }
 
 // stopped says why the search ended early, "" when it spent its budget.
-func (o RunOptions) stopped(res *optimize.StageResult) string {
+func (o RunOptions) stopped(res *sizing.Result) string {
 	switch {
 	case o.Interrupted:
 		return StoppedInterrupt
@@ -81,7 +82,7 @@ func (o RunOptions) stopped(res *optimize.StageResult) string {
 // offline. Files of those names are overwritten; other files in dir are
 // left alone. summary.json is the same, byte for byte, for the same
 // result, except for "seconds" and "evaluations_per_second".
-func WriteRun(dir string, res *optimize.StageResult, opt RunOptions) error {
+func WriteRun(dir string, res *sizing.Result, opt RunOptions) error {
 	if res == nil || res.Spec == nil {
 		return fmt.Errorf("write run %s: no result", dir)
 	}
@@ -134,7 +135,7 @@ func WriteRun(dir string, res *optimize.StageResult, opt RunOptions) error {
 	if err := write(ParetoCSVFile, csvData); err != nil {
 		return err
 	}
-	plotSVG := func(name string, draw func(*optimize.StageResult) (*Figure, error)) ([]byte, error) {
+	plotSVG := func(name string, draw func(*sizing.Result) (*Figure, error)) ([]byte, error) {
 		f, err := draw(res)
 		if err == nil {
 			var svg []byte
@@ -209,7 +210,7 @@ func processCopy(spec *objectives.Spec) ([]byte, string, error) {
 // whether it meets the spec (and what it misses), and the caution, then
 // Design.Format with the process referred to as processRef, which
 // `pairsmith eval` reads back into the same design bit for bit.
-func CandidateFile(spec *objectives.Spec, c *optimize.StageCandidate, processRef, runID string) []byte {
+func CandidateFile(spec *objectives.Spec, c *sizing.Candidate, processRef, runID string) []byte {
 	var b bytes.Buffer
 	run := "`pairsmith run`"
 	if runID != "" {
@@ -294,7 +295,7 @@ type summaryJSON struct {
 
 // Rate returns the evaluations per second of a result, 0 when no time
 // was measured.
-func Rate(res *optimize.StageResult) float64 {
+func Rate(res *sizing.Result) float64 {
 	if s := res.Elapsed.Seconds(); s > 0 {
 		return float64(res.Evaluations) / s
 	}
@@ -325,7 +326,7 @@ func Rate(res *optimize.StageResult) float64 {
 // "time" or "interrupt". Every value is in SI units; NaN and infinities
 // are null. "seconds" and "evaluations_per_second" are the only values
 // that depend on the machine's speed.
-func Summary(res *optimize.StageResult, opt RunOptions) ([]byte, error) {
+func Summary(res *sizing.Result, opt RunOptions) ([]byte, error) {
 	spec := res.Spec
 	s := summaryJSON{
 		RunID: opt.RunID, Spec: spec, Strategy: opt.Strategy.String(), Feasible: res.Best != nil,
@@ -414,7 +415,7 @@ func csvNum(v float64) string {
 // (MetricColumns), the values on the spec's trade-off axes as the search
 // minimises them, and the score. Values are exact; NaN and infinities are
 // empty cells.
-func ParetoCSV(res *optimize.StageResult) ([]byte, error) {
+func ParetoCSV(res *sizing.Result) ([]byte, error) {
 	var b bytes.Buffer
 	w := csv.NewWriter(&b)
 	head := append([]string{"id", "topology"}, MetricColumns()...)
@@ -485,7 +486,7 @@ func missText(spec *objectives.Spec, v objectives.Violation) string {
 			return fmt.Sprintf("transition_width none (no handover), wanted ≤ %s", q(v.Limit, "V"))
 		}
 		return fmt.Sprintf("transition_width %s > %s", q(v.Value, "V"), q(v.Limit, "V"))
-	case optimize.Level1Validity:
+	case sizing.Level1Validity:
 		if math.IsNaN(v.Value) {
 			return "gm/I_D none (no pair conducts)"
 		}

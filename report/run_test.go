@@ -13,18 +13,18 @@ import (
 	"time"
 
 	"pairsmith/objectives"
-	"pairsmith/optimize"
+	"pairsmith/sizing"
 )
 
 // searchSpec runs a small search of a demo spec sheet.
-func searchSpec(t *testing.T, name string, evaluations int) *optimize.StageResult {
+func searchSpec(t *testing.T, name string, evaluations int) *sizing.Result {
 	t.Helper()
 	spec, err := objectives.LoadSpec(filepath.Join("..", "testdata", "specs", name))
 	if err != nil {
 		t.Fatal(err)
 	}
 	spec.Search.Evaluations = evaluations
-	res, err := optimize.Search(context.Background(), spec, optimize.SearchOptions{})
+	res, err := sizing.Search(context.Background(), spec, sizing.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -188,7 +188,7 @@ func TestSummaryInfeasible(t *testing.T) {
 
 // handResult is a result written out by hand (invented numbers): a
 // single pair on the front, without a handover, and a candidate off it.
-func handResult(t *testing.T, pareto []string) *optimize.StageResult {
+func handResult(t *testing.T, pareto []string) *sizing.Result {
 	t.Helper()
 	spec, err := objectives.ReadSpec("hand.yaml", []byte("process: demo18\nsupply: 1.8V\ntargets: {gm_min: 100uS, power_max: 200uW}\n"), ".")
 	if err != nil {
@@ -202,12 +202,12 @@ func handResult(t *testing.T, pareto []string) *optimize.StageResult {
 		Switchover: nan, TransitionWidth: nan, GMOverIDMin: 9}
 	off := objectives.Metrics{GMMin: 9e-5, GMMax: 1.2e-4, GMRipple: 1.0 / 3, Power: 2.5e-4, Area: 6e-10,
 		Switchover: 0.9, TransitionWidth: 0.15, GMOverIDMin: 8}
-	c1 := &optimize.StageCandidate{ID: "c01", Topology: "n-pair", Metrics: single, Feasible: true, Pareto: true,
+	c1 := &sizing.Candidate{ID: "c01", Topology: "n-pair", Metrics: single, Feasible: true, Pareto: true,
 		Violations: spec.Targets.Check(single), Score: 0.75}
-	c2 := &optimize.StageCandidate{ID: "c02", Topology: "current-switch", Metrics: off,
+	c2 := &sizing.Candidate{ID: "c02", Topology: "current-switch", Metrics: off,
 		Violations: spec.Targets.Check(off), Score: 1.3}
-	return &optimize.StageResult{Spec: spec, Candidates: []*optimize.StageCandidate{c1, c2}, Best: c1,
-		Families: []optimize.FamilyRank{{Topology: "n-pair", Rank: 1, Feasible: true, Best: c1},
+	return &sizing.Result{Spec: spec, Candidates: []*sizing.Candidate{c1, c2}, Best: c1,
+		Families: []sizing.FamilyRank{{Topology: "n-pair", Rank: 1, Feasible: true, Best: c1},
 			{Topology: "current-switch", Rank: 2, Best: c2}}}
 }
 

@@ -11,8 +11,8 @@ import (
 	"strings"
 
 	"pairsmith/objectives"
-	"pairsmith/optimize"
 	"pairsmith/sim/device"
+	"pairsmith/sizing"
 )
 
 // pageRow is one row of a two-column table on the report page.
@@ -98,7 +98,7 @@ func inlineSVG(svg []byte) template.HTML {
 
 // candidateStatus says where a candidate stands: "meets the spec, on the
 // front", "meets the spec" or "nearest miss".
-func candidateStatus(c *optimize.StageCandidate) string {
+func candidateStatus(c *sizing.Candidate) string {
 	switch {
 	case c.Feasible && c.Pareto:
 		return "meets the spec, on the front"
@@ -110,7 +110,7 @@ func candidateStatus(c *optimize.StageCandidate) string {
 
 // candidateView writes a candidate for the page, with its parameters
 // and, when it was evaluated, its transistors at the middle of the sweep.
-func candidateView(spec *objectives.Spec, c *optimize.StageCandidate) *pageCandidate {
+func candidateView(spec *objectives.Spec, c *sizing.Candidate) *pageCandidate {
 	m := c.Metrics
 	sw, _ := handoverParts(m.Switchover, false)
 	tw, _ := handoverParts(m.TransitionWidth, false)
@@ -249,7 +249,7 @@ func glossary() []pageTerm {
 		{"gm_id_min", "the smallest 2·gm / (i_n + i_p) over the range, in 1/V: the input transistors' gm/I_D where they are most strongly inverted. Physics bounds gm/I_D by 1/(n·U_T), its weak-inversion value (about 25–30 /V at room temperature); a level-1 model, which has no weak inversion, can exceed that, so on level-1 processes the search requires gm/I_D ≤ 1/(2·U_T) somewhere in the range (strong inversion)."},
 		{"g_m/I_D (devices)", "one transistor's gm over its drain current at the middle of the sweep: about 1/(n·U_T) in weak inversion, falling as the overdrive grows."},
 		{"score", "the augmented weighted Tchebycheff scalarisation (Steuer and Choo, 1983) of the trade-off axes, each divided by its budget or natural scale: the largest such fraction plus 1 % of their sum. Lower is better; below 1 every axis is within its budget. The best candidate is the front member of lowest score."},
-		{"violations", fmt.Sprintf("how far a candidate is from each target it misses, divided by the target (for the switchover, the distance outside the window divided by the tolerance); a candidate is feasible when every violation is zero. The search keeps a guard band of %s from every target, and the nearest misses are those of least total violation.", Percent(optimize.Margin))},
+		{"violations", fmt.Sprintf("how far a candidate is from each target it misses, divided by the target (for the switchover, the distance outside the window divided by the tolerance); a candidate is feasible when every violation is zero. The search keeps a guard band of %s from every target, and the nearest misses are those of least total violation.", Percent(sizing.Margin))},
 		{"Pareto front", "the feasible candidates that no other feasible candidate beats on every trade-off axis at once."},
 	}
 }
@@ -263,7 +263,7 @@ func glossary() []pageTerm {
 // and transistors in a collapsible section, each linked to its design
 // file and deck, and a glossary of the metrics. Everything that comes
 // from the spec is escaped by html/template.
-func RunPage(res *optimize.StageResult, opt RunOptions, paretoSVG, curvesSVG []byte) ([]byte, error) {
+func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG []byte) ([]byte, error) {
 	spec := res.Spec
 	reported, whole := FrontSize(res)
 	d := pageData{
@@ -283,8 +283,8 @@ func RunPage(res *optimize.StageResult, opt RunOptions, paretoSVG, curvesSVG []b
 	if d.Title == "" {
 		d.Title = "pairsmith run"
 	}
-	views := map[*optimize.StageCandidate]*pageCandidate{}
-	view := func(c *optimize.StageCandidate) *pageCandidate {
+	views := map[*sizing.Candidate]*pageCandidate{}
+	view := func(c *sizing.Candidate) *pageCandidate {
 		if v, ok := views[c]; ok {
 			return v
 		}
@@ -434,7 +434,7 @@ Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}
 <figure>{{.CurvesSVG}}</figure>
 
 <h2>Pareto candidates</h2>
-{{if .Front}}<p>{{.FrontText}}.{{if .Thinned}} The front holds more members than a run reports (at most ` + strconv.Itoa(optimize.MaxReportedFront) + `); the reported ones are those most spread along it by crowding distance, its extremes always kept.{{end}}</p>
+{{if .Front}}<p>{{.FrontText}}.{{if .Thinned}} The front holds more members than a run reports (at most ` + strconv.Itoa(sizing.MaxReportedFront) + `); the reported ones are those most spread along it by crowding distance, its extremes always kept.{{end}}</p>
 <div class="scroll"><table>
 <tr><th>id</th><th>topology</th><th>gm_min</th><th>gm_max</th><th>gm_ripple</th><th>power</th><th>area</th><th>switchover</th><th>transition_width</th><th>gm_id_min</th><th>score</th><th>files</th></tr>
 {{range .Front}}<tr><td><a href="#{{.ID}}">{{.ID}}</a></td><td class="nowrap">{{.Topology}}</td><td class="num">{{.GMMin}}</td><td class="num">{{.GMMax}}</td><td class="num">{{.RippleCell}}</td><td class="num">{{.Power}}</td><td class="num">{{.Area}}</td><td class="num">{{.Switchover}}</td><td class="num">{{.Width}}</td><td class="num">{{.GMID}}</td><td class="num">{{.Score}}</td>

@@ -15,7 +15,7 @@ import (
 	"gonum.org/v1/plot/vg/draw"
 
 	"pairsmith/objectives"
-	"pairsmith/optimize"
+	"pairsmith/sizing"
 )
 
 // familyColours are the colours of the families in the run plots, in the
@@ -243,7 +243,7 @@ func budgetLine(pts plotter.XYs) (*plotter.Line, error) {
 // the panels names each family by its filled marker and explains the
 // filled and hollow forms in grey, a colour no family has; the subtitle
 // says how much of the front is shown. Every axis starts at zero.
-func ParetoFigure(res *optimize.StageResult) (*Figure, error) {
+func ParetoFigure(res *sizing.Result) (*Figure, error) {
 	spec := res.Spec
 	xv, yvs := panelAxes(spec)
 	var families []string
@@ -302,7 +302,7 @@ func ParetoFigure(res *optimize.StageResult) (*Figure, error) {
 		}
 		p := newPanel(xLabel, yLabel)
 		p.X.Min, p.X.Max, p.Y.Min, p.Y.Max = 0, xTop, 0, yTop
-		point := func(c *optimize.StageCandidate) (plotter.XY, bool) {
+		point := func(c *sizing.Candidate) (plotter.XY, bool) {
 			x, y := xv.value(c.Metrics)*xScale, yv.value(c.Metrics)*yScale
 			if !finiteVal(x) || !finiteVal(y) {
 				return plotter.XY{}, false
@@ -399,7 +399,7 @@ func sortFamilies(names []string) {
 
 // maxOver returns the largest finite value of an axis over the
 // candidates for which keep is true.
-func maxOver(cs []*optimize.StageCandidate, a axisView, keep func(*optimize.StageCandidate) bool) float64 {
+func maxOver(cs []*sizing.Candidate, a axisView, keep func(*sizing.Candidate) bool) float64 {
 	m := 0.0
 	for _, c := range cs {
 		if v := a.value(c.Metrics); keep(c) && finiteVal(v) {
@@ -415,17 +415,17 @@ func maxOver(cs []*optimize.StageCandidate, a axisView, keep func(*optimize.Stag
 // does not squash the front into a corner. Without a front (or when
 // neither the front nor a budget gives the axis a value) it covers the
 // candidates within ten times the budget (all of them without a budget).
-func axisLimit(cs []*optimize.StageCandidate, a axisView, haveFront bool) float64 {
+func axisLimit(cs []*sizing.Candidate, a axisView, haveFront bool) float64 {
 	budget := nanTo0(a.budget)
 	if !haveFront {
-		near := maxOver(cs, a, func(c *optimize.StageCandidate) bool { return budget == 0 || a.value(c.Metrics) <= 10*budget })
+		near := maxOver(cs, a, func(c *sizing.Candidate) bool { return budget == 0 || a.value(c.Metrics) <= 10*budget })
 		return math.Max(near, budget)
 	}
-	base := math.Max(maxOver(cs, a, func(c *optimize.StageCandidate) bool { return c.Pareto }), budget)
+	base := math.Max(maxOver(cs, a, func(c *sizing.Candidate) bool { return c.Pareto }), budget)
 	if base == 0 { // nothing on the front has a value here, and no budget
-		return maxOver(cs, a, func(*optimize.StageCandidate) bool { return true })
+		return maxOver(cs, a, func(*sizing.Candidate) bool { return true })
 	}
-	others := maxOver(cs, a, func(c *optimize.StageCandidate) bool { return !c.Pareto && a.value(c.Metrics) <= 2*base })
+	others := maxOver(cs, a, func(c *sizing.Candidate) bool { return !c.Pareto && a.value(c.Metrics) <= 2*base })
 	return math.Max(base, others)
 }
 
@@ -442,13 +442,13 @@ func nanTo0(v float64) float64 {
 // dashed. The spec's gm_min target is a dashed red line and the y axis
 // starts at zero. The legend names each family's best and explains the
 // thin lines in grey, a colour no family has.
-func CurvesFigure(res *optimize.StageResult) (*Figure, error) {
+func CurvesFigure(res *sizing.Result) (*Figure, error) {
 	spec := res.Spec
 	type line struct {
-		c      *optimize.StageCandidate
+		c      *sizing.Candidate
 		xs, ys []float64
 	}
-	curveOf := func(c *optimize.StageCandidate) line {
+	curveOf := func(c *sizing.Candidate) line {
 		l := line{c: c}
 		for _, pt := range c.Eval.Curve() {
 			l.xs, l.ys = append(l.xs, pt.VCM), append(l.ys, pt.GM)

@@ -11,7 +11,7 @@ import (
 	"unicode/utf8"
 
 	"pairsmith/objectives"
-	"pairsmith/optimize"
+	"pairsmith/sizing"
 )
 
 // RunTable writes the outcome of a run for a terminal: a line with the
@@ -21,7 +21,7 @@ import (
 // the best candidate (or, when none meets the spec, the targets that bind
 // and the nearest candidate), where the run directory dir is, the
 // evaluations and their rate; and the caution.
-func RunTable(w io.Writer, res *optimize.StageResult, dir string) error {
+func RunTable(w io.Writer, res *sizing.Result, dir string) error {
 	e := &errWriter{w: w}
 	spec := res.Spec
 	e.printf("%s: %d families %s\n", oneLine(spec.Name), len(spec.Topologies), specConditions(spec))
@@ -90,9 +90,9 @@ func RunTable(w io.Writer, res *optimize.StageResult, dir string) error {
 
 // FrontSize returns how many members of the Pareto front a result
 // reports (with design files) and how many the whole front has; the
-// reported ones are at most optimize.MaxReportedFront, the most spread
+// reported ones are at most sizing.MaxReportedFront, the most spread
 // by crowding distance when the front is larger.
-func FrontSize(res *optimize.StageResult) (reported, whole int) {
+func FrontSize(res *sizing.Result) (reported, whole int) {
 	for _, c := range res.Candidates {
 		if c.Pareto {
 			reported++
@@ -110,7 +110,7 @@ func FrontSize(res *optimize.StageResult) (reported, whole int) {
 // spec)", or, when the front was thinned to its most spread
 // members, "200 of 1234 on the Pareto front (the most spread 200
 // reported)".
-func FrontText(res *optimize.StageResult) string {
+func FrontText(res *sizing.Result) string {
 	reported, whole := FrontSize(res)
 	if whole == 0 {
 		return "none on the Pareto front (no candidate meets the spec)"
@@ -137,8 +137,8 @@ func SecondsText(d time.Duration) string {
 }
 
 // nearest returns the reported candidate of least total violation.
-func nearest(res *optimize.StageResult) *optimize.StageCandidate {
-	var near *optimize.StageCandidate
+func nearest(res *sizing.Result) *sizing.Candidate {
+	var near *sizing.Candidate
 	for _, c := range res.Candidates {
 		if near == nil || objectives.TotalViolation(c.Violations) < objectives.TotalViolation(near.Violations) {
 			near = c

@@ -15,6 +15,7 @@ import (
 	"pairsmith/objectives"
 	"pairsmith/optimize"
 	"pairsmith/report"
+	"pairsmith/sizing"
 	"pairsmith/units"
 )
 
@@ -160,7 +161,7 @@ func runSearch(cmd *cobra.Command, f *runFlags, specPath string, stdout, stderr 
 	}
 	pr := newProgress(stderr, deadline)
 	pr.start()
-	res, err := optimize.Search(ctx, spec, optimize.SearchOptions{Strategy: optimize.Hybrid, Progress: pr.update})
+	res, err := sizing.Search(ctx, spec, sizing.Options{Strategy: optimize.Hybrid, Progress: pr.update})
 	pr.finish()
 	if err != nil {
 		return fmt.Errorf("run %s: %w", specPath, err)

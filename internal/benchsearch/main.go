@@ -23,6 +23,7 @@ import (
 
 	"pairsmith/objectives"
 	"pairsmith/optimize"
+	"pairsmith/sizing"
 )
 
 func main() {
@@ -58,7 +59,7 @@ func run(specFiles []string, budgetList string, seeds int, verbose bool) error {
 		if err != nil {
 			return err
 		}
-		prob, err := optimize.NewStageProblem(spec)
+		prob, err := sizing.NewProblem(spec)
 		if err != nil {
 			return err
 		}

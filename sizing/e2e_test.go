@@ -1,4 +1,4 @@
-package optimize_test
+package sizing_test
 
 import (
 	"bytes"
@@ -10,8 +10,8 @@ import (
 
 	"pairsmith/internal/ngspice"
 	"pairsmith/objectives"
-	"pairsmith/optimize"
 	"pairsmith/report"
+	"pairsmith/sizing"
 )
 
 // TestBestMeetsSpecInNgspice runs the search on the level-1 demo spec and
@@ -27,7 +27,7 @@ func TestBestMeetsSpecInNgspice(t *testing.T) {
 		t.Fatal(err)
 	}
 	spec.Search.Evaluations = 3000
-	res, err := optimize.Search(context.Background(), spec, optimize.SearchOptions{})
+	res, err := sizing.Search(context.Background(), spec, sizing.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -84,7 +84,7 @@ func TestImpossibleSpecNamesBindingTargets(t *testing.T) {
 		t.Fatal(err)
 	}
 	spec.Search.Evaluations = 600
-	res, err := optimize.Search(context.Background(), spec, optimize.SearchOptions{})
+	res, err := sizing.Search(context.Background(), spec, sizing.Options{})
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -1,4 +1,4 @@
-package optimize
+package sizing
 
 import (
 	"context"
@@ -8,6 +8,7 @@ import (
 	"testing"
 
 	"pairsmith/objectives"
+	"pairsmith/optimize"
 )
 
 // TestSearchInterrupted: a search stopped by its context part-way still
@@ -26,7 +27,7 @@ func TestSearchInterrupted(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
 	var once sync.Once
-	res, err := Search(ctx, spec, SearchOptions{Strategy: Hybrid, Progress: func(p Progress) {
+	res, err := Search(ctx, spec, Options{Strategy: optimize.Hybrid, Progress: func(p optimize.Progress) {
 		if p.Evaluations >= stopAt {
 			once.Do(cancel)
 		}
@@ -53,43 +54,6 @@ func TestSearchInterrupted(t *testing.T) {
 	}
 }
 
-// TestPayloadsKeptByTheArchive: the record of every evaluation drops its
-// payload (most of its memory), while the front, the nearest misses and
-// the family bests keep theirs.
-func TestPayloadsKeptByTheArchive(t *testing.T) {
-	spec, err := objectives.LoadSpec(filepath.Join("..", "testdata", "specs", "strain-gauge.yaml"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	prob, err := NewStageProblem(spec)
-	if err != nil {
-		t.Fatal(err)
-	}
-	res, err := Run(context.Background(), prob, Settings{Evaluations: 600, Seed: 2, Strategy: Hybrid})
-	if err != nil {
-		t.Fatal(err)
-	}
-	for _, c := range res.All {
-		if c.Outcome.Payload != nil {
-			t.Fatalf("evaluation %+v keeps its payload in All", c.Key)
-		}
-	}
-	kept := append(append([]Candidate(nil), res.Front...), res.Nearest...)
-	for _, fb := range res.BestOf {
-		if fb.OK {
-			kept = append(kept, fb.Candidate)
-		}
-	}
-	if len(res.Front) == 0 || len(kept) == len(res.Front) {
-		t.Fatalf("front %d, kept %d: the test needs both feasible and other candidates", len(res.Front), len(kept))
-	}
-	for _, c := range kept {
-		if _, ok := c.Outcome.Payload.(*StageOutcome); !ok {
-			t.Errorf("archived candidate %+v lost its payload", c.Key)
-		}
-	}
-}
-
 // TestGatherLeavesOutFailedCandidates: a candidate worth reporting whose
 // re-evaluation fails — here a current switch whose PMOS pair runs
 // backwards (an objectives.UnphysicalError, the tail of 2 µA at 86 °C of
@@ -100,7 +64,7 @@ func TestGatherLeavesOutFailedCandidates(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	prob, err := NewStageProblem(spec)
+	prob, err := NewProblem(spec)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -108,19 +72,19 @@ func TestGatherLeavesOutFailedCandidates(t *testing.T) {
 	v := prob.Values(0, good)
 	v["vref"], v["vhead"], v["itail"] = 0, 0.6, 2e-6
 	bad := prob.Normalize(0, v)
-	if _, err := objectives.Evaluate(prob.Design(Point{X: bad})); !errors.As(err, new(*objectives.UnphysicalError)) {
+	if _, err := objectives.Evaluate(prob.Design(optimize.Point{X: bad})); !errors.As(err, new(*objectives.UnphysicalError)) {
 		t.Fatalf("the bad point evaluates with %v, want an UnphysicalError", err)
 	}
-	res := &Result{
-		Front:   []Candidate{{Key: Key{Slot: 0}, Point: Point{X: good}}},
-		Nearest: []Candidate{{Key: Key{Slot: 1}, Point: Point{X: bad}}},
-		BestOf:  []FamilyBest{{Candidate: Candidate{Key: Key{Slot: 0}, Point: Point{X: good}}, OK: true}},
+	res := &optimize.Result{
+		Front:   []optimize.Candidate{{Key: optimize.Key{Slot: 0}, Point: optimize.Point{X: good}}},
+		Nearest: []optimize.Candidate{{Key: optimize.Key{Slot: 1}, Point: optimize.Point{X: bad}}},
+		BestOf:  []optimize.FamilyBest{{Candidate: optimize.Candidate{Key: optimize.Key{Slot: 0}, Point: optimize.Point{X: good}}, OK: true}},
 	}
-	out, err := gather(context.Background(), prob, res, Settings{})
+	out, err := gather(context.Background(), prob, res, optimize.Settings{})
 	if err != nil {
 		t.Fatalf("gather: %v, want the bad candidate left out", err)
 	}
-	if len(out.Candidates) != 1 || out.Candidates[0].Key != (Key{Slot: 0}) {
+	if len(out.Candidates) != 1 || out.Candidates[0].Key != (optimize.Key{Slot: 0}) {
 		t.Errorf("reported %d candidates, want the good one alone", len(out.Candidates))
 	}
 	if len(out.Unreported) != 1 || !errors.As(out.Unreported[0], new(*objectives.UnphysicalError)) {

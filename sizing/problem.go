@@ -1,4 +1,8 @@
-package optimize
+// Package sizing is the input-stage sizing problem handed to the generic
+// search of package optimize: a spec sheet's families, their parameters
+// mapped onto [0, 1], each candidate measured by objectives, and the
+// reported candidates gathered and evaluated again the way `eval` does.
+package sizing
 
 import (
 	"errors"
@@ -6,6 +10,7 @@ import (
 	"math"
 
 	"pairsmith/objectives"
+	"pairsmith/optimize"
 	"pairsmith/sim/device"
 	"pairsmith/topologies"
 )
@@ -36,10 +41,10 @@ const Margin = 0.005
 // bound 1/(n·U_T) physics sets.
 const Level1Validity = "level1_strong_inversion"
 
-// StageProblem is the input-stage design problem of a spec sheet: one
-// family of the spec's topologies per island, each parameter mapped from
-// [0, 1] onto its bounds (log or linear, as the family declares).
-type StageProblem struct {
+// Problem is the input-stage design problem of a spec sheet: one family
+// of the spec's topologies per island, each parameter mapped from [0, 1]
+// onto its bounds (log or linear, as the family declares).
+type Problem struct {
 	Spec    *objectives.Spec
 	fams    []topologies.Family
 	params  [][]topologies.Param
@@ -47,49 +52,58 @@ type StageProblem struct {
 }
 
 var (
-	_ Problem = (*StageProblem)(nil)
-	_ Scaler  = (*StageProblem)(nil)
-	_ Starter = (*StageProblem)(nil)
-	_ Namer   = (*StageProblem)(nil)
+	_ optimize.Problem = (*Problem)(nil)
+	_ optimize.Scaler  = (*Problem)(nil)
+	_ optimize.Starter = (*Problem)(nil)
+	_ optimize.Namer   = (*Problem)(nil)
 )
 
-// NewStageProblem sets up the search of a spec.
-func NewStageProblem(spec *objectives.Spec) (*StageProblem, error) {
+// NewProblem sets up the search of a spec.
+func NewProblem(spec *objectives.Spec) (*Problem, error) {
 	if spec == nil || spec.Process == nil {
-		return nil, errors.New("optimize: a spec with a process is needed")
+		return nil, errors.New("sizing: a spec with a process is needed")
 	}
-	p := &StageProblem{Spec: spec, targets: spec.Targets.Tightened(Margin)}
+	p := &Problem{Spec: spec, targets: spec.Targets.Tightened(Margin)}
 	for _, name := range spec.Topologies {
 		f, err := topologies.Lookup(name)
 		if err != nil {
 			return nil, err
 		}
 		p.fams = append(p.fams, f)
-		p.params = append(p.params, f.Params())
+		p.params = append(p.params, familyParams(f, spec.Process))
 	}
 	if len(p.fams) == 0 {
-		return nil, errors.New("optimize: the spec names no topology")
+		return nil, errors.New("sizing: the spec names no topology")
 	}
 	return p, nil
 }
 
-// Families implements Problem.
-func (p *StageProblem) Families() []Family {
-	out := make([]Family, len(p.fams))
+// familyParams is the one place the search takes a family's parameters
+// and their bounds from. The process is passed so that bounds which follow
+// it (a length bound at the process's minimum, say) can be read here once
+// topologies offers them per process; until then they are the family's
+// own, whatever the process.
+func familyParams(f topologies.Family, _ *device.Process) []topologies.Param {
+	return f.Params()
+}
+
+// Families implements optimize.Problem.
+func (p *Problem) Families() []optimize.Family {
+	out := make([]optimize.Family, len(p.fams))
 	for i, f := range p.fams {
-		out[i] = Family{Name: f.Name(), Dim: len(p.params[i])}
+		out[i] = optimize.Family{Name: f.Name(), Dim: len(p.params[i])}
 	}
 	return out
 }
 
 // Family returns the topology family of index i.
-func (p *StageProblem) Family(i int) topologies.Family { return p.fams[i] }
+func (p *Problem) Family(i int) topologies.Family { return p.fams[i] }
 
-// Objectives implements Problem: the spec's trade-off axes.
-func (p *StageProblem) Objectives() int { return len(p.Spec.Pareto) }
+// Objectives implements optimize.Problem: the spec's trade-off axes.
+func (p *Problem) Objectives() int { return len(p.Spec.Pareto) }
 
-// Scales implements Scaler: the spec's natural unit of each axis.
-func (p *StageProblem) Scales() []float64 {
+// Scales implements optimize.Scaler: the spec's natural unit of each axis.
+func (p *Problem) Scales() []float64 {
 	out := make([]float64, len(p.Spec.Pareto))
 	for i, a := range p.Spec.Pareto {
 		out[i] = p.Spec.AxisScale(a)
@@ -97,13 +111,13 @@ func (p *StageProblem) Scales() []float64 {
 	return out
 }
 
-// Start implements Starter: the family's defaults.
-func (p *StageProblem) Start(f int) ([]float64, bool) {
+// Start implements optimize.Starter: the family's defaults.
+func (p *Problem) Start(f int) ([]float64, bool) {
 	return p.Normalize(f, topologies.Defaults(p.fams[f])), true
 }
 
-// ParamNames implements Namer.
-func (p *StageProblem) ParamNames(f int) []string {
+// ParamNames implements optimize.Namer.
+func (p *Problem) ParamNames(f int) []string {
 	out := make([]string, len(p.params[f]))
 	for i, q := range p.params[f] {
 		out[i] = q.Name
@@ -112,7 +126,7 @@ func (p *StageProblem) ParamNames(f int) []string {
 }
 
 // Values maps normalised coordinates of family f to parameter values.
-func (p *StageProblem) Values(f int, x []float64) topologies.Values {
+func (p *Problem) Values(f int, x []float64) topologies.Values {
 	v := topologies.Values{}
 	for i, q := range p.params[f] {
 		u := clamp01(x[i])
@@ -129,7 +143,7 @@ func (p *StageProblem) Values(f int, x []float64) topologies.Values {
 }
 
 // Normalize maps parameter values of family f to [0, 1] coordinates.
-func (p *StageProblem) Normalize(f int, v topologies.Values) []float64 {
+func (p *Problem) Normalize(f int, v topologies.Values) []float64 {
 	x := make([]float64, len(p.params[f]))
 	for i, q := range p.params[f] {
 		val := v[q.Name]
@@ -143,14 +157,25 @@ func (p *StageProblem) Normalize(f int, v topologies.Values) []float64 {
 	return x
 }
 
+// clamp01 clamps x into [0, 1], NaN to 0.
+func clamp01(x float64) float64 {
+	switch {
+	case x < 0 || x != x:
+		return 0
+	case x > 1:
+		return 1
+	}
+	return x
+}
+
 // Design returns the design file of a point: the spec's process and
 // conditions, the input range swept at the spec's step.
-func (p *StageProblem) Design(pt Point) *objectives.Design {
+func (p *Problem) Design(pt optimize.Point) *objectives.Design {
 	return p.Spec.Design(p.fams[pt.Family].Name(), p.Values(pt.Family, pt.X))
 }
 
-// StageOutcome is the payload of an evaluated stage.
-type StageOutcome struct {
+// Outcome is the payload of an evaluated stage.
+type Outcome struct {
 	Metrics objectives.Metrics
 	// Violations are against the tightened targets the search uses.
 	Violations []objectives.Violation
@@ -160,10 +185,10 @@ type StageOutcome struct {
 	Err string
 }
 
-// Evaluate implements Problem: a coarse sweep first; a candidate missing
-// a target by CoarseReject or more is judged on it, the others are swept
-// at the spec's step.
-func (p *StageProblem) Evaluate(pt Point) Outcome {
+// Evaluate implements optimize.Problem: a coarse sweep first; a candidate
+// missing a target by CoarseReject or more is judged on it, the others
+// are swept at the spec's step.
+func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 	d := p.Design(pt)
 	coarse := *d
 	coarse.Sweep.Step = math.Max(CoarseStep, d.Sweep.Step)
@@ -171,7 +196,7 @@ func (p *StageProblem) Evaluate(pt Point) Outcome {
 	if !ok || coarse.Sweep.Step == d.Sweep.Step {
 		return out
 	}
-	for _, v := range out.Payload.(*StageOutcome).Violations {
+	for _, v := range out.Payload.(*Outcome).Violations {
 		if v.Amount >= CoarseReject {
 			return out
 		}
@@ -181,26 +206,26 @@ func (p *StageProblem) Evaluate(pt Point) Outcome {
 }
 
 // measure sweeps a design and turns its metrics into an outcome.
-func (p *StageProblem) measure(d *objectives.Design, coarse bool) (Outcome, bool) {
+func (p *Problem) measure(d *objectives.Design, coarse bool) (optimize.Outcome, bool) {
 	m, err := objectives.MeasureDesign(d)
 	if err != nil {
-		return Outcome{Failed: true, Payload: &StageOutcome{Coarse: coarse, Err: err.Error()}}, false
+		return optimize.Outcome{Failed: true, Payload: &Outcome{Coarse: coarse, Err: err.Error()}}, false
 	}
 	vs := p.Checks(m, p.targets)
 	amounts := make([]float64, len(vs))
 	for i, v := range vs {
 		amounts[i] = v.Amount
 	}
-	return Outcome{
+	return optimize.Outcome{
 		Objectives: p.Spec.Axes(m),
 		Violations: amounts,
-		Payload:    &StageOutcome{Metrics: m, Violations: vs, Coarse: coarse},
+		Payload:    &Outcome{Metrics: m, Violations: vs, Coarse: coarse},
 	}, true
 }
 
 // Checks returns the violations of a stage's metrics against targets,
 // with the level-1 validity check on a level-1 process.
-func (p *StageProblem) Checks(m objectives.Metrics, t objectives.Targets) []objectives.Violation {
+func (p *Problem) Checks(m objectives.Metrics, t objectives.Targets) []objectives.Violation {
 	vs := t.Check(m)
 	if p.Spec.Process.Kind == "level1" {
 		lim := 1 / (2 * device.ThermalVoltage(p.Spec.TempK))
@@ -214,6 +239,6 @@ func (p *StageProblem) Checks(m objectives.Metrics, t objectives.Targets) []obje
 }
 
 // String describes the problem.
-func (p *StageProblem) String() string {
+func (p *Problem) String() string {
 	return fmt.Sprintf("%s: %d families on %s at %g V", p.Spec.Name, len(p.fams), p.Spec.Process.Name, p.Spec.Supply)
 }

@@ -1,4 +1,4 @@
-package optimize
+package sizing
 
 import (
 	"context"
@@ -10,12 +10,13 @@ import (
 	"time"
 
 	"pairsmith/objectives"
+	"pairsmith/optimize"
 )
 
-// StageCandidate is one reported candidate of a spec's search, evaluated
+// Candidate is one reported candidate of a spec's search, evaluated
 // again through objectives.Evaluate — the path `eval` takes — so that its
 // design file reproduces its metrics exactly.
-type StageCandidate struct {
+type Candidate struct {
 	ID         string // c01, c02, … (c001, … past 99) in report order
 	Topology   string
 	Design     *objectives.Design
@@ -23,9 +24,9 @@ type StageCandidate struct {
 	Metrics    objectives.Metrics
 	Violations []objectives.Violation // one per target the spec sets (and Level1Validity on level 1)
 	Feasible   bool
-	Pareto     bool    // on the front of the feasible candidates
-	Score      float64 // Score of its trade-off axes (lower is better)
-	Key        Key     // which evaluation of the search found it
+	Pareto     bool         // on the front of the feasible candidates
+	Score      float64      // optimize.Score of its trade-off axes (lower is better)
+	Key        optimize.Key // which evaluation of the search found it
 }
 
 // FamilyRank is one family's place in a search.
@@ -33,19 +34,19 @@ type FamilyRank struct {
 	Topology    string
 	Rank        int // 1 best
 	Feasible    bool
-	Best        *StageCandidate // nil when every candidate of the family failed
+	Best        *Candidate // nil when every candidate of the family failed
 	Evaluations int
 }
 
-// StageResult is the outcome of a spec's search.
-type StageResult struct {
+// Result is the outcome of a spec's search.
+type Result struct {
 	Spec       *objectives.Spec
-	Search     *Result
+	Search     *optimize.Result
 	Families   []FamilyRank
-	Candidates []*StageCandidate // the front, then each family's best, then the nearest misses
+	Candidates []*Candidate // the front, then each family's best, then the nearest misses
 	// Best is the candidate of lowest Score among those that meet every
 	// target with the guard band (Margin) to spare; nil when none does.
-	Best *StageCandidate
+	Best *Candidate
 	// Binding names, when nothing is feasible, the targets the least
 	// violating candidate misses, worst first.
 	Binding     []string
@@ -64,27 +65,27 @@ type StageResult struct {
 	Unreported []error
 }
 
-// SearchOptions tune Search beyond the spec, whose search settings
-// (budget, seed, workers, time) it follows.
-type SearchOptions struct {
-	Strategy Strategy
-	Progress func(Progress)
+// Options tune Search beyond the spec, whose search settings (budget,
+// seed, workers, time) it follows.
+type Options struct {
+	Strategy optimize.Strategy
+	Progress func(optimize.Progress)
 }
 
 // Search runs the spec's search and gathers the reported candidates.
-func Search(ctx context.Context, spec *objectives.Spec, opt SearchOptions) (*StageResult, error) {
-	prob, err := NewStageProblem(spec)
+func Search(ctx context.Context, spec *objectives.Spec, opt Options) (*Result, error) {
+	prob, err := NewProblem(spec)
 	if err != nil {
 		return nil, err
 	}
-	set := Settings{
+	set := optimize.Settings{
 		Evaluations: spec.Search.Evaluations, Seed: spec.Search.Seed, Workers: spec.Search.Workers,
 		Strategy: opt.Strategy, Progress: opt.Progress,
 	}
 	if spec.Search.Time > 0 {
 		set.Deadline = time.Now().Add(spec.Search.Time)
 	}
-	res, err := Run(ctx, prob, set)
+	res, err := optimize.Run(ctx, prob, set)
 	if err != nil {
 		return nil, err
 	}
@@ -111,28 +112,9 @@ const gatherGrace = 500 * time.Millisecond
 
 // MaxReportedFront bounds how many members of the front a result reports
 // (with design files and netlists); a larger front is thinned to its most
-// spread members by crowding distance, the extremes always kept.
+// spread members by crowding distance, the extremes always kept
+// (optimize.ThinFront).
 const MaxReportedFront = 200
-
-// thinFront keeps at most n members of a front (sorted by Score), the most
-// crowding-distant ones, in their original order.
-func thinFront(front []Candidate, n int) []Candidate {
-	if len(front) <= n {
-		return front
-	}
-	objs := make([][]float64, len(front))
-	idx := make([]int, len(front))
-	for i, c := range front {
-		objs[i], idx[i] = c.Outcome.Objectives, i
-	}
-	keep := mostSpread(objs, idx, n, func(a, b int) bool { return a < b })
-	sort.Ints(keep)
-	out := make([]Candidate, 0, n)
-	for _, i := range keep {
-		out = append(out, front[i])
-	}
-	return out
-}
 
 // gather re-evaluates the candidates worth reporting and ranks the
 // families. The re-evaluations run on the search's workers, each reported
@@ -141,24 +123,24 @@ func thinFront(front []Candidate, n int) []Candidate {
 // importance — the front's best, each family's best, the rest of the
 // front, the nearest misses — so that an interrupted gather still reports
 // the best and every family.
-func gather(ctx context.Context, prob *StageProblem, res *Result, set Settings) (*StageResult, error) {
-	out := &StageResult{Spec: prob.Spec, Search: res, Evaluations: res.Evaluations, Elapsed: res.Elapsed}
+func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimize.Settings) (*Result, error) {
+	out := &Result{Spec: prob.Spec, Search: res, Evaluations: res.Evaluations, Elapsed: res.Elapsed}
 	scales := prob.Scales()
-	front := thinFront(res.Front, MaxReportedFront)
+	front := optimize.ThinFront(res.Front, MaxReportedFront)
 	out.FrontSize = len(res.Front)
 
 	// The candidates to report, once each, in report order (the front,
 	// each family's best, the nearest misses), and the order they are
 	// re-evaluated in.
 	type item struct {
-		c      Candidate
+		c      optimize.Candidate
 		pareto bool
-		sc     *StageCandidate
+		sc     *Candidate
 		err    error // why its re-evaluation failed
 	}
 	var items []*item
-	byKey := map[Key]*item{}
-	want := func(c Candidate, pareto bool) *item {
+	byKey := map[optimize.Key]*item{}
+	want := func(c optimize.Candidate, pareto bool) *item {
 		if it, ok := byKey[c.Key]; ok {
 			it.pareto = it.pareto || pareto
 			return it
@@ -231,16 +213,16 @@ func gather(ctx context.Context, prob *StageProblem, res *Result, set Settings) 
 				return
 			}
 			vs := prob.Checks(ev.Metrics, prob.Spec.Targets)
-			it.sc = &StageCandidate{
+			it.sc = &Candidate{
 				Topology: d.Topology, Design: d, Eval: ev, Metrics: ev.Metrics, Violations: vs,
 				Feasible: objectives.TotalViolation(vs) == 0,
-				Score:    Score(prob.Spec.Axes(ev.Metrics), scales, nil), Key: it.c.Key,
+				Score:    optimize.Score(prob.Spec.Axes(ev.Metrics), scales, nil), Key: it.c.Key,
 			}
 			done++
 			if set.Progress != nil {
-				set.Progress(Progress{Evaluations: res.Evaluations, Budget: set.Evaluations,
+				set.Progress(optimize.Progress{Evaluations: res.Evaluations, Budget: set.Evaluations,
 					Elapsed: res.Elapsed, Best: math.Inf(1), Nearest: math.Inf(1),
-					Phase: PhaseReport, Reported: done, Reporting: len(items)})
+					Phase: optimize.PhaseReport, Reported: done, Reporting: len(items)})
 			}
 		}(it)
 	}
@@ -296,7 +278,7 @@ func gather(ctx context.Context, prob *StageProblem, res *Result, set Settings) 
 		}
 	}
 	if out.Best == nil {
-		var nearest *StageCandidate
+		var nearest *Candidate
 		for _, sc := range out.Candidates {
 			if nearest == nil || objectives.TotalViolation(sc.Violations) < objectives.TotalViolation(nearest.Violations) {
 				nearest = sc
