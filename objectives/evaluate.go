@@ -31,7 +31,16 @@ type DeviceReport struct {
 	GDS    float64 `json:"gds"`
 	GMB    float64 `json:"gmb"`
 	IC     float64 `json:"ic"`
-	Region string  `json:"region"`
+	Region string  `json:"region"` // the model's own region word
+	// Inversion is weak, moderate or strong (off for a level-1 device
+	// below threshold); Saturation is saturated, triode or off; VDSMargin
+	// is |V_DS| − |V_DSAT|, V (see Inversion, Saturation, SatHeadroom).
+	Inversion  string  `json:"inversion"`
+	Saturation string  `json:"saturation"`
+	VDSMargin  float64 `json:"vds_margin"`
+	// Duty is what the device's function needs: saturated, diode or
+	// exempt (topologies.Duty).
+	Duty string `json:"duty"`
 }
 
 // Evaluation is one design evaluated at its own conditions.
@@ -44,17 +53,23 @@ type Evaluation struct {
 	Devices []DeviceReport
 	// MidVCM is the common mode at which Devices were taken.
 	MidVCM float64
+	// Findings are the always-on checks the stage fails (Assess): empty
+	// for a buildable candidate.
+	Findings []Finding
 }
 
 // Curve returns the gm and pair-current curves of the sweep.
 func (ev *Evaluation) Curve() []CurvePoint { return Curve(ev.Stage, ev.Result) }
 
-// Build makes the stage of a design.
+// Build makes the stage of a design. It first puts the design's drawn
+// sizes on the process grid (topologies.Snap), in d.Params itself, so
+// that the design written afterwards builds the devices evaluated.
 func Build(d *Design) (*topologies.Stage, error) {
 	fam, err := d.Family()
 	if err != nil {
 		return nil, err
 	}
+	d.Params = topologies.Snap(fam, d.Params, d.Process.Rules)
 	st, err := fam.Build(d.Params, d.Conditions())
 	if err != nil {
 		return nil, fmt.Errorf("build %s: %w", d.Topology, err)
@@ -62,60 +77,78 @@ func Build(d *Design) (*topologies.Stage, error) {
 	return st, nil
 }
 
-// sweep builds and sweeps a design: the one code path behind Evaluate
-// and MeasureDesign, so that both give the same metrics and refuse the
-// same unphysical sweeps (CheckPhysical).
-func sweep(d *Design) (*topologies.Stage, *sim.Solver, *sim.Result, error) {
+// swept is a design built, swept and checked.
+type swept struct {
+	st       *topologies.Stage
+	s        *sim.Solver
+	res      *sim.Result
+	findings []Finding
+}
+
+// sweep builds, sweeps and checks a design: the one code path behind
+// Evaluate and MeasureChecked, so that both give the same metrics and
+// findings and refuse the same unphysical sweeps (CheckPhysical).
+func sweep(d *Design) (*swept, error) {
 	st, err := Build(d)
-	if err != nil {
-		return nil, nil, nil, err
-	}
-	s, err := sim.NewSolver(st.Circuit, sim.Options{})
-	if err != nil {
-		return nil, nil, nil, err
-	}
-	res := &sim.Result{}
-	if err := s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0)); err != nil {
-		return nil, nil, nil, err
-	}
-	if err := CheckPhysical(st, res); err != nil {
-		return nil, nil, nil, err
-	}
-	return st, s, res, nil
-}
-
-// MeasureDesign builds, sweeps and measures a design without the rest of
-// an Evaluation: what a search needs of each candidate. Its metrics are
-// those Evaluate reports, bit for bit.
-func MeasureDesign(d *Design) (Metrics, error) {
-	st, _, res, err := sweep(d)
-	if err != nil {
-		return Metrics{}, err
-	}
-	return Measure(st, res), nil
-}
-
-// Evaluate builds, sweeps and measures a design.
-func Evaluate(d *Design) (*Evaluation, error) {
-	st, s, res, err := sweep(d)
 	if err != nil {
 		return nil, err
 	}
-	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: Measure(st, res)}
+	s, err := sim.NewSolver(st.Circuit, sim.Options{})
+	if err != nil {
+		return nil, err
+	}
+	res := &sim.Result{}
+	if err := s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0)); err != nil {
+		return nil, err
+	}
+	if err := CheckPhysical(st, res); err != nil {
+		return nil, err
+	}
+	fs := Assess(st, s.DeviceOps(res), d.Process.Kind, d.Margin(), d.TempK)
+	return &swept{st: st, s: s, res: res, findings: fs}, nil
+}
+
+// MeasureDesign builds, sweeps and measures a design without the rest of
+// an Evaluation. Its metrics are those Evaluate reports, bit for bit.
+func MeasureDesign(d *Design) (Metrics, error) {
+	m, _, err := MeasureChecked(d)
+	return m, err
+}
+
+// MeasureChecked is MeasureDesign with the always-on checks' findings:
+// what a search needs of each candidate.
+func MeasureChecked(d *Design) (Metrics, []Finding, error) {
+	sw, err := sweep(d)
+	if err != nil {
+		return Metrics{}, nil, err
+	}
+	return Measure(sw.st, sw.res), sw.findings, nil
+}
+
+// Evaluate builds, sweeps, measures and checks a design.
+func Evaluate(d *Design) (*Evaluation, error) {
+	sw, err := sweep(d)
+	if err != nil {
+		return nil, err
+	}
+	st, s, res := sw.st, sw.s, sw.res
+	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: Measure(st, res), Findings: sw.findings}
 	mid := res.Len() / 2
 	ev.MidVCM = res.VCM[mid]
-	for _, op := range s.Devices(s.PointAt(res, mid)) {
-		ev.Devices = append(ev.Devices, report(op, st.Roles[op.Name]))
+	for k, op := range s.Devices(s.PointAt(res, mid)) {
+		ev.Devices = append(ev.Devices, report(op, st.Devices[k], d.TempK))
 	}
 	return ev, nil
 }
 
-func report(op sim.DeviceOp, role string) DeviceReport {
+func report(op sim.DeviceOp, dev topologies.Device, tempK float64) DeviceReport {
 	return DeviceReport{
-		Name: op.Name, Type: op.Type.String(), Role: role,
+		Name: op.Name, Type: op.Type.String(), Role: dev.Role,
 		W: op.Geom.W, L: op.Geom.L, M: op.Geom.Mult(),
 		ID: op.ID, VGS: op.VGS, VDS: op.VDS, VBS: op.VBS, VTH: op.VTH, VDSAT: op.VDSAT,
 		GM: op.GM, GDS: op.GDS, GMB: op.GMB, IC: op.IC, Region: string(op.Region),
+		Inversion: Inversion(op.OpPoint, tempK), Saturation: Saturation(op.OpPoint),
+		VDSMargin: SatHeadroom(op.OpPoint), Duty: dev.Duty.String(),
 	}
 }
 

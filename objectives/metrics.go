@@ -125,9 +125,16 @@ func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 		m.GMOverIDMin = math.NaN()
 	}
 	m.GMRipple = Ripple(m.GMMin, m.GMMax)
+	// Power: the stage's own supply current at its worst point, plus the
+	// summing stage's constant bias (topologies.SummingCurrent).
+	var inMax, ipMax float64
+	for i := range in {
+		inMax, ipMax = math.Max(inMax, in[i]), math.Max(ipMax, ip[i])
+	}
 	for _, p := range res.Probe[c.ProbeIndex(topologies.ProbePower)] {
 		m.Power = math.Max(m.Power, p)
 	}
+	m.Power += st.Supply * topologies.SummingCurrent(inMax, ipMax)
 	for _, t := range c.Mosfets {
 		m.Area += t.Geom.Area()
 	}

@@ -175,14 +175,15 @@ func areaText(a float64) string {
 
 // DevicesTable writes the transistors of an evaluation at the middle of
 // the sweep: name, type, role, W, L, drain current, terminal voltages,
-// threshold, saturation voltage, gm and operating region. Signs are
-// SPICE's: a conducting PMOS has negative id, vgs, vds and vth.
+// threshold, saturation voltage, |V_DS| − |V_DSAT|, gm, inversion level
+// and saturation, and the duty the check holds it to. Signs are SPICE's:
+// a conducting PMOS has negative id, vgs, vds and vth.
 func DevicesTable(w io.Writer, ev *objectives.Evaluation) error {
 	e := &errWriter{w: w}
 	e.printf("devices at vcm = %s (SPICE signs: a conducting PMOS has negative id, vgs, vds, vth)\n\n",
 		SI(ev.MidVCM, "V", tableDigits))
-	t := &textTable{right: []bool{false, false, false, true, true, true, true, true, true, true, true, false}}
-	t.add("name", "type", "role", "W", "L", "id", "vgs", "vds", "vth", "vdsat", "gm", "region")
+	t := &textTable{right: []bool{false, false, false, true, true, true, true, true, true, true, true, true, false, false, false}}
+	t.add("name", "type", "role", "W", "L", "id", "vgs", "vds", "vth", "vdsat", "vds-vdsat", "gm", "inversion", "saturation", "duty")
 	for _, d := range ev.Devices {
 		wtxt := SI(d.W, "m", tableDigits)
 		if d.M != 1 && d.M != 0 {
@@ -190,7 +191,7 @@ func DevicesTable(w io.Writer, ev *objectives.Evaluation) error {
 		}
 		t.add(d.Name, d.Type, d.Role, wtxt, SI(d.L, "m", tableDigits),
 			SIFixed(d.ID, "A", tableDigits), volts(d.VGS), volts(d.VDS), volts(d.VTH), volts(d.VDSAT),
-			SIFixed(d.GM, "S", tableDigits), d.Region)
+			volts(d.VDSMargin), SIFixed(d.GM, "S", tableDigits), d.Inversion, d.Saturation, d.Duty)
 	}
 	t.write(e, "  ")
 	return e.err

@@ -2,6 +2,7 @@ package topologies
 
 import (
 	"fmt"
+	"math"
 
 	"pairsmith/sim"
 	"pairsmith/sim/device"
@@ -12,18 +13,19 @@ import (
 // moderate inversion in the pairs, tails of about 0.15 V saturation
 // voltage. The PMOS devices are four times wider than the NMOS ones,
 // which is demo18's kp ratio, so that the two pairs give equal gm at equal
-// current.
+// current. The bounds of widths and lengths follow the process's rules
+// (ParamsFor).
 var (
-	pWN    = Param{Name: "wn", Unit: units.Metre, Min: 0.5e-6, Max: 500e-6, Default: 20e-6, Scale: Log, Doc: "width of each NMOS input transistor"}
-	pLN    = Param{Name: "ln", Unit: units.Metre, Min: 0.18e-6, Max: 10e-6, Default: 1e-6, Scale: Log, Doc: "length of the NMOS input transistors"}
-	pWP    = Param{Name: "wp", Unit: units.Metre, Min: 0.5e-6, Max: 2000e-6, Default: 80e-6, Scale: Log, Doc: "width of each PMOS input transistor"}
-	pLP    = Param{Name: "lp", Unit: units.Metre, Min: 0.18e-6, Max: 10e-6, Default: 1e-6, Scale: Log, Doc: "length of the PMOS input transistors"}
+	pWN    = Param{Name: "wn", Unit: units.Metre, Size: Width, Min: 0.5e-6, Max: 500e-6, Default: 20e-6, Scale: Log, Doc: "width of each NMOS input transistor"}
+	pLN    = Param{Name: "ln", Unit: units.Metre, Size: Length, Min: 0.18e-6, Max: 10e-6, Default: 1e-6, Scale: Log, Doc: "length of the NMOS input transistors"}
+	pWP    = Param{Name: "wp", Unit: units.Metre, Size: Width, Min: 0.5e-6, Max: 2000e-6, Default: 80e-6, Scale: Log, Doc: "width of each PMOS input transistor"}
+	pLP    = Param{Name: "lp", Unit: units.Metre, Size: Length, Min: 0.18e-6, Max: 10e-6, Default: 1e-6, Scale: Log, Doc: "length of the PMOS input transistors"}
 	pITail = Param{Name: "itail", Unit: units.Ampere, Min: 0.1e-6, Max: 1e-3, Default: 20e-6, Scale: Log, Doc: "tail current of each input pair"}
-	pWTN   = Param{Name: "wtn", Unit: units.Metre, Min: 0.5e-6, Max: 500e-6, Default: 10e-6, Scale: Log, Doc: "width of the NMOS tail (and current-sink) transistors"}
-	pWTP   = Param{Name: "wtp", Unit: units.Metre, Min: 0.5e-6, Max: 2000e-6, Default: 40e-6, Scale: Log, Doc: "width of the PMOS tail (and current-source) transistors"}
-	pLT    = Param{Name: "lt", Unit: units.Metre, Min: 0.18e-6, Max: 10e-6, Default: 2e-6, Scale: Log, Doc: "length of all tail, mirror and reference transistors"}
+	pWTN   = Param{Name: "wtn", Unit: units.Metre, Size: Width, Min: 0.5e-6, Max: 500e-6, Default: 10e-6, Scale: Log, Doc: "width of the NMOS tail (and current-sink) transistors"}
+	pWTP   = Param{Name: "wtp", Unit: units.Metre, Size: Width, Min: 0.5e-6, Max: 2000e-6, Default: 40e-6, Scale: Log, Doc: "width of the PMOS tail (and current-source) transistors"}
+	pLT    = Param{Name: "lt", Unit: units.Metre, Size: Length, Min: 0.18e-6, Max: 10e-6, Default: 2e-6, Scale: Log, Doc: "length of all tail, mirror and reference transistors"}
 	pKBias = Param{Name: "kbias", Unit: units.Dimensionless, Min: 1, Max: 10, Default: 4, Scale: Linear, Doc: "tail current over reference-branch current"}
-	pVHead = Param{Name: "vhead", Unit: units.Volt, Min: 0.05, Max: 0.6, Default: 0.2, Scale: Linear, Doc: "headroom of the summing nodes from the rails"}
+	pVHead = Param{Name: "vhead", Unit: units.Volt, Size: Headroom, Min: 0.05, Max: 0.6, Default: 0.25, Scale: Linear, Doc: "headroom of the summing nodes from the rails (at least the summing stage's V_DSAT plus the saturation margin)"}
 )
 
 func pairParams(n, p bool) []Param {
@@ -50,6 +52,7 @@ type builder struct {
 	st         *Stage
 	v          Values
 	cond       Conditions
+	rules      device.Rules
 	nm, pm     device.Model
 	vdd, gnd   sim.Node
 	inp, inn   sim.Node
@@ -58,26 +61,33 @@ type builder struct {
 	iout       []sim.Term
 	in, ip     []sim.Term
 	powerTerms []sim.Term
+	err        error // the first parameter the family read without declaring it
 }
 
 // newBuilder starts a circuit: supply and the two inputs,
 // inp = vcm + vid/2 and inn = vcm − vid/2.
-func newBuilder(family string, v Values, cond Conditions) (*builder, error) {
+func newBuilder(f Family, v Values, cond Conditions) (*builder, error) {
+	family := f.Name()
 	if cond.Process == nil {
 		return nil, fmt.Errorf("%s: no process given", family)
 	}
 	if !(cond.Supply > 0) {
 		return nil, fmt.Errorf("%s: supply %g V, want > 0", family, cond.Supply)
 	}
+	for _, p := range f.Params() {
+		if _, ok := v[p.Name]; !ok {
+			return nil, fmt.Errorf("%s: parameter %s not given (complete the values first)", family, p.Name)
+		}
+	}
 	title := fmt.Sprintf("%s on %s at %s, %s", family, cond.Process.Name,
 		units.Format(cond.Supply, units.Volt), units.Format(cond.TempK, units.Temperature))
 	c := sim.New(title, cond.TempK)
 	b := &builder{
-		c: c, v: v, cond: cond,
+		c: c, v: v, cond: cond, rules: cond.Process.Rules,
 		nm: cond.Process.Card(device.NMOS), pm: cond.Process.Card(device.PMOS),
 		roles: map[string]string{},
 	}
-	b.st = &Stage{Family: family, Circuit: c}
+	b.st = &Stage{Family: family, Circuit: c, params: f.Params()}
 	b.vdd = c.Node("vdd")
 	b.gnd = sim.Ground
 	b.inp = c.Node("inp")
@@ -89,49 +99,70 @@ func newBuilder(family string, v Values, cond Conditions) (*builder, error) {
 	return b, nil
 }
 
+// p returns the value of a declared parameter: reading parameters by
+// their declarations, not by strings, a misspelt name does not compile,
+// and a parameter the family forgot to declare is an error of Build
+// (finish), not a silent zero.
+func (b *builder) p(par Param) float64 {
+	x, ok := b.v[par.Name]
+	if !ok {
+		if b.err == nil {
+			b.err = fmt.Errorf("%s: reads parameter %s, which it does not declare", b.st.Family, par.Name)
+		}
+		return math.NaN()
+	}
+	return x
+}
+
 // mos adds a transistor with the next free name. NMOS bulks go to ground
 // and PMOS bulks to the supply, as in a single-well process.
-func (b *builder) mos(t device.Type, role string, d, g, s sim.Node, w, l float64) string {
+func (b *builder) mos(t device.Type, role string, duty Duty, d, g, s sim.Node, w, l float64) string {
 	bulk := b.gnd
 	if t == device.PMOS {
 		bulk = b.vdd
 	}
-	return b.addMos(t, role, d, g, s, bulk, w, l)
+	return b.addMos(t, role, duty, d, g, s, bulk, w, l)
 }
 
 // mosInWell adds a transistor whose bulk is tied to its source: for a PMOS,
 // a well of its own, as translinear loops are laid out.
-func (b *builder) mosInWell(t device.Type, role string, d, g, s sim.Node, w, l float64) string {
-	return b.addMos(t, role, d, g, s, s, w, l)
+func (b *builder) mosInWell(t device.Type, role string, duty Duty, d, g, s sim.Node, w, l float64) string {
+	return b.addMos(t, role, duty, d, g, s, s, w, l)
 }
 
-// addMos adds a transistor of type t with the next free name.
-func (b *builder) addMos(t device.Type, role string, d, g, s, bulk sim.Node, w, l float64) string {
+// addMos adds a transistor of type t with the next free name, its width
+// and length snapped to the process grid, and records the rules its
+// drawn size breaks.
+func (b *builder) addMos(t device.Type, role string, duty Duty, d, g, s, bulk sim.Node, w, l float64) string {
 	b.count++
 	name := fmt.Sprintf("M%d", b.count)
 	m := b.nm
 	if t == device.PMOS {
 		m = b.pm
 	}
-	b.c.AddMosfet(name, d, g, s, bulk, m, device.Geometry{W: w, L: l})
+	geom := device.Geometry{W: b.rules.Snap(w), L: b.rules.Snap(l)}
+	b.c.AddMosfet(name, d, g, s, bulk, m, geom)
 	b.roles[name] = role
+	b.st.Devices = append(b.st.Devices, Device{Name: name, Role: role, Type: t, Geom: geom, Duty: duty})
+	for _, is := range b.rules.Check(geom) {
+		b.st.Geometry = append(b.st.Geometry, GeometryViolation{Device: name, Role: role, GeometryIssue: is})
+	}
 	return name
 }
 
 // nPair adds the NMOS input pair with common source tn and its drains on
 // summing nodes held at supply − vhead.
 func (b *builder) nPair(tn sim.Node) {
-	c, v := b.c, b.v
+	c := b.c
 	dn1, dn2 := c.Node("dn1"), c.Node("dn2")
-	b.st.PairN[0] = b.mos(device.NMOS, "nmos input", dn1, b.inp, tn, v["wn"], v["ln"])
-	b.st.PairN[1] = b.mos(device.NMOS, "nmos input", dn2, b.inn, tn, v["wn"], v["ln"])
-	vs := b.cond.Supply - v["vhead"]
+	b.st.PairN[0] = b.mos(device.NMOS, "nmos input", Saturated, dn1, b.inp, tn, b.p(pWN), b.p(pLN))
+	b.st.PairN[1] = b.mos(device.NMOS, "nmos input", Saturated, dn2, b.inn, tn, b.p(pWN), b.p(pLN))
+	vs := b.cond.Supply - b.p(pVHead)
 	c.AddVSource("VDN1", dn1, b.gnd, sim.Const(vs), true)
 	c.AddVSource("VDN2", dn2, b.gnd, sim.Const(vs), true)
-	// The summing stage above supplies the NMOS pair's current from the
-	// supply, so it counts in power.
-	b.powerTerms = append(b.powerTerms,
-		sim.Term{Source: "VDN1", Coef: -b.cond.Supply}, sim.Term{Source: "VDN2", Coef: -b.cond.Supply})
+	// The NMOS pair's current comes from the summing stage's sources at
+	// the supply; the power probe leaves it out and Stage.SummingPower
+	// counts those sources' bias instead.
 	b.iout = append(b.iout, sim.Term{Source: "VDN1", Coef: -1}, sim.Term{Source: "VDN2", Coef: 1})
 	b.in = []sim.Term{{Source: "VDN1", Coef: -1}, {Source: "VDN2", Coef: -1}}
 	b.c.Guess[tn] = 0.1
@@ -140,12 +171,12 @@ func (b *builder) nPair(tn sim.Node) {
 // pPair adds the PMOS input pair with common source tp and its drains on
 // summing nodes held at vhead.
 func (b *builder) pPair(tp sim.Node) {
-	c, v := b.c, b.v
+	c := b.c
 	dp1, dp2 := c.Node("dp1"), c.Node("dp2")
-	b.st.PairP[0] = b.mos(device.PMOS, "pmos input", dp1, b.inp, tp, v["wp"], v["lp"])
-	b.st.PairP[1] = b.mos(device.PMOS, "pmos input", dp2, b.inn, tp, v["wp"], v["lp"])
-	c.AddVSource("VDP1", dp1, b.gnd, sim.Const(v["vhead"]), true)
-	c.AddVSource("VDP2", dp2, b.gnd, sim.Const(v["vhead"]), true)
+	b.st.PairP[0] = b.mos(device.PMOS, "pmos input", Saturated, dp1, b.inp, tp, b.p(pWP), b.p(pLP))
+	b.st.PairP[1] = b.mos(device.PMOS, "pmos input", Saturated, dp2, b.inn, tp, b.p(pWP), b.p(pLP))
+	c.AddVSource("VDP1", dp1, b.gnd, sim.Const(b.p(pVHead)), true)
+	c.AddVSource("VDP2", dp2, b.gnd, sim.Const(b.p(pVHead)), true)
 	b.iout = append(b.iout, sim.Term{Source: "VDP1", Coef: -1}, sim.Term{Source: "VDP2", Coef: 1})
 	b.ip = []sim.Term{{Source: "VDP1", Coef: 1}, {Source: "VDP2", Coef: 1}}
 	b.c.Guess[tp] = b.cond.Supply - 0.1
@@ -157,7 +188,7 @@ func (b *builder) pPair(tp sim.Node) {
 // proportion to its width.
 func (b *builder) nBias(name string, i, w float64) sim.Node {
 	g := b.c.Node(name)
-	b.mos(device.NMOS, "nmos reference", g, g, b.gnd, w, b.v["lt"])
+	b.mos(device.NMOS, "nmos reference", Diode, g, g, b.gnd, w, b.p(pLT))
 	b.c.AddISource("I"+name, b.vdd, g, sim.Const(i), false)
 	b.c.Guess[g] = 0.6
 	return g
@@ -167,7 +198,7 @@ func (b *builder) nBias(name string, i, w float64) sim.Node {
 // from the supply whose current i flows to ground through an ideal source.
 func (b *builder) pBias(name string, i, w float64) sim.Node {
 	g := b.c.Node(name)
-	b.mos(device.PMOS, "pmos reference", g, g, b.vdd, w, b.v["lt"])
+	b.mos(device.PMOS, "pmos reference", Diode, g, g, b.vdd, w, b.p(pLT))
 	b.c.AddISource("I"+name, g, b.gnd, sim.Const(i), false)
 	b.c.Guess[g] = b.cond.Supply - 0.6
 	return g
@@ -176,17 +207,15 @@ func (b *builder) pBias(name string, i, w float64) sim.Node {
 // nTail adds an NMOS tail sinking itail from tn, mirrored from its own
 // reference branch at itail/kbias.
 func (b *builder) nTail(tn sim.Node) {
-	v := b.v
-	bn := b.nBias("bn", v["itail"]/v["kbias"], v["wtn"]/v["kbias"])
-	b.mos(device.NMOS, "nmos tail", tn, bn, b.gnd, v["wtn"], v["lt"])
+	bn := b.nBias("bn", b.p(pITail)/b.p(pKBias), b.p(pWTN)/b.p(pKBias))
+	b.mos(device.NMOS, "nmos tail", Saturated, tn, bn, b.gnd, b.p(pWTN), b.p(pLT))
 }
 
 // pTail adds a PMOS tail sourcing itail into tp from the supply. It
 // returns the reference gate, from which other PMOS sources can mirror.
 func (b *builder) pTail(tp sim.Node) sim.Node {
-	v := b.v
-	bp := b.pBias("bp", v["itail"]/v["kbias"], v["wtp"]/v["kbias"])
-	b.mos(device.PMOS, "pmos tail", tp, bp, b.vdd, v["wtp"], v["lt"])
+	bp := b.pBias("bp", b.p(pITail)/b.p(pKBias), b.p(pWTP)/b.p(pKBias))
+	b.mos(device.PMOS, "pmos tail", Saturated, tp, bp, b.vdd, b.p(pWTP), b.p(pLT))
 	return bp
 }
 
@@ -198,8 +227,12 @@ func (b *builder) refVoltage(name string, val float64) sim.Node {
 	return n
 }
 
-// finish adds the probes and the port list.
-func (b *builder) finish() *Stage {
+// finish adds the probes and the port list; its error is the first
+// undeclared parameter the family read.
+func (b *builder) finish() (*Stage, error) {
+	if b.err != nil {
+		return nil, b.err
+	}
 	c := b.c
 	c.AddProbe(ProbeOut, b.iout...)
 	c.AddProbe(ProbeIN, b.in...)
@@ -216,5 +249,7 @@ func (b *builder) finish() *Stage {
 	}
 	b.st.Ports = ports
 	b.st.Roles = b.roles
-	return b.st
+	b.st.VHead = b.p(pVHead)
+	b.st.Supply = b.cond.Supply
+	return b.st, nil
 }

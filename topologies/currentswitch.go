@@ -24,8 +24,8 @@ type currentSwitch struct{}
 var (
 	pVRef  = Param{Name: "vref", Unit: units.Volt, Min: 0, Max: 5, Default: 0.95, Scale: Linear, Doc: "gate voltage of the current switch: where the handover is centred"}
 	pRatio = Param{Name: "ratio", Unit: units.Dimensionless, Min: 0.25, Max: 4, Default: 1, Scale: Linear, Doc: "gain of the mirror from the switch to the NMOS tail"}
-	pWSw   = Param{Name: "wsw", Unit: units.Metre, Min: 0.5e-6, Max: 4000e-6, Default: 160e-6, Scale: Log, Doc: "width of the switch transistor (length lp); twice wp centres the handover on vref"}
-	pWM    = Param{Name: "wm", Unit: units.Metre, Min: 0.5e-6, Max: 500e-6, Default: 10e-6, Scale: Log, Doc: "width of the mirror's input transistor (the output is ratio × wm)"}
+	pWSw   = Param{Name: "wsw", Unit: units.Metre, Size: Width, Min: 0.5e-6, Max: 4000e-6, Default: 160e-6, Scale: Log, Doc: "width of the switch transistor (length lp); twice wp centres the handover on vref"}
+	pWM    = Param{Name: "wm", Unit: units.Metre, Size: Width, Min: 0.5e-6, Max: 500e-6, Default: 10e-6, Scale: Log, Doc: "width of the mirror's input transistor (the output is ratio × wm)"}
 )
 
 func (currentSwitch) Name() string { return "current-switch" }
@@ -37,7 +37,7 @@ func (currentSwitch) Params() []Param {
 }
 
 func (f currentSwitch) Build(v Values, cond Conditions) (*Stage, error) {
-	b, err := newBuilder(f.Name(), v, cond)
+	b, err := newBuilder(f, v, cond)
 	if err != nil {
 		return nil, err
 	}
@@ -46,10 +46,10 @@ func (f currentSwitch) Build(v Values, cond Conditions) (*Stage, error) {
 	b.nPair(tn)
 	b.pPair(tp)
 	b.pTail(tp)
-	vref := b.refVoltage("vref", v["vref"])
-	b.mos(device.PMOS, "current switch", sw, vref, tp, v["wsw"], v["lp"])
-	b.mos(device.NMOS, "mirror input", sw, sw, b.gnd, v["wm"], v["lt"])
-	b.mos(device.NMOS, "nmos tail (mirror output)", tn, sw, b.gnd, v["ratio"]*v["wm"], v["lt"])
+	vref := b.refVoltage("vref", b.p(pVRef))
+	b.mos(device.PMOS, "current switch", Saturated, sw, vref, tp, b.p(pWSw), b.p(pLP))
+	b.mos(device.NMOS, "mirror input", Diode, sw, sw, b.gnd, b.p(pWM), b.p(pLT))
+	b.mos(device.NMOS, "nmos tail (mirror output)", Saturated, tn, sw, b.gnd, b.p(pRatio)*b.p(pWM), b.p(pLT))
 	c.Guess[sw] = 0.3
-	return b.finish(), nil
+	return b.finish()
 }

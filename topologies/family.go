@@ -48,7 +48,9 @@ type Param struct {
 	Min, Max float64 // SI
 	Default  float64 // SI
 	Scale    Scale
-	Doc      string
+	// Size says which process rule bounds the parameter (ParamsFor).
+	Size SizeKind
+	Doc  string
 }
 
 // Values maps parameter names to SI values.
@@ -84,6 +86,16 @@ type Stage struct {
 	PairN, PairP [2]string
 	// Roles says what each transistor does ("nmos input", "pmos tail", …).
 	Roles map[string]string
+	// Devices are the transistors in the order they were added, with the
+	// drawn (grid-snapped) sizes and what their function needs.
+	Devices []Device
+	// Geometry lists the process rules the devices' drawn sizes break.
+	Geometry []GeometryViolation
+	// VHead is the summing nodes' headroom from the rails, V; Supply the
+	// supply, V.
+	VHead, Supply float64
+
+	params []Param
 }
 
 // Probe names every stage defines.

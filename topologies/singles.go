@@ -14,14 +14,14 @@ func (nPair) Summary() string {
 func (nPair) Params() []Param { return pairParams(true, false) }
 
 func (f nPair) Build(v Values, cond Conditions) (*Stage, error) {
-	b, err := newBuilder(f.Name(), v, cond)
+	b, err := newBuilder(f, v, cond)
 	if err != nil {
 		return nil, err
 	}
 	tn := b.c.Node("tn")
 	b.nPair(tn)
 	b.nTail(tn)
-	return b.finish(), nil
+	return b.finish()
 }
 
 // pPair is a single PMOS differential pair with a mirrored PMOS tail; it
@@ -35,14 +35,14 @@ func (pPair) Summary() string {
 func (pPair) Params() []Param { return pairParams(false, true) }
 
 func (f pPair) Build(v Values, cond Conditions) (*Stage, error) {
-	b, err := newBuilder(f.Name(), v, cond)
+	b, err := newBuilder(f, v, cond)
 	if err != nil {
 		return nil, err
 	}
 	tp := b.c.Node("tp")
 	b.pPair(tp)
 	b.pTail(tp)
-	return b.finish(), nil
+	return b.finish()
 }
 
 // complementary is an NMOS and a PMOS pair in parallel on the same inputs,
@@ -60,7 +60,7 @@ func (complementary) Summary() string {
 func (complementary) Params() []Param { return pairParams(true, true) }
 
 func (f complementary) Build(v Values, cond Conditions) (*Stage, error) {
-	b, err := newBuilder(f.Name(), v, cond)
+	b, err := newBuilder(f, v, cond)
 	if err != nil {
 		return nil, err
 	}
@@ -69,5 +69,5 @@ func (f complementary) Build(v Values, cond Conditions) (*Stage, error) {
 	b.pPair(tp)
 	b.nTail(tn)
 	b.pTail(tp)
-	return b.finish(), nil
+	return b.finish()
 }

@@ -42,9 +42,9 @@ import (
 type sqrtBias struct{}
 
 var (
-	pWL   = Param{Name: "wl", Unit: units.Metre, Min: 0.5e-6, Max: 2000e-6, Default: 8e-6, Scale: Log, Doc: "width of the four PMOS loop transistors (the PMOS tail among them; length lt)"}
+	pWL   = Param{Name: "wl", Unit: units.Metre, Size: Width, Min: 0.5e-6, Max: 2000e-6, Default: 8e-6, Scale: Log, Doc: "width of the four PMOS loop transistors (the PMOS tail among them; length lt)"}
 	pKR   = Param{Name: "kr", Unit: units.Dimensionless, Min: 1, Max: 16, Default: 4, Scale: Linear, Doc: "scale of the NMOS replica: it runs at itail/kr"}
-	pWQ   = Param{Name: "wq", Unit: units.Metre, Min: 0.5e-6, Max: 500e-6, Default: 1e-6, Scale: Log, Doc: "width of each replica NMOS input transistor (length ln)"}
+	pWQ   = Param{Name: "wq", Unit: units.Metre, Size: Width, Min: 0.5e-6, Max: 500e-6, Default: 1e-6, Scale: Log, Doc: "width of each replica NMOS input transistor (length ln)"}
 	pKeep = Param{Name: "kkeep", Unit: units.Dimensionless, Min: 16, Max: 4096, Default: 64, Scale: Log, Doc: "itail over the small current that keeps the loop alive when the replica is off"}
 )
 
@@ -57,36 +57,36 @@ func (sqrtBias) Params() []Param {
 }
 
 func (f sqrtBias) Build(v Values, cond Conditions) (*Stage, error) {
-	b, err := newBuilder(f.Name(), v, cond)
+	b, err := newBuilder(f, v, cond)
 	if err != nil {
 		return nil, err
 	}
 	c := b.c
-	lt, kr, wl := v["lt"], v["kr"], v["wl"]
+	lt, kr, wl := b.p(pLT), b.p(pKR), b.p(pWL)
 	tn, tp := c.Node("tn"), c.Node("tp")
 	s, fs, f1, pa := c.Node("s"), c.Node("fs"), c.Node("f1"), c.Node("pa")
 	q, rq := c.Node("q"), c.Node("rq")
 	b.nPair(tn)
 	b.pPair(tp)
 	// The loop's fixed sum: two stacked PMOS diodes at itail/4.
-	b.mos(device.PMOS, "loop diode", f1, f1, b.vdd, wl, lt)
-	b.mosInWell(device.PMOS, "loop diode (own well)", fs, fs, f1, wl, lt)
-	c.AddISource("IFS", fs, b.gnd, sim.Const(v["itail"]/4), false)
+	b.mos(device.PMOS, "loop diode", Diode, f1, f1, b.vdd, wl, lt)
+	b.mosInWell(device.PMOS, "loop diode (own well)", Diode, fs, fs, f1, wl, lt)
+	c.AddISource("IFS", fs, b.gnd, sim.Const(b.p(pITail)/4), false)
 	// Mb is the PMOS tail; Ma's current, mirrored 1:1, is the NMOS tail.
-	b.mos(device.PMOS, "pmos tail (loop)", tp, s, b.vdd, wl, lt)
-	b.mosInWell(device.PMOS, "loop partner (own well)", pa, fs, s, wl, lt)
-	b.mos(device.NMOS, "nmos mirror input", pa, pa, b.gnd, v["wtn"], lt)
-	b.mos(device.NMOS, "nmos tail (mirror output)", tn, pa, b.gnd, v["wtn"], lt)
+	b.mos(device.PMOS, "pmos tail (loop)", Saturated, tp, s, b.vdd, wl, lt)
+	b.mosInWell(device.PMOS, "loop partner (own well)", Saturated, pa, fs, s, wl, lt)
+	b.mos(device.NMOS, "nmos mirror input", Diode, pa, pa, b.gnd, b.p(pWTN), lt)
+	b.mos(device.NMOS, "nmos tail (mirror output)", Saturated, tn, pa, b.gnd, b.p(pWTN), lt)
 	// The NMOS replica at itail/kr, its current mirrored ×kr into node s.
-	bn := b.nBias("bn", v["itail"]/v["kbias"], v["wtn"]/v["kbias"])
-	b.mos(device.NMOS, "replica tail", q, bn, b.gnd, v["wtn"]/kr, lt)
-	b.mos(device.NMOS, "replica input", rq, b.inp, q, v["wq"], v["ln"])
-	b.mos(device.NMOS, "replica input", rq, b.inn, q, v["wq"], v["ln"])
-	b.mos(device.PMOS, "replica mirror input", rq, rq, b.vdd, v["wtp"]/kr, lt)
-	b.mos(device.PMOS, "replica mirror output", s, rq, b.vdd, v["wtp"], lt)
+	bn := b.nBias("bn", b.p(pITail)/b.p(pKBias), b.p(pWTN)/b.p(pKBias))
+	b.mos(device.NMOS, "replica tail", Saturated, q, bn, b.gnd, b.p(pWTN)/kr, lt)
+	b.mos(device.NMOS, "replica input", Saturated, rq, b.inp, q, b.p(pWQ), b.p(pLN))
+	b.mos(device.NMOS, "replica input", Saturated, rq, b.inn, q, b.p(pWQ), b.p(pLN))
+	b.mos(device.PMOS, "replica mirror input", Diode, rq, rq, b.vdd, b.p(pWTP)/kr, lt)
+	b.mos(device.PMOS, "replica mirror output", Saturated, s, rq, b.vdd, b.p(pWTP), lt)
 	// Keep-alive: a small source into s, mirrored off the upper loop diode,
 	// so that Ma never leaves the loop when the replica is off.
-	b.mos(device.PMOS, "loop keep-alive", s, f1, b.vdd, 4*wl/v["kkeep"], lt)
+	b.mos(device.PMOS, "loop keep-alive", Saturated, s, f1, b.vdd, 4*wl/b.p(pKeep), lt)
 	sup := cond.Supply
 	c.Guess[f1] = sup - 0.7
 	c.Guess[fs] = sup - 1.4
@@ -94,5 +94,5 @@ func (f sqrtBias) Build(v Values, cond Conditions) (*Stage, error) {
 	c.Guess[pa] = 0.6
 	c.Guess[q] = 0.3
 	c.Guess[rq] = sup - 0.6
-	return b.finish(), nil
+	return b.finish()
 }

@@ -22,9 +22,9 @@ import (
 type zener struct{}
 
 var (
-	pWZ = Param{Name: "wz", Unit: units.Metre, Min: 0.5e-6, Max: 5000e-6, Default: 1700e-6, Scale: Log, Doc: "width of the zener's PMOS shunt (wide: a sharp knee)"}
-	pLZ = Param{Name: "lz", Unit: units.Metre, Min: 0.18e-6, Max: 20e-6, Default: 10e-6, Scale: Log, Doc: "length of the zener's PMOS shunt"}
-	pWR = Param{Name: "wr", Unit: units.Metre, Min: 0.25e-6, Max: 500e-6, Default: 0.5e-6, Scale: Log, Doc: "width of the zener's NMOS replica (length ln)"}
+	pWZ = Param{Name: "wz", Unit: units.Metre, Size: Width, Min: 0.5e-6, Max: 5000e-6, Default: 1700e-6, Scale: Log, Doc: "width of the zener's PMOS shunt (wide: a sharp knee)"}
+	pLZ = Param{Name: "lz", Unit: units.Metre, Size: Length, Min: 0.18e-6, Max: 20e-6, Default: 10e-6, Scale: Log, Doc: "length of the zener's PMOS shunt"}
+	pWR = Param{Name: "wr", Unit: units.Metre, Size: Width, Min: 0.25e-6, Max: 500e-6, Default: 0.5e-6, Scale: Log, Doc: "width of the zener's NMOS replica (length ln)"}
 	pIR = Param{Name: "ir", Unit: units.Ampere, Min: 0.01e-6, Max: 500e-6, Default: 0.1e-6, Scale: Log, Doc: "bias current of the zener's replica"}
 )
 
@@ -37,7 +37,7 @@ func (zener) Params() []Param {
 }
 
 func (f zener) Build(v Values, cond Conditions) (*Stage, error) {
-	b, err := newBuilder(f.Name(), v, cond)
+	b, err := newBuilder(f, v, cond)
 	if err != nil {
 		return nil, err
 	}
@@ -47,11 +47,11 @@ func (f zener) Build(v Values, cond Conditions) (*Stage, error) {
 	b.pPair(tp)
 	b.nTail(tn)
 	bp := b.pTail(tp)
-	b.mos(device.PMOS, "zener shunt", tn, gz, tp, v["wz"], v["lz"])
-	b.mos(device.NMOS, "zener replica", gz, gz, tn, v["wr"], v["ln"])
+	b.mos(device.PMOS, "zener shunt", Exempt, tn, gz, tp, b.p(pWZ), b.p(pLZ))
+	b.mos(device.NMOS, "zener replica", Diode, gz, gz, tn, b.p(pWR), b.p(pLN))
 	// The replica's bias mirrors the PMOS reference: width in proportion
 	// to ir / itail.
-	b.mos(device.PMOS, "zener bias", gz, bp, b.vdd, v["wtp"]*v["ir"]/v["itail"], v["lt"])
+	b.mos(device.PMOS, "zener bias", Saturated, gz, bp, b.vdd, b.p(pWTP)*b.p(pIR)/b.p(pITail), b.p(pLT))
 	c.Guess[gz] = cond.Supply / 2
-	return b.finish(), nil
+	return b.finish()
 }

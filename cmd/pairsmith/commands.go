@@ -201,6 +201,9 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 				if err := report.MetricsTable(stdout, ev); err != nil {
 					return err
 				}
+				if err := report.FindingsTable(stdout, ev); err != nil {
+					return err
+				}
 				if devices {
 					if _, err := fmt.Fprintln(stdout); err != nil {
 						return err

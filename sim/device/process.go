@@ -22,6 +22,8 @@ type Process struct {
 	Kind  string  // model kind of both cards: "level1" or "ekv"
 	TnomK float64 // temperature at which the card parameters hold, K
 	N, P  Model   // the NMOS and PMOS cards: *Level1 or *EKV
+	// Rules are the geometry rules and the saturation margin.
+	Rules Rules
 
 	// File is the file the process was read from, as given to
 	// ReadProcess; pos holds the line and text of every card value
@@ -114,6 +116,7 @@ func LoadProcess(path string) (*Process, error) {
 //	tnom: 27C              # optional, default 27 °C
 //	nmos: {vto: 0.45V, kp: 280uA/V2, gamma: 0.5, phi: 0.8V, lambda: 0.05}
 //	pmos: {vto: -0.45V, kp: 70uA/V2, gamma: 0.45, phi: 0.8V, lambda: 0.06}
+//	rules: {wmin: 0.22um, lmin: 0.18um, grid: 5nm}   # optional; see Rules
 //
 // Each card takes vto (V, SPICE sign: positive for an NMOS, negative for a
 // PMOS) and kp (A/V²), both required; gamma (√V, default 0), phi (V,
@@ -128,6 +131,10 @@ func LoadProcess(path string) (*Process, error) {
 // phi 0.4 … 1.2 V, lambda 0 … 2 /V, ld 0 … 1 µm, tcv 0 … 5 mV/K,
 // bex −3 … 1.5, tnom 200 … 500 K.
 //
+// The rules section (readRules) gives the smallest drawn width and
+// length and the grid, optionally the largest width and length and the
+// saturation margin; a file without one has no geometry limits.
+//
 // An error names the file, line and field, what was given and what was
 // wanted; it is a *units.Error.
 func ReadProcess(file string, data []byte) (*Process, error) {
@@ -135,7 +142,7 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := m.Check("name", "doc", "model", "tnom", "nmos", "pmos"); err != nil {
+	if err := m.Check("name", "doc", "model", "tnom", "nmos", "pmos", "rules"); err != nil {
 		return nil, err
 	}
 	if err := m.Require("model", "nmos", "pmos"); err != nil {
@@ -167,6 +174,9 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 		return nil, err
 	}
 	if p.P, err = readCard(m, "pmos", PMOS, p.Kind, p.TnomK, p.pos); err != nil {
+		return nil, err
+	}
+	if p.Rules, err = readRules(m, p.pos); err != nil {
 		return nil, err
 	}
 	return p, nil

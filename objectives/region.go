@@ -1,0 +1,296 @@
+package objectives
+
+import (
+	"fmt"
+	"math"
+	"strings"
+
+	"pairsmith/sim"
+	"pairsmith/sim/device"
+	"pairsmith/topologies"
+	"pairsmith/units"
+)
+
+// The checks every evaluation makes besides the spec's targets, by the
+// names their violations carry (docs/buildable.md). They are always on:
+// a candidate that fails one is infeasible, whatever its spec.
+const (
+	CheckGeometry   = "geometry"        // a drawn size breaks a process rule
+	CheckSaturation = "saturation"      // a device that must be saturated is not, with the margin
+	CheckValidity   = "level1_validity" // a level-1 result rests on a device outside the square law
+)
+
+// CheckNames returns the always-on checks in the order Assess reports them.
+func CheckNames() []string { return []string{CheckGeometry, CheckSaturation, CheckValidity} }
+
+// WorkingFraction is the share of its largest current over the range at
+// or above which a device counts as carrying its working current, where
+// the saturation and validity checks apply to it: a half (our choice,
+// docs/buildable.md). Below it a device is turning off or off, and what
+// it does there moves the result little.
+const WorkingFraction = 0.5
+
+// Inversion levels and saturation states, as `eval --devices` reports
+// them.
+const (
+	InversionWeak     = "weak"     // inversion coefficient below 0.1
+	InversionModerate = "moderate" // 0.1 … 10
+	InversionStrong   = "strong"   // above 10
+	StateSaturated    = "saturated"
+	StateTriode       = "triode"
+	StateOff          = "off"
+)
+
+// Inversion returns the inversion level of a device at op: from the EKV
+// inversion coefficient, or on a level-1 card from the coefficient the
+// square law's overdrive corresponds to, IC = (V_ov / 2U_T)² (the EKV
+// strong-inversion relation V_P − V_S = 2U_T·√IC with n = 1; Enz and
+// Vittoz, Charge-Based MOS Transistor Modeling, 2006, from memory). A
+// level-1 device below threshold is off.
+func Inversion(op device.OpPoint, tempK float64) string {
+	ic := op.IC
+	if op.Region == device.Off {
+		return StateOff
+	}
+	if ic == 0 { // level-1: no coefficient of its own
+		ov := overdrive(op)
+		if !(ov > 0) {
+			return StateOff
+		}
+		ic = math.Pow(ov/(2*device.ThermalVoltage(tempK)), 2)
+	}
+	switch {
+	case ic < 0.1:
+		return InversionWeak
+	case ic > 10:
+		return InversionStrong
+	}
+	return InversionModerate
+}
+
+// Saturation returns whether a device is saturated (|V_DS| ≥ |V_DSAT|),
+// in triode, or off (a level-1 device below threshold).
+func Saturation(op device.OpPoint) string {
+	switch {
+	case op.Region == device.Off:
+		return StateOff
+	case SatHeadroom(op) >= 0:
+		return StateSaturated
+	}
+	return StateTriode
+}
+
+// SatHeadroom returns |V_DS| − |V_DSAT|, V: how far a device is from the
+// edge of saturation (negative in triode).
+func SatHeadroom(op device.OpPoint) float64 { return math.Abs(op.VDS) - math.Abs(op.VDSAT) }
+
+// overdrive returns |V_GS| − |V_TH| in the conducting sense, V.
+func overdrive(op device.OpPoint) float64 {
+	if op.VTH < 0 { // a PMOS: SPICE signs
+		return op.VTH - op.VGS
+	}
+	return op.VGS - op.VTH
+}
+
+// Margin returns the saturation margin the design is checked with: the
+// process's (device.Rules.SaturationMargin, 50 mV unless its rules say
+// otherwise).
+func (d *Design) Margin() float64 {
+	if d.Process == nil || (!d.Process.Rules.Given && d.Process.Rules.SaturationMargin == 0) {
+		return device.DefaultSaturationMargin
+	}
+	return d.Process.Rules.SaturationMargin
+}
+
+// Finding is one device failing one always-on check, over a span of the
+// range.
+type Finding struct {
+	Check  string  // CheckGeometry, CheckSaturation or CheckValidity
+	Device string  // "M6", or "summing stage"
+	Role   string  // "pmos tail"
+	Points int     // sweep points that fail (0 for geometry)
+	From   float64 // first and last failing common mode, V (NaN for geometry)
+	To     float64
+	VCM    float64 // the worst point, V (NaN for geometry)
+	// Value and Limit are what was found and what was wanted at the worst
+	// point: V_DS − V_DSAT against the margin, the overdrive against
+	// 4·U_T, a drawn size against its rule.
+	Value, Limit float64
+	// Amount is the normalised shortfall at the worst point, > 0: the
+	// missing V_DS over the V_DS needed, the missing overdrive over
+	// 4·U_T, the size's distance from its rule over the rule.
+	Amount float64
+	What   string // the words for it
+}
+
+func (f Finding) String() string {
+	where := ""
+	if f.Points > 0 {
+		where = fmt.Sprintf(" at vcm %s to %s (%d points; worst at %s)", short(f.From, units.Volt), short(f.To, units.Volt), f.Points, short(f.VCM, units.Volt))
+	}
+	return fmt.Sprintf("%s: %s (%s): %s%s", f.Check, f.Device, f.Role, f.What, where)
+}
+
+// Assess makes the always-on checks of a swept stage (docs/buildable.md):
+// the geometry rules the builder recorded, saturation with margin
+// (volts) of every device whose duty needs it at every point where it
+// carries its working current, and on a level-1 process the square law's
+// validity of every device at every such point. ops are the devices'
+// operating points at every sweep point (sim.Solver.DeviceOps); tempK the
+// temperature.
+func Assess(st *topologies.Stage, ops *sim.DeviceSweep, kind string, margin, tempK float64) []Finding {
+	var out []Finding
+	for _, g := range st.Geometry {
+		rule := "min"
+		if !g.Min {
+			rule = "max"
+		}
+		out = append(out, Finding{Check: CheckGeometry, Device: g.Device, Role: g.Role,
+			From: math.NaN(), To: math.NaN(), VCM: math.NaN(), Value: g.Value, Limit: g.Limit,
+			Amount: math.Min(g.Amount(), MissingAmount), What: g.GeometryIssue.String() + " (" + g.Field + rule + ")"})
+	}
+	if need := topologies.MinVHead(margin); st.VHead < need*(1-1e-9) {
+		out = append(out, Finding{Check: CheckSaturation, Device: "summing stage", Role: "folding sources and mirror",
+			From: math.NaN(), To: math.NaN(), VCM: math.NaN(), Value: st.VHead - topologies.FoldOverdrive, Limit: margin,
+			Amount: (need - st.VHead) / need,
+			What: fmt.Sprintf("vhead %s leaves its devices (V_DSAT %s) %s above V_DSAT, want the margin %s",
+				short(st.VHead, units.Volt), short(topologies.FoldOverdrive, units.Volt),
+				short(st.VHead-topologies.FoldOverdrive, units.Volt), short(margin, units.Volt))})
+	}
+	if ops == nil || len(ops.Op) == 0 {
+		return out
+	}
+	n := len(ops.Op)
+	ut := device.ThermalVoltage(tempK)
+	for k, dev := range st.Devices {
+		imax := 0.0
+		for i := 0; i < n; i++ {
+			imax = math.Max(imax, math.Abs(ops.Op[i][k].ID))
+		}
+		if !(imax > 0) {
+			continue
+		}
+		working := func(i int) bool {
+			op := ops.Op[i][k]
+			return op.Region != device.Off && math.Abs(op.ID) >= WorkingFraction*imax
+		}
+		if dev.Duty == topologies.Saturated {
+			low := func(i int) bool { return SatHeadroom(ops.Op[i][k]) < margin }
+			exempt := railTurnOff(n, low, working)
+			f := spanFinding(CheckSaturation, dev, ops.VCM, func(i int) (bool, float64, float64, float64) {
+				if !working(i) || !low(i) || exempt[i] {
+					return false, 0, 0, 0
+				}
+				op := ops.Op[i][k]
+				need := math.Abs(op.VDSAT) + margin
+				return true, SatHeadroom(op), margin, (need - math.Abs(op.VDS)) / need
+			})
+			if f != nil {
+				f.What = fmt.Sprintf("|V_DS| − |V_DSAT| = %s, want at least the margin %s", short(f.Value, units.Volt), short(f.Limit, units.Volt))
+				out = append(out, *f)
+			}
+		}
+		if kind == "level1" {
+			lim := 4 * ut
+			f := spanFinding(CheckValidity, dev, ops.VCM, func(i int) (bool, float64, float64, float64) {
+				if !working(i) {
+					return false, 0, 0, 0
+				}
+				ov := overdrive(ops.Op[i][k])
+				if ov >= lim {
+					return false, 0, 0, 0
+				}
+				return true, ov, lim, math.Min((lim-ov)/lim, MissingAmount)
+			})
+			if f != nil {
+				f.What = fmt.Sprintf("overdrive %s below 4·U_T = %s (gm/I_D above 1/(2·U_T)): the square law does not describe it",
+					short(f.Value, units.Volt), short(f.Limit, units.Volt))
+				out = append(out, *f)
+			}
+		}
+	}
+	return out
+}
+
+// railTurnOff marks the points exempt from the saturation check because
+// the device is turning off at an end of the range, as a pair's tail does
+// at its rail: a run of points short of the margin that reaches an end of
+// the sweep and, along it, a point where the device no longer carries its
+// working current. A device that stays short at full current up to the
+// end (a tail whose current a switch takes over, say) is not exempt.
+func railTurnOff(n int, short, working func(int) bool) []bool {
+	exempt := make([]bool, n)
+	mark := func(from, step int) {
+		end, off := from, false
+		for i := from; i >= 0 && i < n && short(i); i += step {
+			end = i
+			off = off || !working(i)
+		}
+		if !off || !short(from) {
+			return
+		}
+		for i := from; ; i += step {
+			exempt[i] = true
+			if i == end {
+				break
+			}
+		}
+	}
+	mark(0, 1)
+	mark(n-1, -1)
+	return exempt
+}
+
+// spanFinding gathers the failing points of one device and one check:
+// fail(i) reports whether point i fails, with the value, limit and amount
+// there. It returns nil when no point fails.
+func spanFinding(check string, dev topologies.Device, vcm []float64, fail func(i int) (bool, float64, float64, float64)) *Finding {
+	var f *Finding
+	for i := range vcm {
+		bad, val, lim, amt := fail(i)
+		if !bad {
+			continue
+		}
+		if f == nil {
+			f = &Finding{Check: check, Device: dev.Name, Role: dev.Role, From: vcm[i]}
+		}
+		f.Points++
+		f.To = vcm[i]
+		if amt > f.Amount {
+			f.Amount, f.Value, f.Limit, f.VCM = amt, val, lim, vcm[i]
+		}
+	}
+	return f
+}
+
+// CheckViolations sums findings into one violation per always-on check,
+// in the order of CheckNames, met ones (Amount 0) included: the Amounts
+// Deb's rules add to the targets'. Value is the worst finding's value.
+func CheckViolations(fs []Finding) []Violation {
+	var out []Violation
+	for _, name := range CheckNames() {
+		v := Violation{Target: name, Value: math.NaN(), Limit: math.NaN()}
+		worst := 0.0
+		for _, f := range fs {
+			if f.Check != name {
+				continue
+			}
+			v.Amount += f.Amount
+			if f.Amount > worst {
+				worst, v.Value, v.Limit = f.Amount, f.Value, f.Limit
+			}
+		}
+		out = append(out, v)
+	}
+	return out
+}
+
+// FindingsText writes findings one per line, for messages.
+func FindingsText(fs []Finding) string {
+	var b strings.Builder
+	for _, f := range fs {
+		b.WriteString(f.String())
+		b.WriteByte('\n')
+	}
+	return b.String()
+}
