@@ -3,6 +3,7 @@ package optimize
 import (
 	"math"
 	"slices"
+	"sort"
 )
 
 // archive keeps, as evaluations arrive in any order, what a Result
@@ -140,4 +141,16 @@ func (a *archive) sortedFront() []Candidate {
 		return 0
 	})
 	return front
+}
+
+// result returns what the archive holds as a Result over all, the
+// evaluations it was given in Key order.
+func (a *archive) result(all []Candidate) *Result {
+	res := &Result{All: all, Evaluations: len(all), Front: a.sortedFront(),
+		Nearest: slices.Clone(a.nearest), BestOf: slices.Clone(a.best)}
+	if a.anyFeasible {
+		// The first feasible key's place in Key order.
+		res.FirstFeasible = sort.Search(len(all), func(i int) bool { return !all[i].Key.less(a.firstFeasible) }) + 1
+	}
+	return res
 }

@@ -1,0 +1,45 @@
+package optimize
+
+import "math"
+
+// rhoTchebycheff is the augmentation of the Tchebycheff scalarisation.
+const rhoTchebycheff = 0.01
+
+// Score scalarises objectives by the augmented weighted Tchebycheff
+// function with the ideal point at zero (R. E. Steuer, E.-U. Choo, "An
+// interactive weighted Tchebycheff procedure for multiple objective
+// programming", Mathematical Programming 26, 1983):
+// max_i w_i·f_i/s_i + ρ·Σ_i w_i·f_i/s_i, with ρ = 0.01. With the weights
+// all 1 and the scales the budgets, a score below 1 means every objective
+// is within its budget, and the score is the largest fraction used.
+func Score(obj, scales, weights []float64) float64 {
+	mx, sum := math.Inf(-1), 0.0
+	for i, f := range obj {
+		s, w := 1.0, 1.0
+		if i < len(scales) && scales[i] > 0 {
+			s = scales[i]
+		}
+		if i < len(weights) {
+			w = weights[i]
+		}
+		v := w * f / s
+		mx = math.Max(mx, v)
+		sum += v
+	}
+	return mx + rhoTchebycheff*sum
+}
+
+// better reports whether a is preferable to b under Deb's feasibility
+// rules, feasible ones compared by Score.
+func better(a, b Outcome, scales []float64) bool {
+	af, bf := a.Feasible(), b.Feasible()
+	switch {
+	case af && !bf:
+		return true
+	case !af && bf:
+		return false
+	case !af:
+		return a.Violation() < b.Violation()
+	}
+	return Score(a.Objectives, scales, nil) < Score(b.Objectives, scales, nil)
+}
