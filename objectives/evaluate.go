@@ -104,7 +104,7 @@ func sweep(d *Design) (*swept, error) {
 	if err := CheckPhysical(st, res); err != nil {
 		return nil, err
 	}
-	fs := Assess(st, s.DeviceOps(res), d.Process.Kind, d.Margin(), d.TempK)
+	fs := Assess(st, res, s.DeviceOps(res), d.Process.Kind, d.Margin(), d.TempK)
 	return &swept{st: st, s: s, res: res, findings: fs}, nil
 }
 

@@ -138,7 +138,7 @@ func (f Finding) String() string {
 // validity of every device at every such point. ops are the devices'
 // operating points at every sweep point (sim.Solver.DeviceOps); tempK the
 // temperature.
-func Assess(st *topologies.Stage, ops *sim.DeviceSweep, kind string, margin, tempK float64) []Finding {
+func Assess(st *topologies.Stage, res *sim.Result, ops *sim.DeviceSweep, kind string, margin, tempK float64) []Finding {
 	var out []Finding
 	for _, g := range st.Geometry {
 		rule := "min"
@@ -162,6 +162,17 @@ func Assess(st *topologies.Stage, ops *sim.DeviceSweep, kind string, margin, tem
 	}
 	n := len(ops.Op)
 	ut := device.ThermalVoltage(tempK)
+	c := st.Circuit
+	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
+	// minor reports whether a side's pair carries at most half of the two
+	// pairs' current at point i: the other pair has taken over.
+	minor := func(side topologies.Side, i int) bool {
+		mine, tot := in[i], in[i]+ip[i]
+		if side == topologies.PSide {
+			mine = ip[i]
+		}
+		return side == topologies.NoSide || !(tot > 0) || mine <= 0.5*tot
+	}
 	for k, dev := range st.Devices {
 		imax := 0.0
 		for i := 0; i < n; i++ {
@@ -176,7 +187,7 @@ func Assess(st *topologies.Stage, ops *sim.DeviceSweep, kind string, margin, tem
 		}
 		if dev.Duty == topologies.Saturated {
 			low := func(i int) bool { return SatHeadroom(ops.Op[i][k]) < margin }
-			exempt := railTurnOff(n, low, working)
+			exempt := railTurnOff(n, low, working, func(i int) bool { return minor(dev.Side, i) })
 			f := spanFinding(CheckSaturation, dev, ops.VCM, func(i int) (bool, float64, float64, float64) {
 				if !working(i) || !low(i) || exempt[i] {
 					return false, 0, 0, 0
@@ -214,11 +225,15 @@ func Assess(st *topologies.Stage, ops *sim.DeviceSweep, kind string, margin, tem
 
 // railTurnOff marks the points exempt from the saturation check because
 // the device is turning off at an end of the range, as a pair's tail does
-// at its rail: a run of points short of the margin that reaches an end of
-// the sweep and, along it, a point where the device no longer carries its
-// working current. A device that stays short at full current up to the
-// end (a tail whose current a switch takes over, say) is not exempt.
-func railTurnOff(n int, short, working func(int) bool) []bool {
+// at its rail: within a run of points short of the margin that reaches an
+// end of the sweep and along which the device stops carrying its working
+// current somewhere, the points where its pair carries at most half of
+// the two pairs' current (minor: the other pair has taken over; always
+// for a device of neither pair). A device that stays short at full
+// current up to the end (a tail whose current a switch takes over), or a
+// tail short of the margin where its own pair still carries most of the
+// current, is not exempt.
+func railTurnOff(n int, short, working, minor func(int) bool) []bool {
 	exempt := make([]bool, n)
 	mark := func(from, step int) {
 		end, off := from, false
@@ -230,7 +245,7 @@ func railTurnOff(n int, short, working func(int) bool) []bool {
 			return
 		}
 		for i := from; ; i += step {
-			exempt[i] = true
+			exempt[i] = minor(i)
 			if i == end {
 				break
 			}

@@ -486,12 +486,12 @@ func missText(spec *objectives.Spec, v objectives.Violation) string {
 			return fmt.Sprintf("transition_width none (no handover), wanted ≤ %s", q(v.Limit, "V"))
 		}
 		return fmt.Sprintf("transition_width %s > %s", q(v.Value, "V"), q(v.Limit, "V"))
-	case sizing.Level1Validity:
-		if math.IsNaN(v.Value) {
-			return "gm/I_D none (no pair conducts)"
-		}
-		return fmt.Sprintf("gm/I_D %s > %s (the level-1 model outside strong inversion)",
-			SI(v.Value, "/V", tableDigits), SI(v.Limit, "/V", tableDigits))
+	case objectives.CheckGeometry:
+		return fmt.Sprintf("geometry: a drawn size %s against the rule %s", q(v.Value, "m"), q(v.Limit, "m"))
+	case objectives.CheckSaturation:
+		return fmt.Sprintf("saturation: |V_DS| − |V_DSAT| %s, want ≥ %s", q(v.Value, "V"), q(v.Limit, "V"))
+	case objectives.CheckValidity:
+		return fmt.Sprintf("level1_validity: overdrive %s < 4·U_T = %s (outside the square law)", q(v.Value, "V"), q(v.Limit, "V"))
 	}
 	return fmt.Sprintf("%s %s (limit %s)", v.Target, SI(v.Value, "", tableDigits), SI(v.Limit, "", tableDigits))
 }

@@ -114,7 +114,7 @@ func TestDevicesTable(t *testing.T) {
 		t.Fatal(err)
 	}
 	out := b.String()
-	for _, w := range []string{"vcm = 900 mV", "name", "vdsat", "region",
+	for _, w := range []string{"vcm = 900 mV", "name", "vdsat", "vds-vdsat", "inversion", "saturation", "duty",
 		"M1    nmos  nmos input", "20 µm", "1.333 µA", "0.500 V", "34.87 µS",
 		"2×80 µm", "-8.493 µA", "-0.556 V", "175.9 µS", "-1.256 V", "-0.529 V"} {
 		if !strings.Contains(out, w) {

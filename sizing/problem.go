@@ -11,7 +11,6 @@ import (
 
 	"pairsmith/objectives"
 	"pairsmith/optimize"
-	"pairsmith/sim/device"
 	"pairsmith/topologies"
 )
 
@@ -31,15 +30,6 @@ const CoarseReject = 0.5
 // stays feasible in a simulator whose numbers differ from pairsmith's by
 // less than that (ngspice on level-1 decks agrees to about 0.1 %).
 const Margin = 0.005
-
-// Level1Validity names the check a search on a level-1 process adds to
-// the spec's targets: the input transistors must be in strong inversion
-// somewhere in the range, gm/I_D ≤ 1/(2·U_T), an overdrive of at least
-// 4·U_T (≈ 100 mV at 27 °C), where the square law is trusted (common
-// practice, no source). Without it the search exploits the level-1
-// model's lack of weak inversion, where its gm/I_D grows without the
-// bound 1/(n·U_T) physics sets.
-const Level1Validity = "level1_strong_inversion"
 
 // Problem is the input-stage design problem of a spec sheet: one family
 // of the spec's topologies per island, each parameter mapped from [0, 1]
@@ -70,21 +60,16 @@ func NewProblem(spec *objectives.Spec) (*Problem, error) {
 			return nil, err
 		}
 		p.fams = append(p.fams, f)
-		p.params = append(p.params, familyParams(f, spec.Process))
+		ps, err := topologies.ParamsFor(f, spec.Process, spec.Process.Rules.SaturationMargin)
+		if err != nil {
+			return nil, fmt.Errorf("sizing: %w", err)
+		}
+		p.params = append(p.params, ps)
 	}
 	if len(p.fams) == 0 {
 		return nil, errors.New("sizing: the spec names no topology")
 	}
 	return p, nil
-}
-
-// familyParams is the one place the search takes a family's parameters
-// and their bounds from. The process is passed so that bounds which follow
-// it (a length bound at the process's minimum, say) can be read here once
-// topologies offers them per process; until then they are the family's
-// own, whatever the process.
-func familyParams(f topologies.Family, _ *device.Process) []topologies.Param {
-	return f.Params()
 }
 
 // Families implements optimize.Problem.
@@ -207,11 +192,11 @@ func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 
 // measure sweeps a design and turns its metrics into an outcome.
 func (p *Problem) measure(d *objectives.Design, coarse bool) (optimize.Outcome, bool) {
-	m, err := objectives.MeasureDesign(d)
+	m, fs, err := objectives.MeasureChecked(d)
 	if err != nil {
 		return optimize.Outcome{Failed: true, Payload: &Outcome{Coarse: coarse, Err: err.Error()}}, false
 	}
-	vs := p.Checks(m, p.targets)
+	vs := p.Checks(m, fs, p.targets)
 	amounts := make([]float64, len(vs))
 	for i, v := range vs {
 		amounts[i] = v.Amount
@@ -223,19 +208,12 @@ func (p *Problem) measure(d *objectives.Design, coarse bool) (optimize.Outcome, 
 	}, true
 }
 
-// Checks returns the violations of a stage's metrics against targets,
-// with the level-1 validity check on a level-1 process.
-func (p *Problem) Checks(m objectives.Metrics, t objectives.Targets) []objectives.Violation {
-	vs := t.Check(m)
-	if p.Spec.Process.Kind == "level1" {
-		lim := 1 / (2 * device.ThermalVoltage(p.Spec.TempK))
-		amt := objectives.MissingAmount
-		if !math.IsNaN(m.GMOverIDMin) && !math.IsInf(m.GMOverIDMin, 0) {
-			amt = math.Max(0, (m.GMOverIDMin-lim)/lim)
-		}
-		vs = append(vs, objectives.Violation{Target: Level1Validity, Value: m.GMOverIDMin, Limit: lim, Amount: amt})
-	}
-	return vs
+// Checks returns the violations of a stage against targets, followed by
+// the evaluator's always-on checks (objectives.CheckViolations: geometry
+// rules, saturation margins, and on a level-1 process the square law's
+// validity), which every candidate must pass whatever the spec.
+func (p *Problem) Checks(m objectives.Metrics, fs []objectives.Finding, t objectives.Targets) []objectives.Violation {
+	return append(t.Check(m), objectives.CheckViolations(fs)...)
 }
 
 // String describes the problem.

@@ -22,7 +22,7 @@ type Candidate struct {
 	Design     *objectives.Design
 	Eval       *objectives.Evaluation
 	Metrics    objectives.Metrics
-	Violations []objectives.Violation // one per target the spec sets (and Level1Validity on level 1)
+	Violations []objectives.Violation // one per target the spec sets, then one per always-on check (objectives.CheckNames)
 	Feasible   bool
 	Pareto     bool         // on the front of the feasible candidates
 	Score      float64      // optimize.Score of its trade-off axes (lower is better)
@@ -212,7 +212,7 @@ func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimi
 				done++
 				return
 			}
-			vs := prob.Checks(ev.Metrics, prob.Spec.Targets)
+			vs := prob.Checks(ev.Metrics, ev.Findings, prob.Spec.Targets)
 			it.sc = &Candidate{
 				Topology: d.Topology, Design: d, Eval: ev, Metrics: ev.Metrics, Violations: vs,
 				Feasible: objectives.TotalViolation(vs) == 0,

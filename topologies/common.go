@@ -62,6 +62,7 @@ type builder struct {
 	in, ip     []sim.Term
 	powerTerms []sim.Term
 	err        error // the first parameter the family read without declaring it
+	sides      map[sim.Node]Side
 }
 
 // newBuilder starts a circuit: supply and the two inputs,
@@ -85,7 +86,7 @@ func newBuilder(f Family, v Values, cond Conditions) (*builder, error) {
 	b := &builder{
 		c: c, v: v, cond: cond, rules: cond.Process.Rules,
 		nm: cond.Process.Card(device.NMOS), pm: cond.Process.Card(device.PMOS),
-		roles: map[string]string{},
+		roles: map[string]string{}, sides: map[sim.Node]Side{},
 	}
 	b.st = &Stage{Family: family, Circuit: c, params: f.Params()}
 	b.vdd = c.Node("vdd")
@@ -143,7 +144,11 @@ func (b *builder) addMos(t device.Type, role string, duty Duty, d, g, s, bulk si
 	geom := device.Geometry{W: b.rules.Snap(w), L: b.rules.Snap(l)}
 	b.c.AddMosfet(name, d, g, s, bulk, m, geom)
 	b.roles[name] = role
-	b.st.Devices = append(b.st.Devices, Device{Name: name, Role: role, Type: t, Geom: geom, Duty: duty})
+	side := b.sides[d]
+	if side == NoSide {
+		side = b.sides[s]
+	}
+	b.st.Devices = append(b.st.Devices, Device{Name: name, Role: role, Type: t, Geom: geom, Duty: duty, Side: side})
 	for _, is := range b.rules.Check(geom) {
 		b.st.Geometry = append(b.st.Geometry, GeometryViolation{Device: name, Role: role, GeometryIssue: is})
 	}
@@ -154,6 +159,7 @@ func (b *builder) addMos(t device.Type, role string, duty Duty, d, g, s, bulk si
 // summing nodes held at supply − vhead.
 func (b *builder) nPair(tn sim.Node) {
 	c := b.c
+	b.sides[tn] = NSide
 	dn1, dn2 := c.Node("dn1"), c.Node("dn2")
 	b.st.PairN[0] = b.mos(device.NMOS, "nmos input", Saturated, dn1, b.inp, tn, b.p(pWN), b.p(pLN))
 	b.st.PairN[1] = b.mos(device.NMOS, "nmos input", Saturated, dn2, b.inn, tn, b.p(pWN), b.p(pLN))
@@ -172,6 +178,7 @@ func (b *builder) nPair(tn sim.Node) {
 // summing nodes held at vhead.
 func (b *builder) pPair(tp sim.Node) {
 	c := b.c
+	b.sides[tp] = PSide
 	dp1, dp2 := c.Node("dp1"), c.Node("dp2")
 	b.st.PairP[0] = b.mos(device.PMOS, "pmos input", Saturated, dp1, b.inp, tp, b.p(pWP), b.p(pLP))
 	b.st.PairP[1] = b.mos(device.PMOS, "pmos input", Saturated, dp2, b.inn, tp, b.p(pWP), b.p(pLP))

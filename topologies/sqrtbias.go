@@ -68,6 +68,7 @@ func (f sqrtBias) Build(v Values, cond Conditions) (*Stage, error) {
 	q, rq := c.Node("q"), c.Node("rq")
 	b.nPair(tn)
 	b.pPair(tp)
+	b.sides[q] = NSide // the replica pair follows the NMOS pair
 	// The loop's fixed sum: two stacked PMOS diodes at itail/4.
 	b.mos(device.PMOS, "loop diode", Diode, f1, f1, b.vdd, wl, lt)
 	b.mosInWell(device.PMOS, "loop diode (own well)", Diode, fs, fs, f1, wl, lt)

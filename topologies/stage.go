@@ -47,12 +47,25 @@ func (d Duty) String() string {
 	return "saturated"
 }
 
+// Side says which input pair's current a device carries or sets.
+type Side int
+
+// Sides.
+const (
+	NoSide Side = iota // neither: a switch's path, a bias or loop device
+	NSide              // the NMOS pair's: its inputs, its tail, what feeds its tail
+	PSide              // the PMOS pair's
+)
+
 // Device is one transistor of a stage as drawn.
 type Device struct {
 	Name, Role string
 	Type       device.Type
 	Geom       device.Geometry // grid-snapped
 	Duty       Duty
+	// Side is the pair whose current the device's drain or source
+	// carries (a node of that pair's tail, or of a replica of it).
+	Side Side
 }
 
 // GeometryViolation is one process rule a device's drawn size breaks.
