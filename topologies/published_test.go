@@ -65,7 +65,7 @@ func with(base topologies.Values, extra topologies.Values) topologies.Values {
 
 // TestPublishedBehaviour checks the families' gm flatness in strong
 // inversion against the square-law closed forms and the published and
-// common-practice figures (design.md §7), on the level-1 demo33-l1
+// common-practice figures (docs/checks.md#published-behaviour), on the level-1 demo33-l1
 // process where the square law holds exactly.
 //
 // Closed forms. A pair carrying I gives gm = √(β·I) (square law, each
