@@ -152,7 +152,7 @@ func TestPercentAndRipple(t *testing.T) {
 		{-0.0000001, "0.0 %", "0.0 %"},
 		{0, "0.0 %", "0.0 %"},
 		{math.NaN(), "NaN", "NaN"},
-		// design.md §4: an unbounded ripple is ∞ in text.
+		// docs/metrics.md#missing-and-unbounded-values: an unbounded ripple is ∞ in text.
 		{math.Inf(1), "∞", "∞ (gm falls to zero)"},
 	}
 	for _, tc := range tests {
