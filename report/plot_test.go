@@ -144,7 +144,7 @@ func TestPlotSinglePair(t *testing.T) {
 		t.Fatal(err)
 	}
 	_, text := svgText(t, data)
-	// design.md §4b: the report should make plain that a single pair
+	// docs/families.md#n-pair-and-p-pair: the report should make plain that a single pair
 	// loses gm; the absent pair's current is not drawn as if measured.
 	if !strings.Contains(text, "gm ripple ∞ (gm falls to zero)") {
 		t.Errorf("subtitle lacks the unbounded ripple: %q", text)
