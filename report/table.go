@@ -99,7 +99,7 @@ func singlePair(ev *objectives.Evaluation) bool {
 }
 
 // RippleText writes a gm ripple for reading: "42.5 %", or
-// "∞ (gm falls to zero)" when it is unbounded (design.md §4).
+// "∞ (gm falls to zero)" when it is unbounded (docs/metrics.md#missing-and-unbounded-values).
 func RippleText(r float64) string {
 	v, note := rippleParts(r)
 	if note != "" {
@@ -130,7 +130,7 @@ func handoverParts(v float64, single bool) (value, note string) {
 	}
 }
 
-// MetricsTable writes the metrics of an evaluation (design.md §4) as a
+// MetricsTable writes the metrics of an evaluation (docs/metrics.md) as a
 // short aligned table for a terminal: a line naming the topology,
 // process and conditions, one line per metric with an SI-prefixed unit
 // and what it means, and the caution that the figures are estimates.
