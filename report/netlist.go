@@ -281,7 +281,7 @@ func ngspiceDCPoints(sp sim.SweepSpec) (int, error) {
 }
 
 // Testbench writes a self-contained deck that ngspice -b runs as it is
-// (design.md §3): the model cards of a level-1 process (or, with
+// (docs/files.md#testbench-deck): the model cards of a level-1 process (or, with
 // opt.Level1Equivalent, of an EKV process's level-1 equivalent, which its
 // first lines announce), the supply VDD, a common-mode source VCM, a
 // zero-valued differential source VID driving inp = cm + VID/2 and
