@@ -147,7 +147,7 @@ func TestDCDeckGivesGM(t *testing.T) {
 	}
 }
 
-// TestDeckWithoutDCHasNoAnalysis: design.md §3, a deck carries no analysis
+// TestDeckWithoutDCHasNoAnalysis: docs/files.md#testbench-deck, a deck carries no analysis
 // unless asked, so a user can add their own (common practice, no source).
 func TestDeckWithoutDCHasNoAnalysis(t *testing.T) {
 	proc, _ := device.Builtin("demo18-l1")
