@@ -61,7 +61,7 @@ func TestMetricsTable(t *testing.T) {
 		{"both pairs", objectives.Metrics{GMMin: 1.9566e-4, GMMax: 2.2110e-4, GMRipple: 0.13, Power: 8.014e-5, Area: 4.2e-10, Switchover: 0.9833, TransitionWidth: 0.1941}, false,
 			[]string{"gm_min            195.7 µS", "gm_ripple          13.0 %", "area                420 µm²", "switchover        983.3 mV", "transition_width  194.1 mV"},
 			[]string{"∞", "—"}},
-		// design.md §4: unbounded ripple is ∞; a single pair has no handover.
+		// docs/metrics.md#missing-and-unbounded-values: unbounded ripple is ∞; a single pair has no handover.
 		{"single pair", objectives.Metrics{GMMin: 5.6e-10, GMMax: 2.056e-4, GMRipple: math.Inf(1), Power: 4.576e-5, Area: 6.5e-11, Switchover: nan, TransitionWidth: nan}, true,
 			[]string{"∞", "(gm falls to zero)", "—", "(single pair)", "560.0 pS", "65 µm²"},
 			[]string{"no complete handover", "NaN", "Inf"}},
