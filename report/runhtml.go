@@ -235,8 +235,8 @@ func specRows(spec *objectives.Spec) []pageRow {
 	return append(rows, pageRow{"search", search})
 }
 
-// glossary explains every metric and figure the page shows (design.md
-// §4, objectives.Metrics, optimize.Score and objectives.Targets.Check).
+// glossary explains every metric and figure the page shows (docs/metrics.md,
+// objectives.Metrics, optimize.Score and objectives.Targets.Check).
 func glossary() []pageTerm {
 	return []pageTerm{
 		{"gm", "the input stage's transconductance: d I_out / d V_id at V_id = 0, the exact derivative of the linearised circuit at each common-mode point (not a finite difference)."},
