@@ -38,7 +38,7 @@ func searchSpec(t *testing.T, name string, evaluations int) *sizing.Result {
 // the run are (over)written, every other file is left alone, and every
 // design file reads back (objectives.LoadDesign, what `eval` reads) into a
 // design whose evaluation has the candidate's metrics bit for bit
-// (design.md §3: "a design file that eval accepts unchanged").
+// (docs/files.md#candidate-files: eval reads them unchanged).
 func TestWriteRun(t *testing.T) {
 	res := searchSpec(t, "sensor-l1.yaml", 300)
 	dir := t.TempDir()
