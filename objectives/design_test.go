@@ -15,7 +15,7 @@ import (
 )
 
 // TestReadDesign checks that a full design file gives the values written,
-// with units parsed as design.md §3 says (SI prefixes; a temperature in °C
+// with units parsed as docs/files.md#quantities-and-units says (SI prefixes; a temperature in °C
 // is kelvin − 273.15, SI brochure 9th ed. §2.3.1).
 func TestReadDesign(t *testing.T) {
 	text := `topology: current-switch
@@ -76,7 +76,7 @@ params:
 	}
 }
 
-// TestReadDesignDefaults checks the defaults of design.md §3: temperature
+// TestReadDesignDefaults checks the defaults of docs/files.md#design-file: temperature
 // 27C (300.15 K), the sweep rail to rail in 10 mV steps, each missing sweep
 // bound at its rail, and every parameter left out at the family's default.
 func TestReadDesignDefaults(t *testing.T) {
@@ -197,7 +197,7 @@ func sameDesign(a, b *objectives.Design) string {
 }
 
 // TestFormatRoundTrip checks that Format writes a file that ReadDesign
-// reads back to the same values bit for bit (the contract of design.md §3:
+// reads back to the same values bit for bit (the contract of docs/files.md#design-file:
 // `run` writes designs that `eval` accepts unchanged), for random
 // in-bounds designs of every family and for the demo designs.
 func TestFormatRoundTrip(t *testing.T) {
@@ -269,7 +269,7 @@ func TestFormatProcessPath(t *testing.T) {
 }
 
 // TestLoadDesignRelativeProcess checks that a process path in a design file
-// is relative to that file (design.md §3).
+// is relative to that file (docs/files.md#design-file).
 func TestLoadDesignRelativeProcess(t *testing.T) {
 	data, err := os.ReadFile("../sim/device/processes/demo33-l1.yaml")
 	if err != nil {
@@ -297,7 +297,7 @@ func TestLoadDesignRelativeProcess(t *testing.T) {
 
 // TestReadDesignErrors checks that bad designs give a *units.Error naming
 // the file, the line and the field, what was given and what was wanted
-// (design.md §3 and the project rules for bad input).
+// (docs/files.md#bad-input and the project rules for bad input).
 func TestReadDesignErrors(t *testing.T) {
 	const head = "topology: n-pair\nprocess: demo18\nsupply: 1.8V\n" // lines 1–3
 	tests := []badYAML{
