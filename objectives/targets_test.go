@@ -179,7 +179,7 @@ func TestTargetsSet(t *testing.T) {
 }
 
 // TestViolationJSON checks that a violation writes its spec key and SI
-// values, with a missing value as null, as metrics do (design.md §3).
+// values, with a missing value as null, as metrics do (docs/metrics.md#missing-and-unbounded-values).
 func TestViolationJSON(t *testing.T) {
 	vs := allTargets().Check(objectives.Metrics{GMMin: 120e-6, GMRipple: math.Inf(1), Power: 80e-6, Area: 500e-12,
 		Switchover: math.NaN(), TransitionWidth: math.NaN()})
