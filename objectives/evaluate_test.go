@@ -48,7 +48,7 @@ func evaluate(t *testing.T, d *objectives.Design) *objectives.Evaluation {
 // (topologies/common.go, singles.go and one file per family): input pairs,
 // tails mirrored from reference branches at itail/kbias (so of width
 // w_tail/kbias), switches, mirrors and bias devices. Area is Σ W·L·M over
-// every transistor (design.md §4); no multipliers are used.
+// every transistor (docs/metrics.md#area); no multipliers are used.
 func gateArea(family string, v topologies.Values) float64 {
 	lt := v["lt"]
 	nPair := 2 * v["wn"] * v["ln"]
@@ -88,12 +88,12 @@ func gateArea(family string, v topologies.Values) float64 {
 }
 
 // TestMeasure checks the metrics of real evaluations of every family at
-// its defaults against their definitions (design.md §4): gm_min and gm_max
+// its defaults against their definitions (docs/metrics.md): gm_min and gm_max
 // are the extremes of the swept gm, power the largest value of the power
 // probe, area the gate area worked out from the parameters, the handover
 // metrics NaN for a single pair and those of the curve's share otherwise.
 // A single pair loses all its gm at its dead rail, where level-1 devices
-// are cut off (gm exactly 0), so its ripple is unbounded (design.md §4b,
+// are cut off (gm exactly 0), so its ripple is unbounded (docs/families.md#n-pair-and-p-pair,
 // common practice, no source).
 func TestMeasure(t *testing.T) {
 	for _, f := range topologies.All() {
@@ -135,7 +135,7 @@ func TestMeasure(t *testing.T) {
 			single := f.Name() == "n-pair" || f.Name() == "p-pair"
 			if single {
 				if !math.IsNaN(m.Switchover) || !math.IsNaN(m.TransitionWidth) {
-					t.Errorf("single pair: switchover %g, width %g, want NaN (design.md §4)", m.Switchover, m.TransitionWidth)
+					t.Errorf("single pair: switchover %g, width %g, want NaN (docs/metrics.md#missing-and-unbounded-values)", m.Switchover, m.TransitionWidth)
 				}
 				if !math.IsInf(m.GMRipple, 1) {
 					t.Errorf("single pair: ripple %g, want +Inf (gm 0 at its dead rail; gm %g … %g S)",
@@ -255,7 +255,7 @@ func TestMeasurePowerNPair(t *testing.T) {
 }
 
 // TestEvaluateDoc checks the JSON document of an evaluation against
-// design.md §3: the topology, the curve with keys vcm, gm, i_n, i_p at every
+// docs/files.md#eval-json: the topology, the curve with keys vcm, gm, i_n, i_p at every
 // sweep point, the seven metrics with null for NaN and Inf, and the devices
 // with their names; and that it reads back into objectives.JSON.
 func TestEvaluateDoc(t *testing.T) {
@@ -307,7 +307,7 @@ func TestEvaluateDoc(t *testing.T) {
 			}
 			metrics, _ := doc["metrics"].(map[string]any)
 			if len(metrics) != 8 {
-				t.Errorf("metrics %v, want the seven of design.md §3 and gm_id_min", metrics)
+				t.Errorf("metrics %v, want the seven of docs/files.md#eval-json and gm_id_min", metrics)
 			}
 			for _, k := range []string{"gm_min", "gm_max", "gm_ripple", "power", "area", "switchover", "transition_width", "gm_id_min"} {
 				val, ok := metrics[k]
