@@ -20,7 +20,7 @@ import (
 const DefaultStep = 10e-3
 
 // Design is one sized candidate: a family, its parameter values, the
-// process and the conditions it is evaluated at (design.md §3).
+// process and the conditions it is evaluated at (docs/files.md#design-file).
 type Design struct {
 	Topology   string
 	ProcessRef string // as written: a built-in name or a path relative to the file
