@@ -21,7 +21,7 @@ const Caution = "Estimates from compact models; verify with the foundry's models
 const DeadGM = 1e-3
 
 // Metrics are the figures of merit of one stage under one set of
-// conditions (design.md §4). Values without a meaning for the stage are
+// conditions (docs/metrics.md#scope-of-a-measurement). Values without a meaning for the stage are
 // NaN (a single pair's switchover) or +Inf (an unbounded ripple); JSON
 // writes both as null.
 type Metrics struct {
@@ -41,7 +41,7 @@ type Metrics struct {
 	GMOverIDMin float64
 }
 
-// MarshalJSON writes the metrics with their design.md names, NaN and Inf
+// MarshalJSON writes the metrics with their names in docs/metrics.md, NaN and Inf
 // as null.
 func (m Metrics) MarshalJSON() ([]byte, error) {
 	return json.Marshal(map[string]*float64{
