@@ -140,7 +140,7 @@ const minimal = "process: demo18-l1\nsupply: 3.3V\n"
 
 // TestReadSpecDefaults checks what a spec that leaves things out gets:
 // 27 °C, rail to rail in 10 mV steps, no targets, the default axes, every
-// family and the default search (issue 3; design.md §3 for the bare
+// family and the default search (issue 3; docs/files.md#quantities-and-units for the bare
 // temperature in °C).
 func TestReadSpecDefaults(t *testing.T) {
 	s, err := objectives.ReadSpec("specs/min.yaml", []byte(minimal), "")
@@ -268,7 +268,7 @@ func TestLoadSpecRelativeProcess(t *testing.T) {
 
 // TestReadSpecErrors checks that every kind of bad spec sheet gives a
 // *units.Error naming the file, the line and field, what was given and
-// what is wanted (design.md §3 and the rules' "bad user input").
+// what is wanted (docs/files.md#bad-input and the rules' "bad user input").
 func TestReadSpecErrors(t *testing.T) {
 	const head = "name: t\nprocess: demo18\nsupply: 1.8V\n" // lines 1–3
 	tests := []badYAML{
