@@ -137,7 +137,7 @@ func LoadSpec(path string) (*Spec, error) {
 
 // ReadSpec reads a spec sheet's text; file names it in errors and baseDir
 // is where a relative process path starts (an empty baseDir is the working
-// directory). The sheet is YAML with units (design.md §3):
+// directory). The sheet is YAML with units (docs/files.md#spec-sheet):
 //
 //	name: strain-gauge buffer           # free text
 //	process: demo18                     # built-in name, or a path relative to the spec
