@@ -10,7 +10,7 @@ import (
 )
 
 // TestRipple checks gm_ripple = gm_max/gm_min − 1 and its unbounded cases
-// against the definition of design.md §4 (0.42 means 42 %, a doubling is
+// against the definition of docs/metrics.md#gm_ripple (0.42 means 42 %, a doubling is
 // 1.0; gm falling to zero, below DeadGM·gm_max, gives an unbounded ripple).
 func TestRipple(t *testing.T) {
 	inf := math.Inf(1)
@@ -21,9 +21,9 @@ func TestRipple(t *testing.T) {
 		want         float64
 	}{
 		{"flat", 1e-4, 1e-4, 0},
-		{"doubling is 1.0", 2e-4, 4e-4, 1},                         // design.md §4
-		{"42 percent", 1.9e-4, 1.9e-4 * 1.42, 0.42},                // design.md §3/§4 example figure
-		{"root two bump", 1e-4, math.Sqrt2 * 1e-4, math.Sqrt2 - 1}, // current-switch peak, design.md §7
+		{"doubling is 1.0", 2e-4, 4e-4, 1},                         // docs/metrics.md#gm_ripple
+		{"42 percent", 1.9e-4, 1.9e-4 * 1.42, 0.42},                // docs/metrics.md#gm_ripple example figure
+		{"root two bump", 1e-4, math.Sqrt2 * 1e-4, math.Sqrt2 - 1}, // current-switch peak, docs/families.md#square-law-expectations
 		{"just above dead", 1.001e-3, 1, 1/1.001e-3 - 1},
 		{"at dead fraction", dead * 3e-4, 3e-4, inf},
 		{"below dead fraction", 1e-9, 3e-4, inf},
@@ -204,7 +204,7 @@ func TestHandoverLogistic(t *testing.T) {
 }
 
 // TestHandoverTwoStep checks a two-step handover (share 0 → 0.5 plateau → 1,
-// as the 1:3 mirrors give): design.md §4 puts the switchover in the middle
+// as the 1:3 mirrors give): docs/metrics.md#switchover puts the switchover in the middle
 // of the plateau when the two steps are symmetric.
 func TestHandoverTwoStep(t *testing.T) {
 	v := grid(0, 0.01, 181)
@@ -238,7 +238,7 @@ func TestHandoverTwoStep(t *testing.T) {
 		}
 	})
 	t.Run("1:3 mirror currents", func(t *testing.T) {
-		// Pair currents of the 1:3 mirror scheme (design.md §4b): a
+		// Pair currents of the 1:3 mirror scheme (docs/families.md#mirror-1to3): a
 		// fraction x of the NMOS tail I is diverted and three times it
 		// added to the PMOS tail: i_n = (1−x)·I, i_p = (1+3x)·I, x falling
 		// linearly from 1 to 0 over the lower step; the upper step is its
@@ -285,7 +285,7 @@ func TestHandoverTwoStep(t *testing.T) {
 }
 
 // TestHandoverEdges checks the cases where the handover, or part of it, is
-// undefined (design.md §4: a single pair has no handover) and the rules for
+// undefined (docs/metrics.md#switchover: a single pair has no handover) and the rules for
 // skipped points and non-monotone shares.
 func TestHandoverEdges(t *testing.T) {
 	nan := math.NaN()
@@ -395,8 +395,8 @@ func TestHandoverNonMonotoneSwitchover(t *testing.T) {
 	}
 }
 
-// TestMetricsJSON checks the JSON of Metrics: the seven keys of design.md
-// §3 plus gm_id_min (added by issue 3's search), null for NaN and ±Inf, and UnmarshalJSON reading it back (null as
+// TestMetricsJSON checks the JSON of Metrics: the seven keys of docs/files.md#eval-json
+// plus gm_id_min (added by issue 3's search), null for NaN and ±Inf, and UnmarshalJSON reading it back (null as
 // +Inf for gm_ripple, NaN elsewhere; finite values bit for bit, since
 // encoding/json writes the shortest decimal that reads back exactly).
 func TestMetricsJSON(t *testing.T) {
