@@ -56,6 +56,9 @@ type Evaluation struct {
 	// Findings are the always-on checks the stage fails (Assess): empty
 	// for a buildable candidate.
 	Findings []Finding
+	// SummingCurrent is the summing stage's supply current counted in
+	// power (topologies.SummingCurrent), A.
+	SummingCurrent float64
 }
 
 // Curve returns the gm and pair-current curves of the sweep.
@@ -133,6 +136,13 @@ func Evaluate(d *Design) (*Evaluation, error) {
 	}
 	st, s, res := sw.st, sw.s, sw.res
 	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: Measure(st, res), Findings: sw.findings}
+	c := st.Circuit
+	var inMax, ipMax float64
+	for i := range res.VCM {
+		inMax = math.Max(inMax, res.Probe[c.ProbeIndex(topologies.ProbeIN)][i])
+		ipMax = math.Max(ipMax, res.Probe[c.ProbeIndex(topologies.ProbeIP)][i])
+	}
+	ev.SummingCurrent = topologies.SummingCurrent(inMax, ipMax)
 	mid := res.Len() / 2
 	ev.MidVCM = res.VCM[mid]
 	for k, op := range s.Devices(s.PointAt(res, mid)) {

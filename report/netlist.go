@@ -127,6 +127,10 @@ func Subckt(out io.Writer, d *objectives.Design, st *topologies.Stage) error {
 // TestbenchOptions choose what a testbench deck carries beyond the
 // circuit.
 type TestbenchOptions struct {
+	// SummingCurrent is the summing stage's bias the evaluation counted
+	// in power (objectives.Evaluation.SummingCurrent), A; when positive
+	// the deck states it beside its ideal summing nodes.
+	SummingCurrent float64
 	// DC makes the deck give gm directly: a .control block runs the
 	// design's common-mode sweep (the .dc line) twice, at VID = +GMStep
 	// and at VID = −GMStep, and prints gm = (I⁺(VOUT) − I⁻(VOUT))/(2·GMStep)
@@ -329,6 +333,11 @@ func Testbench(out io.Writer, d *objectives.Design, st *topologies.Stage, opt Te
 	fmt.Fprintf(w, ".temp %s\n", num(d.TempK-units.ZeroCelsius))
 	fmt.Fprintln(w, "*")
 	fmt.Fprintln(w, "* bench: supply, inputs, summing nodes, output current")
+	fmt.Fprintln(w, "* The summing nodes are ideal sources here, so that gm compares as it is; the folded-cascode")
+	fmt.Fprintln(w, "* summing stage they stand for draws i_n,max + 10 % of the largest pair current from the supply")
+	if opt.SummingCurrent > 0 {
+		fmt.Fprintf(w, "* (its folding current, counted in power: %s A at %s V)\n", num(opt.SummingCurrent), num(d.Supply))
+	}
 	mid := 0.5 * (d.Sweep.Low + d.Sweep.High)
 	fmt.Fprintf(w, "VCM cm 0 DC %s\n", num(mid))
 	fmt.Fprintln(w, "VID id 0 DC 0")

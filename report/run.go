@@ -114,7 +114,7 @@ func WriteRun(dir string, res *sizing.Result, opt RunOptions) error {
 				return fmt.Errorf("write run: candidate %s: %w", c.ID, err)
 			}
 		}
-		if err := Testbench(&deck, c.Design, st, TestbenchOptions{DC: true, Level1Equivalent: true}); err != nil {
+		if err := Testbench(&deck, c.Design, st, TestbenchOptions{DC: true, Level1Equivalent: true, SummingCurrent: c.Eval.SummingCurrent}); err != nil {
 			return fmt.Errorf("write run: candidate %s: %w", c.ID, err)
 		}
 		if err := write(CandidateNetlist(c.ID), withRunID(deck.Bytes(), c.ID, opt.RunID)); err != nil {

@@ -261,7 +261,7 @@ func TestParetoFigureMarks(t *testing.T) {
 // faded line and every family's best as a bold one (each bold line has
 // its legend entry, a short line of the same style).
 func TestCurvesFigureFront(t *testing.T) {
-	res := searchSpec(t, "sensor-l1.yaml", 300)
+	res := searchSpec(t, "strain-gauge.yaml", 300)
 	fig, err := CurvesFigure(res)
 	if err != nil {
 		t.Fatal(err)
