@@ -162,7 +162,7 @@ func report(op sim.DeviceOp, dev topologies.Device, tempK float64) DeviceReport 
 	}
 }
 
-// JSON is the document `eval --json` writes (design.md §3).
+// JSON is the document `eval --json` writes (docs/files.md#eval-json).
 type JSON struct {
 	Topology    string         `json:"topology"`
 	Process     string         `json:"process"`
