@@ -38,7 +38,7 @@ func AxisNames() []string {
 }
 
 // DefaultPareto returns the trade-off axes of a spec that names none:
-// gm ripple, power and area (design.md §6).
+// gm ripple, power and area (docs/search.md#trade-off-axes).
 func DefaultPareto() []string { return []string{AxisGMRipple, AxisPower, AxisArea} }
 
 // Natural scales of the trade-off axes when the spec sets no target on
