@@ -77,7 +77,7 @@ func TestGoodDesignEvaluates(t *testing.T) {
 }
 
 // TestBadInput runs malformed design and process files through the
-// program. The contract (issue 2 and design.md §3): exit code 2 and one
+// program. The contract (issue 2 and docs/files.md#bad-input): exit code 2 and one
 // first line on stderr naming the file, the line and the field, with what
 // was given and what was wanted.
 func TestBadInput(t *testing.T) {
