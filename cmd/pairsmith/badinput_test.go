@@ -234,7 +234,7 @@ func flagCases() []badCase {
 
 // TestBadInputTable runs broken process files, design files, spec sheets
 // and flags of every command through the program. The contract (issue 7,
-// and design.md §3): bad input exits 2, writes nothing on stdout, makes
+// and docs/files.md#bad-input): bad input exits 2, writes nothing on stdout, makes
 // no output directory, and its first stderr line names the file, the
 // line and the field, what was given and what was wanted.
 func TestBadInputTable(t *testing.T) {
