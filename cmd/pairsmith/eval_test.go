@@ -141,8 +141,8 @@ func TestDemoDesigns(t *testing.T) {
 	}
 }
 
-// TestEvalJSON checks the document of design.md §3 and the metric
-// definitions of design.md §4 on the demo designs.
+// TestEvalJSON checks the document of docs/files.md#eval-json and the metric
+// definitions of docs/metrics.md on the demo designs.
 func TestEvalJSON(t *testing.T) {
 	for _, name := range []string{"n-pair", "p-pair", "current-switch", "complementary-33"} {
 		t.Run(name, func(t *testing.T) {
@@ -151,7 +151,7 @@ func TestEvalJSON(t *testing.T) {
 				t.Errorf("topology = %v", doc["topology"])
 			}
 			supply := doc["supply"].(float64)
-			// design.md §3: curve points with vcm, gm, i_n, i_p, in SI.
+			// docs/files.md#eval-json: curve points with vcm, gm, i_n, i_p, in SI.
 			curve, ok := doc["curve"].([]any)
 			// 0 V to the supply in 10 mV steps, both ends included.
 			if wantN := int(math.Round(supply/0.01)) + 1; !ok || len(curve) != wantN {
@@ -180,13 +180,13 @@ func TestEvalJSON(t *testing.T) {
 					t.Errorf("metrics lack %q", k)
 				}
 			}
-			// design.md §4: gm_min and gm_max are the extremes of the curve.
+			// docs/metrics.md#gm_min-and-gm_max: gm_min and gm_max are the extremes of the curve.
 			if m["gm_min"] != gmMin || m["gm_max"] != gmMax {
 				t.Errorf("gm_min %v gm_max %v, curve extremes %v %v", m["gm_min"], m["gm_max"], gmMin, gmMax)
 			}
 			single := name == "n-pair" || name == "p-pair"
 			if single {
-				// design.md §4: a single pair loses gm near its dead rail,
+				// docs/metrics.md#missing-and-unbounded-values: a single pair loses gm near its dead rail,
 				// so its ripple is unbounded (null); it has no handover.
 				if m["gm_ripple"] != nil {
 					t.Errorf("gm_ripple = %v, want null for a single pair", m["gm_ripple"])
@@ -195,7 +195,7 @@ func TestEvalJSON(t *testing.T) {
 					t.Errorf("switchover %v transition_width %v, want null for a single pair", m["switchover"], m["transition_width"])
 				}
 			} else {
-				// design.md §4: ripple = gm_max/gm_min − 1; the handover
+				// docs/metrics.md#gm_ripple: ripple = gm_max/gm_min − 1; the handover
 				// lies inside the range.
 				r, ok := m["gm_ripple"].(float64)
 				if !ok || math.Abs(r-(gmMax/gmMin-1)) > 1e-12 {
@@ -226,7 +226,7 @@ func TestEvalJSON(t *testing.T) {
 
 // TestEvalText checks the text form: every metric is listed, a single
 // pair shows the unbounded ripple and the missing handover in words
-// (design.md §4: "∞ in text"), and the caution ends the table.
+// (docs/metrics.md#missing-and-unbounded-values: ∞ in text), and the caution ends the table.
 func TestEvalText(t *testing.T) {
 	code, stdout, stderr := runCmd(t, "eval", filepath.Join(designsDir, "n-pair.yaml"))
 	if code != exitOK {
@@ -435,7 +435,7 @@ func spiceDevices(deck string) []string {
 }
 
 // TestNetlist: the .subckt's device lines carry the names the JSON gives
-// (design.md §3), and --testbench -o writes the deck to a file.
+// (docs/files.md#testbench-deck), and --testbench -o writes the deck to a file.
 func TestNetlist(t *testing.T) {
 	for _, name := range []string{"current-switch", "zener", "p-pair"} {
 		design := filepath.Join(designsDir, name+".yaml")
@@ -471,7 +471,7 @@ func TestNetlist(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	// design.md §3: the bench sources and no analysis unless asked.
+	// docs/files.md#testbench-deck: the bench sources and no analysis unless asked.
 	for _, src := range []string{"VDD ", "VCM ", "VID ", "VOUT ", ".model nch", ".model pch", ".end"} {
 		if !bytes.Contains(deck, []byte("\n"+src)) {
 			t.Errorf("testbench lacks a %q line", src)
@@ -500,7 +500,7 @@ func TestNetlist(t *testing.T) {
 
 // TestTestbenchAgreesWithNgspice runs the deck that `netlist --testbench
 // --dc` writes for the level-1 demo design through ngspice -b, unedited
-// (design.md §3), and compares the NMOS and PMOS pair currents at every
+// (docs/files.md#testbench-deck), and compares the NMOS and PMOS pair currents at every
 // sweep point with the curve `eval --json` gives for the same file.
 // Source: ngspice (Debian package); tolerance 0.1 % of the pair's largest
 // current, the branch-current agreement issue 2 asks for.
@@ -516,7 +516,7 @@ func TestTestbenchAgreesWithNgspice(t *testing.T) {
 		t.Fatal(err)
 	}
 	// The pairs' transistor names, from the Go API the command wraps; the
-	// deck keeps the names the JSON gives (design.md §3).
+	// deck keeps the names the JSON gives (docs/files.md#testbench-deck).
 	d, err := objectives.LoadDesign(design)
 	if err != nil {
 		t.Fatal(err)
