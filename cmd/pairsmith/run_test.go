@@ -224,7 +224,7 @@ func TestRunDelivers(t *testing.T) {
 		}
 	}
 
-	// design.md §3: `eval` accepts every design file unchanged and
+	// docs/files.md#candidate-files: `eval` accepts every design file unchanged and
 	// reproduces the candidate's metrics exactly (bit-identical floats,
 	// null for null), from another working directory.
 	t.Chdir(t.TempDir())
@@ -362,7 +362,7 @@ func TestRunDelivers(t *testing.T) {
 
 // TestRunTestbenchInNgspice simulates the best candidate's deck as `run`
 // wrote it in ngspice (Debian package) at VID = ±0.1 mV and compares gm,
-// the central difference of I(VOUT) (design.md §3), with the curve `eval`
+// the central difference of I(VOUT) (docs/files.md#direct-gm-readout), with the curve `eval`
 // gives for the candidate's design file: within 1 % of the peak at every
 // point, the agreement the families' ngspice checks hold.
 func TestRunTestbenchInNgspice(t *testing.T) {
@@ -524,7 +524,7 @@ search: {evaluations: 100, seed: 1}
 
 // TestRunBadSpecs runs broken spec sheets: each exits 2, writes nothing,
 // and the first stderr line names the file, the line and the field
-// (issue 3, "bad input"; design.md §3).
+// (issue 3, "bad input"; docs/files.md#bad-input).
 func TestRunBadSpecs(t *testing.T) {
 	dir := t.TempDir()
 	writeFile(t, dir, "mine.yaml", goodProcess)
