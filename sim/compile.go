@@ -40,10 +40,10 @@ type fixedNode struct {
 }
 
 type mosStamp struct {
-	inst       device.Instance
-	id         int  // instance number: equal for transistors sharing one
-	frozen     bool // all terminals constant during a sweep's continuation
-	d, g, s, b int  // variable indices
+	inst       device.Instance // this transistor's own
+	id         int             // class: equal for transistors whose instances are alike
+	frozen     bool            // all terminals constant during a sweep's continuation
+	d, g, s, b int             // variable indices
 	// work slots of the channel's eight Jacobian entries: rows d and s,
 	// columns d, g, s, b; and residual rows of d, s, b.
 	dd, dg, ds, db, sd, sg, ss, sb int
@@ -294,14 +294,15 @@ func compile(c *Circuit) (*system, error) {
 	for k, e := range c.VCVSs {
 		s.addBranch(branchIdx[len(floating)+k], s.idx[e.P], s.idx[e.N], s.idx[e.CP], s.idx[e.CN], e.Gain, Drive{}, -1)
 	}
-	// Transistors of the same card and size share one instance, so that
-	// load can recognise two evaluations with identical inputs (the two
-	// halves of a pair at vid = 0) and do the work once.
+	// Every transistor has an instance of its own, so that a per-device
+	// variation (SetInstance) changes that device alone. Transistors of
+	// the same card and size share a class number, so that load can
+	// recognise two evaluations with identical inputs (the two halves of
+	// a pair at vid = 0) and do the work once.
 	type instKey struct {
 		m device.Model
 		g device.Geometry
 	}
-	insts := map[instKey]device.Instance{}
 	ids := map[instKey]int{}
 	constant := func(v int) bool { // an unknown kept during continuation, or a fixed node that does not move
 		if v < s.n {
@@ -310,15 +311,15 @@ func compile(c *Circuit) (*system, error) {
 		return !moves[v-s.n]
 	}
 	for _, m := range c.Mosfets {
+		inst, err := m.Model.Instance(m.Geom, c.TempK)
+		if err != nil {
+			return nil, fmt.Errorf("circuit %q: transistor %s: %w", c.Title, m.Name, err)
+		}
 		key := instKey{m.Model, m.Geom}
-		inst, ok := insts[key]
+		id, ok := ids[key]
 		if !ok {
-			var err error
-			if inst, err = m.Model.Instance(m.Geom, c.TempK); err != nil {
-				return nil, fmt.Errorf("circuit %q: transistor %s: %w", c.Title, m.Name, err)
-			}
-			insts[key] = inst
-			ids[key] = len(ids)
+			id = len(ids)
+			ids[key] = id
 		}
 		d, g, so, b := s.idx[m.D], s.idx[m.G], s.idx[m.S], s.idx[m.B]
 		// Stamps nobody reads go to trash slots, a different one for each
@@ -335,7 +336,7 @@ func compile(c *Circuit) (*system, error) {
 			}
 			return s.rTrash + k
 		}
-		s.mos = append(s.mos, mosStamp{inst: inst, id: ids[key],
+		s.mos = append(s.mos, mosStamp{inst: inst, id: id,
 			frozen: constant(d) && constant(g) && constant(so) && constant(b),
 			d:      d, g: g, s: so, b: b,
 			dd: sl(0, d, d), dg: sl(1, d, g), ds: sl(2, d, so), db: sl(3, d, b),

@@ -154,6 +154,34 @@ func (s *Solver) newBuffers() {
 	s.memo = make([]mosMemo, len(sys.mos))
 }
 
+// SetInstance replaces the instance of transistor i (its index in
+// Circuit.Mosfets) with inst: a variation of that device alone, such as a
+// mismatch made by sizing a perturbed copy of its card,
+//
+//	card := *nmos
+//	card.VTO += dvt
+//	inst, err := card.Instance(geom, c.TempK)
+//
+// Every transistor has an instance of its own, so no other device
+// changes. The circuit's element keeps its card and geometry (a netlist
+// exports the nominal device); the next sweep or solve uses inst.
+func (s *Solver) SetInstance(i int, inst device.Instance) error {
+	sys := s.sys
+	if i < 0 || i >= len(sys.mos) {
+		return fmt.Errorf("circuit %q: transistor index %d, want 0 … %d", sys.c.Title, i, len(sys.mos)-1)
+	}
+	if inst == nil {
+		return fmt.Errorf("circuit %q: transistor %s: no instance given", sys.c.Title, sys.c.Mosfets[i].Name)
+	}
+	m := &sys.mos[i]
+	m.inst = inst
+	// A class of its own (classes are numbered below len(sys.mos)): no
+	// evaluation of another transistor stands for this one's.
+	m.id = len(sys.mos) + i
+	s.memo[i].ok = false
+	return nil
+}
+
 // Circuit returns the circuit the solver was built from.
 func (s *Solver) Circuit() *Circuit { return s.sys.c }
 
