@@ -14,8 +14,8 @@ import (
 	"pairsmith/units"
 )
 
-// The built-in processes are the project's invented demo data (design
-// notes §3); these are the numbers they were specified with. 27 °C =
+// The built-in processes are the project's invented demo data
+// (docs/models.md#built-in-demo-processes); these are the numbers they were specified with. 27 °C =
 // 300.15 K (SI brochure, 9th edition, §2.3.1).
 func TestBuiltins(t *testing.T) {
 	type card struct{ vto, kp, gamma, phi, lambda, tcv, bex float64 }
