@@ -25,7 +25,7 @@ var (
 	pWTP   = Param{Name: "wtp", Unit: units.Metre, Size: Width, Min: 0.5e-6, Max: 2000e-6, Default: 40e-6, Scale: Log, Doc: "width of the PMOS tail (and current-source) transistors"}
 	pLT    = Param{Name: "lt", Unit: units.Metre, Size: Length, Min: 0.18e-6, Max: 10e-6, Default: 2e-6, Scale: Log, Doc: "length of all tail, mirror and reference transistors"}
 	pKBias = Param{Name: "kbias", Unit: units.Dimensionless, Min: 1, Max: 10, Default: 4, Scale: Linear, Doc: "tail current over reference-branch current"}
-	pVHead = Param{Name: "vhead", Unit: units.Volt, Size: Headroom, Min: 0.05, Max: 0.6, Default: 0.25, Scale: Linear, Doc: "headroom of the summing nodes from the rails (at least the summing stage's V_DSAT plus the saturation margin)"}
+	pVHead = Param{Name: "vhead", Unit: units.Volt, Size: Headroom, Min: 0.05, Max: 0.6, Default: 0.2, Scale: Linear, Doc: "headroom of the summing nodes from the rails (at least the summing stage's V_DSAT plus the saturation margin)"}
 )
 
 func pairParams(n, p bool) []Param {

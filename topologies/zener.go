@@ -25,7 +25,7 @@ var (
 	pWZ = Param{Name: "wz", Unit: units.Metre, Size: Width, Min: 0.5e-6, Max: 5000e-6, Default: 1700e-6, Scale: Log, Doc: "width of the zener's PMOS shunt (wide: a sharp knee)"}
 	pLZ = Param{Name: "lz", Unit: units.Metre, Size: Length, Min: 0.18e-6, Max: 20e-6, Default: 10e-6, Scale: Log, Doc: "length of the zener's PMOS shunt"}
 	pWR = Param{Name: "wr", Unit: units.Metre, Size: Width, Min: 0.25e-6, Max: 500e-6, Default: 0.5e-6, Scale: Log, Doc: "width of the zener's NMOS replica (length ln)"}
-	pIR = Param{Name: "ir", Unit: units.Ampere, Min: 0.01e-6, Max: 500e-6, Default: 0.1e-6, Scale: Log, Doc: "bias current of the zener's replica"}
+	pIR = Param{Name: "ir", Unit: units.Ampere, Min: 0.01e-6, Max: 500e-6, Default: 0.125e-6, Scale: Log, Doc: "bias current of the zener's replica"}
 )
 
 func (zener) Name() string { return "zener" }
