@@ -79,7 +79,7 @@ func (g GeometryViolation) String() string {
 }
 
 // The summing stage the pairs' drains fold into (docs/buildable.md, "The
-// summing stage"): a folded cascode whose PMOS current sources at the
+// summing stage's cost"): a folded cascode whose PMOS current sources at the
 // supply carry each NMOS input's drain current plus the cascode branch's,
 // with an NMOS cascoded mirror at ground taking each PMOS input's drain
 // current. Its sources and mirror devices sit between the rails and the
