@@ -1,10 +1,11 @@
 // Package docscheck checks the citations of the project's documentation
 // pages in docs/: a citation of a page, or of a section of it by its
-// anchor ("docs/metrics.md#gm_ripple"), in Go source or in the top-level
-// Markdown files must name a page that exists and a heading that page
-// has; links between the pages must resolve; a page must not have two
-// headings with the same anchor; and nothing may cite the design notes
-// that docs/ replaced, which are not part of the repository.
+// anchor ("docs/metrics.md#gm_ripple") or by its heading in quotes after
+// a comma (docs/metrics.md, "gm_ripple"), in Go source or in the
+// top-level Markdown files must name a page that exists and a heading
+// that page has; links between the pages must resolve; a page must not
+// have two headings with the same anchor; and nothing may cite the design
+// notes that docs/ replaced, which are not part of the repository.
 //
 // Anchors are those GitHub gives Markdown headings (see Anchor), so that
 // a citation is also a working link on the project's web pages.
@@ -54,6 +55,12 @@ var (
 	// "docs/" not preceded by a path character, a page name, and
 	// optionally "#" and the anchor.
 	citePattern = regexp.MustCompile(`(?:^|[^\w./-])(` + DocsDir + `/([\w.-]+\.md)(?:#([\p{L}\p{N}_-]+))?)`)
+	// quotedPattern matches a section named by its heading right after a
+	// citation of its page: `, "Heading"`, the heading possibly broken
+	// across comment lines.
+	quotedPattern = regexp.MustCompile(`^,\s*"((?:[^"\n]|\n[ \t]*//[ \t]*)+)"`)
+	// lineBreak is a comment's line break inside a quoted heading.
+	lineBreak = regexp.MustCompile(`\s*\n[ \t]*//[ \t]*`)
 	// linkPattern matches the target of a relative Markdown link between
 	// pages: "](metrics.md#gm_ripple)", "](#targets)".
 	linkPattern = regexp.MustCompile(`\]\(((?:[\w.-]+\.md)?(?:#[\p{L}\p{N}_-]*)?)\)`)
@@ -187,6 +194,10 @@ func Check(root string) (Result, error) {
 			anchor := ""
 			if m[6] >= 0 {
 				anchor = string(text[m[6]:m[7]])
+			} else if q := quotedPattern.FindSubmatch(text[m[3]:]); q != nil {
+				heading := lineBreak.ReplaceAllString(string(q[1]), " ")
+				cite += `, "` + heading + `"`
+				anchor = Anchor(heading)
 			}
 			if why := resolve(pages, string(text[m[4]:m[5]]), anchor); why != "" {
 				res.Problems = append(res.Problems, Problem{File: file, Line: lineAt(text, m[2]), Cite: cite, Why: why})

@@ -136,6 +136,15 @@ func TestCheckFindsProblems(t *testing.T) {
 		{"missing heading", map[string]string{
 			"a/a.go": "package a\n\n\n// See " + docs + "metrics.md" + anchor + "gm_ripple.\n",
 		}, []string{"has no heading with the anchor #gm_ripple"}, []int{4}},
+		{"good quoted headings", map[string]string{
+			"a/a.go": "package a\n\n// See (" + docs + "metrics.md, \"gm ripple\") and (" + docs + "metrics.md, \"gm\n// ripple\").\n",
+		}, nil, nil},
+		{"missing quoted heading", map[string]string{
+			"a/a.go": "package a\n\n// The power (" + docs + "metrics.md, \"Power budget\").\n",
+		}, []string{"has no heading with the anchor #power-budget"}, []int{3}},
+		{"missing quoted heading across a line break", map[string]string{
+			"a/a.go": "package a\n\n// The stage (" + docs + "files.md, \"Run\n//  ids\").\n",
+		}, []string{`files.md, "Run ids"`}, []int{3}},
 		{"missing heading in top-level Markdown", map[string]string{
 			"DEVELOPERS.md": "line\n| `objectives/` | metrics (" + docs + "metrics.md" + anchor + "area) |\n",
 		}, []string{"has no heading with the anchor #area"}, []int{2}},
