@@ -107,7 +107,7 @@ func sweep(d *Design) (*swept, error) {
 	if err := CheckPhysical(st, res); err != nil {
 		return nil, err
 	}
-	fs := Assess(st, res, s.DeviceOps(res), d.Process.Kind, d.Margin(), d.TempK)
+	fs := Assess(st, res, s.DeviceOps(res, Checked(st, d.Process.Kind)), d.Process.Kind, d.Margin(), d.TempK)
 	return &swept{st: st, s: s, res: res, findings: fs}, nil
 }
 
@@ -172,7 +172,10 @@ type JSON struct {
 	Metrics     Metrics        `json:"metrics"`
 	MidVCM      float64        `json:"devices_vcm"`
 	Devices     []DeviceReport `json:"devices"`
-	Caution     string         `json:"caution"`
+	// Checks are the always-on checks the stage fails (empty when it is
+	// buildable as evaluated; docs/buildable.md).
+	Checks  []Finding `json:"checks"`
+	Caution string    `json:"caution"`
 }
 
 // Doc returns the evaluation as its JSON document.
@@ -181,7 +184,7 @@ func (ev *Evaluation) Doc() JSON {
 		Topology: ev.Design.Topology, Process: ev.Design.Process.Name,
 		Supply: ev.Design.Supply, Temperature: ev.Design.TempK,
 		Curve: ev.Curve(), Metrics: ev.Metrics, MidVCM: ev.MidVCM, Devices: ev.Devices,
-		Caution: Caution,
+		Checks: append([]Finding{}, ev.Findings...), Caution: Caution,
 	}
 }
 

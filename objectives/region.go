@@ -1,6 +1,7 @@
 package objectives
 
 import (
+	"encoding/json"
 	"fmt"
 	"math"
 	"strings"
@@ -123,6 +124,26 @@ type Finding struct {
 	What   string // the words for it
 }
 
+// MarshalJSON writes {"check", "device", "role", "points", "from", "to",
+// "vcm", "value", "limit", "amount", "what"} in SI units, a common mode
+// that does not apply (a geometry finding) as null.
+func (f Finding) MarshalJSON() ([]byte, error) {
+	return json.Marshal(struct {
+		Check  string   `json:"check"`
+		Device string   `json:"device"`
+		Role   string   `json:"role"`
+		Points int      `json:"points"`
+		From   *float64 `json:"from"`
+		To     *float64 `json:"to"`
+		VCM    *float64 `json:"vcm"`
+		Value  *float64 `json:"value"`
+		Limit  *float64 `json:"limit"`
+		Amount float64  `json:"amount"`
+		What   string   `json:"what"`
+	}{f.Check, f.Device, f.Role, f.Points, finite(f.From), finite(f.To), finite(f.VCM),
+		finite(f.Value), finite(f.Limit), f.Amount, f.What})
+}
+
 func (f Finding) String() string {
 	where := ""
 	if f.Points > 0 {
@@ -173,7 +194,11 @@ func Assess(st *topologies.Stage, res *sim.Result, ops *sim.DeviceSweep, kind st
 		}
 		return side == topologies.NoSide || !(tot > 0) || mine <= 0.5*tot
 	}
+	want := Checked(st, kind)
 	for k, dev := range st.Devices {
+		if !want[k] {
+			continue
+		}
 		imax := 0.0
 		for i := 0; i < n; i++ {
 			imax = math.Max(imax, math.Abs(ops.Op[i][k].ID))
@@ -219,6 +244,17 @@ func Assess(st *topologies.Stage, res *sim.Result, ops *sim.DeviceSweep, kind st
 				out = append(out, *f)
 			}
 		}
+	}
+	return out
+}
+
+// Checked returns which devices of a stage Assess needs the operating
+// points of on a process of that model kind: every device on level 1
+// (validity), those whose duty is saturation otherwise.
+func Checked(st *topologies.Stage, kind string) []bool {
+	out := make([]bool, len(st.Devices))
+	for k, d := range st.Devices {
+		out[k] = kind == "level1" || d.Duty == topologies.Saturated
 	}
 	return out
 }

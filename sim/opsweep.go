@@ -13,8 +13,10 @@ type DeviceSweep struct {
 // DeviceOps returns the operating point of every transistor at every
 // point of a sweep solved by s into res, for checks that must hold at
 // every point (saturation, model validity). It evaluates each device
-// once per point from the stored solution, without solving again.
-func (s *Solver) DeviceOps(res *Result) *DeviceSweep {
+// once per point from the stored solution, without solving again. When
+// want is not nil, only the transistors k with want[k] are evaluated (the
+// others' operating points are left zero).
+func (s *Solver) DeviceOps(res *Result, want []bool) *DeviceSweep {
 	n := res.Len()
 	nm := len(s.sys.mos)
 	out := &DeviceSweep{VCM: append([]float64(nil), res.VCM...), Op: make([][]device.OpPoint, n)}
@@ -26,7 +28,9 @@ func (s *Solver) DeviceOps(res *Result) *DeviceSweep {
 		s.setFixed(v, res.VCM[i], res.VID, 1)
 		row := flat[i*nm : (i+1)*nm : (i+1)*nm]
 		for k, m := range s.sys.mos {
-			row[k] = m.inst.Op(v[m.d], v[m.g], v[m.s], v[m.b])
+			if want == nil || want[k] {
+				row[k] = m.inst.Op(v[m.d], v[m.g], v[m.s], v[m.b])
+			}
 		}
 		out.Op[i] = row
 	}

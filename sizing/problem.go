@@ -31,6 +31,14 @@ const CoarseReject = 0.5
 // less than that (ngspice on level-1 decks agrees to about 0.1 %).
 const Margin = 0.005
 
+// CheckWeight multiplies the amounts of the always-on checks (geometry,
+// saturation, level-1 validity) in the violation the search ranks by, so
+// that among infeasible candidates one that cannot be built ranks behind
+// one that only misses a target by up to ten times as much: the nearest
+// misses reported are buildable wherever the search found buildable ones
+// (our choice, docs/buildable.md).
+const CheckWeight = 10
+
 // Problem is the input-stage design problem of a spec sheet: one family
 // of the spec's topologies per island, each parameter mapped from [0, 1]
 // onto its bounds (log or linear, as the family declares).
@@ -198,8 +206,12 @@ func (p *Problem) measure(d *objectives.Design, coarse bool) (optimize.Outcome, 
 	}
 	vs := p.Checks(m, fs, p.targets)
 	amounts := make([]float64, len(vs))
+	nt := len(vs) - len(objectives.CheckNames())
 	for i, v := range vs {
 		amounts[i] = v.Amount
+		if i >= nt {
+			amounts[i] *= CheckWeight
+		}
 	}
 	return optimize.Outcome{
 		Objectives: p.Spec.Axes(m),
