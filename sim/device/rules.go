@@ -106,13 +106,16 @@ func readRules(root *units.Map, pos map[string]fieldPos) (Rules, error) {
 }
 
 // Snap returns x on the grid: the nearest multiple of Grid (x itself
-// without a grid). Sizes are snapped before they are evaluated or
+// without a grid), and at least one grid step for a positive x. Sizes are snapped before they are evaluated or
 // exported, so that what is simulated is what is drawn.
 func (r Rules) Snap(x float64) float64 {
 	if !(r.Grid > 0) || math.IsNaN(x) || math.IsInf(x, 0) {
 		return x
 	}
 	n := math.Round(x / r.Grid)
+	if n < 1 && x > 0 {
+		n = 1 // a positive size never rounds to nothing: it is one grid step, and below any minimum
+	}
 	// Rounded to the grid's own decimal digits, so that 0.22 µm on a 5 nm
 	// grid is 2.2e-7 exactly as written, not 2.2000000000000002e-7.
 	return roundSig(n*r.Grid, 12)

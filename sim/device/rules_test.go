@@ -84,6 +84,7 @@ func TestSnapAndCheck(t *testing.T) {
 	r := Rules{WMin: 0.22e-6, LMin: 0.18e-6, LMax: 50e-6, Grid: 5e-9}
 	for _, c := range []struct{ in, want float64 }{
 		{0.2213e-6, 0.220e-6}, {0.2226e-6, 0.225e-6}, {17.5523e-6, 17.55e-6}, {1e-6, 1e-6}, {117.2e-9, 115e-9},
+		{5e-12, 5e-9}, {2.4e-9, 5e-9},
 	} {
 		if got := r.Snap(c.in); got != c.want {
 			t.Errorf("Snap(%g) = %.17g, want %g", c.in, got, c.want)
