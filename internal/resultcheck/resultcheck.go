@@ -23,8 +23,13 @@ type summary struct {
 		ID      string          `json:"id"`
 		Design  string          `json:"design"`
 		Netlist string          `json:"netlist"`
-		Pareto  bool            `json:"pareto"`
-		Metrics json.RawMessage `json:"metrics"`
+		Pareto     bool            `json:"pareto"`
+		Feasible   bool            `json:"feasible"`
+		Metrics    json.RawMessage `json:"metrics"`
+		Violations []struct {
+			Target string  `json:"target"`
+			Amount float64 `json:"amount"`
+		} `json:"violations"`
 	} `json:"candidates"`
 }
 
@@ -35,7 +40,10 @@ type summary struct {
 // directory holds nothing else; pareto.csv lists exactly the Pareto
 // candidates; report.html carries the run's id; and every design file,
 // evaluated as `pairsmith eval` evaluates it, gives the metrics
-// summary.json lists, bit for bit.
+// summary.json lists, bit for bit, and the always-on checks' findings
+// that summary.json's violations imply: none for a feasible candidate,
+// none exactly when its check violations are all zero
+// (docs/buildable.md).
 func Verify(dir string) (string, error) {
 	raw, err := os.ReadFile(filepath.Join(dir, "summary.json"))
 	if err != nil {
@@ -80,6 +88,16 @@ func Verify(dir string) (string, error) {
 		}
 		if want, err := compact(c.Metrics); err != nil || !bytes.Equal(got, want) {
 			return s.RunID, fmt.Errorf("candidate %s: eval gives %s, summary.json %s", c.ID, got, c.Metrics)
+		}
+		checks := 0.0
+		for _, v := range c.Violations {
+			if slices.Contains(objectives.CheckNames(), v.Target) {
+				checks += v.Amount
+			}
+		}
+		if (c.Feasible || checks == 0) != (len(ev.Findings) == 0) {
+			return s.RunID, fmt.Errorf("candidate %s (feasible %v, check violations %g): eval finds %d failed check(s):\n%s",
+				c.ID, c.Feasible, checks, len(ev.Findings), objectives.FindingsText(ev.Findings))
 		}
 	}
 	entries, err := os.ReadDir(filepath.Join(dir, "candidates"))
