@@ -122,7 +122,8 @@ func checkDesignLengths(d *Design, fam topologies.Family, pm *units.Map) error {
 
 // checkSpecLengths refuses a spec whose process has a lateral diffusion
 // at least half the shortest channel length the searched families'
-// bounds allow for that polarity: the search would build transistors
+// bounds allow for that polarity on that process (topologies.ParamsFor:
+// the larger of the family's bound and the process's lmin): the search would build transistors
 // with no effective length. The error is at the process file's ld line.
 func checkSpecLengths(s *Spec) error {
 	for _, t := range []device.Type{device.NMOS, device.PMOS} {
@@ -140,13 +141,20 @@ func checkSpecLengths(s *Spec) error {
 			if err != nil {
 				return err
 			}
+			// The bounds the search uses: the process's lmin raises them.
+			ps, err := topologies.ParamsFor(fam, s.Process, s.Process.Rules.SaturationMargin)
+			if err != nil {
+				return err
+			}
 			for _, u := range uses {
 				if u.typ != t {
 					continue
 				}
 				for _, pn := range u.params {
-					if p, ok := topologies.ParamOf(fam, pn); ok && p.Min < shortest {
-						shortest, which = p.Min, pn+" of "+fam.Name()
+					for _, p := range ps {
+						if p.Name == pn && p.Min < shortest {
+							shortest, which = p.Min, pn+" of "+fam.Name()
+						}
 					}
 				}
 			}
