@@ -28,6 +28,9 @@ type Design struct {
 	Supply     float64 // V
 	TempK      float64 // K
 	Sweep      sim.SweepSpec
+	// SaturationMargin is the file's saturation_margin, V, overriding the
+	// process's (Process already carries it); 0 when the file gives none.
+	SaturationMargin float64
 	// Params holds every parameter of the family, defaults filled in.
 	Params topologies.Values
 }
@@ -60,7 +63,7 @@ func ReadDesign(file string, data []byte, baseDir string) (*Design, error) {
 }
 
 func readDesign(m *units.Map, baseDir string) (*Design, error) {
-	if err := m.Check("topology", "process", "supply", "temperature", "sweep", "params"); err != nil {
+	if err := m.Check("topology", "process", "supply", "temperature", "saturation_margin", "sweep", "params"); err != nil {
 		return nil, err
 	}
 	if err := m.Require("topology", "process", "supply"); err != nil {
@@ -85,6 +88,7 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 		return nil, err
 	}
 	d.ProcessRef, d.Process, d.Supply, d.TempK = cond.ProcessRef, cond.Process, cond.Supply, cond.TempK
+	d.SaturationMargin = cond.Margin
 	d.Sweep = sim.SweepSpec{Low: 0, High: d.Supply, Step: DefaultStep}
 	if sw, ok, err := m.Map("sweep"); err != nil {
 		return nil, err
@@ -167,6 +171,9 @@ func (d *Design) Format() []byte {
 	fmt.Fprintf(&b, "process: %s\n", yamlScalar(d.ProcessRef))
 	fmt.Fprintf(&b, "supply: %s\n", units.Format(d.Supply, units.Volt))
 	fmt.Fprintf(&b, "temperature: %s\n", units.Format(d.TempK, units.Temperature))
+	if d.SaturationMargin > 0 {
+		fmt.Fprintf(&b, "saturation_margin: %s\n", units.Format(d.SaturationMargin, units.Volt))
+	}
 	fmt.Fprintf(&b, "sweep: {low: %s, high: %s, step: %s}\n", units.Format(d.Sweep.Low, units.Volt),
 		units.Format(d.Sweep.High, units.Volt), units.Format(d.Sweep.Step, units.Volt))
 	b.WriteString("params:\n")

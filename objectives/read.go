@@ -18,6 +18,9 @@ type conditions struct {
 	Process     *device.Process
 	Supply      float64 // V
 	TempK       float64 // K
+	// Margin is the file's saturation_margin, V; 0 when it gives none
+	// (the process's then holds). Process carries it already.
+	Margin float64
 }
 
 // readConditions reads the process (a built-in name or a file relative to
@@ -61,6 +64,20 @@ func readConditions(m *units.Map, baseDir string) (conditions, error) {
 	}
 	if err := checkCardsAt(m, c); err != nil {
 		return c, err
+	}
+	if m.Has("saturation_margin") {
+		if c.Margin, _, err = m.Quantity("saturation_margin", units.Volt); err != nil {
+			return c, err
+		}
+		for _, r := range device.RuleRanges() {
+			if r.Field == "saturation_margin" && !(r.Contains(c.Margin) && c.Margin > 0) {
+				return c, m.ErrorAt("saturation_margin", m.Text("saturation_margin"), r.Want()+", above 0", errors.New(r.Why))
+			}
+		}
+		// The file's margin overrides the process's, in a copy of it.
+		p := *c.Process
+		p.Rules.SaturationMargin = c.Margin
+		c.Process = &p
 	}
 	return c, nil
 }

@@ -2,6 +2,7 @@ package objectives_test
 
 import (
 	"math"
+	"strings"
 	"testing"
 
 	"pairsmith/objectives"
@@ -69,6 +70,52 @@ func loadEval(t *testing.T, path string) *objectives.Evaluation {
 	if err != nil {
 		t.Fatal(err)
 	}
+	ev, err := objectives.Evaluate(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return ev
+}
+
+// TestSaturationMarginOverride: a design file's saturation_margin
+// overrides the process's, is what the checks use, survives Format, and
+// out of range is refused at its line (docs/buildable.md#saturation).
+func TestSaturationMarginOverride(t *testing.T) {
+	text := "topology: complementary\nprocess: demo18\nsupply: 1.8V\nsaturation_margin: 120mV\n"
+	d, err := objectives.ReadDesign("m.yaml", []byte(text), ".")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.Margin() != 0.12 || d.SaturationMargin != 0.12 {
+		t.Errorf("margin %g (field %g), want 120 mV", d.Margin(), d.SaturationMargin)
+	}
+	if p, _ := device.Builtin("demo18"); p.Rules.SaturationMargin != device.DefaultSaturationMargin {
+		t.Errorf("the built-in process's margin changed to %g", p.Rules.SaturationMargin)
+	}
+	again, err := objectives.ReadDesign("m.yaml", d.Format(), ".")
+	if err != nil || again.Margin() != 0.12 {
+		t.Errorf("Format round trip: margin %v, %v; want 120 mV", again, err)
+	}
+	// The same design passes at the default margin and fails at 120 mV
+	// somewhere, or the override changed nothing the checks see.
+	def, err := objectives.ReadDesign("m.yaml", []byte(strings.Replace(text, "saturation_margin: 120mV\n", "", 1)), ".")
+	if err != nil {
+		t.Fatal(err)
+	}
+	evDef, evBig := evalDesign(t, def), evalDesign(t, d)
+	if len(evBig.Findings) <= len(evDef.Findings) {
+		t.Errorf("%d findings at 120 mV, %d at 50 mV: want more at the larger margin", len(evBig.Findings), len(evDef.Findings))
+	}
+	for _, bad := range []string{"3V", "0V", "-10mV"} {
+		_, err := objectives.ReadDesign("m.yaml", []byte(strings.Replace(text, "120mV", bad, 1)), ".")
+		if err == nil || !strings.Contains(err.Error(), "m.yaml:4") || !strings.Contains(err.Error(), "saturation_margin") {
+			t.Errorf("saturation_margin %s: error %v, want one at m.yaml:4 naming the field", bad, err)
+		}
+	}
+}
+
+func evalDesign(t *testing.T, d *objectives.Design) *objectives.Evaluation {
+	t.Helper()
 	ev, err := objectives.Evaluate(d)
 	if err != nil {
 		t.Fatal(err)

@@ -107,6 +107,9 @@ type Spec struct {
 
 	Supply float64 // V
 	TempK  float64 // K; default 27 °C
+	// SaturationMargin is the sheet's saturation_margin, V, overriding the
+	// process's (Process already carries it); 0 when the sheet gives none.
+	SaturationMargin float64
 	// Range is the common-mode range that must be covered (input_range
 	// low and high); default rail to rail, 0 … Supply.
 	Range Range
@@ -167,7 +170,7 @@ func ReadSpec(file string, data []byte, baseDir string) (*Spec, error) {
 
 // The fields of each section of a spec sheet.
 func specKeys() []string {
-	return []string{"name", "process", "supply", "temperature", "input_range", "targets", "pareto", "topologies", "search"}
+	return []string{"name", "process", "supply", "temperature", "saturation_margin", "input_range", "targets", "pareto", "topologies", "search"}
 }
 func rangeKeys() []string  { return []string{"low", "high", "step"} }
 func targetKeys() []string { return targetOrder() }
@@ -194,7 +197,7 @@ func readSpec(m *units.Map, baseDir string) (*Spec, error) {
 		return nil, err
 	}
 	s.ProcessRef, s.ProcessPath, s.Process = cond.ProcessRef, cond.ProcessPath, cond.Process
-	s.Supply, s.TempK = cond.Supply, cond.TempK
+	s.Supply, s.TempK, s.SaturationMargin = cond.Supply, cond.TempK, cond.Margin
 	s.Range, s.Step = Range{Low: 0, High: s.Supply}, DefaultStep
 	if rm, ok, err := m.Map("input_range"); err != nil {
 		return nil, err
@@ -479,7 +482,7 @@ func (s *Spec) Design(topology string, params topologies.Values) *Design {
 		v[k] = x
 	}
 	return &Design{Topology: topology, ProcessRef: ref, Process: s.Process, Supply: s.Supply,
-		TempK: s.TempK, Sweep: s.Sweep(), Params: v}
+		TempK: s.TempK, SaturationMargin: s.SaturationMargin, Sweep: s.Sweep(), Params: v}
 }
 
 // MarshalJSON writes the spec as summary.json's "spec": the spec sheet's
