@@ -28,6 +28,13 @@ import (
 // trash slot. The residual is compact the same way: [ unknown rows | F
 // rows | trash ].
 
+// A circuit compiles in two steps: shape, the variables, slots and rows
+// that follow from the nodes, the elements and which sources move with
+// the sweep; and values (bind), the device instances, conductances,
+// drives, probe coefficients and the constant work array. A solver can
+// take the values of another circuit of the same shape without the first
+// step (Rebind).
+
 // fixedNode is a node whose voltage a voltage source sets relative to an
 // already fixed node: v[idx] = v[parent] + sign·drive.
 type fixedNode struct {
@@ -57,11 +64,13 @@ type resStamp struct {
 }
 
 type isrcStamp struct {
-	ra, rb int
+	a, b   int // variables
+	ra, rb int // residual rows
 	drive  Drive
 }
 
 type vccsStamp struct {
+	p, n   int // variables the current flows between
 	cp, cn int // controlling variables
 	rp, rn int // residual rows
 	g      float64
@@ -75,6 +84,7 @@ type branchStamp struct {
 	gain   float64
 	drive  Drive
 	vsrc   int // index into Circuit.VSources, -1 for a VCVS
+	vcvs   int // index into Circuit.VCVSs, -1 for a voltage source
 }
 
 type sourceRef struct {
@@ -88,12 +98,26 @@ type probeTerm struct {
 	coef float64
 }
 
-// flatTerm is a probe term resolved to where its current is: coef times
-// the delivered current of needed fixed node q (see system.needed) or,
-// with q < 0, coef times the branch current variable v.
-type flatTerm struct {
-	q, v int
+// A probe is resolved to where its currents are: coefficients of the
+// currents delivered into needed fixed nodes (qTerm; see system.needed),
+// each node's own, the currents of the nodes hanging from it being terms
+// of their own, and of branch current variables (vTerm).
+type qTerm struct {
+	q    int
 	coef float64
+}
+
+type vTerm struct {
+	v    int
+	coef float64
+}
+
+// flatPart says that term of a probe adds sign times its coefficient to
+// the probe's qTerm at (or vTerm at, for a branch).
+type flatPart struct {
+	term, at int
+	branch   bool
+	sign     float64
 }
 
 // trashSlots is the size of the work and residual arrays' trash areas.
@@ -106,31 +130,42 @@ type system struct {
 	isNode []bool // for each unknown, whether it is a node voltage
 	idx    []int  // node → variable index
 
-	fixed    []fixedNode
-	mos      []mosStamp
-	res      []resStamp
-	isrc     []isrcStamp
-	vccs     []vccsStamp
-	branches []branchStamp
+	fixed       []fixedNode
+	fixedMoving []int // indices into fixed of the nodes that move with the sweep
+	mos         []mosStamp
+	moving      []int // indices into mos of the transistors that are not frozen
+	all         []int // 0 … len(mos)−1
+	res         []resStamp
+	isrc        []isrcStamp
+	isrcSweep   []int // indices into isrc of the sources whose drive sweeps
+	vccs        []vccsStamp
+	branches    []branchStamp
 
-	flat   [][]flatTerm // probe terms resolved, per probe
-	output int          // probe index or -1
+	// probeQ and probeV hold each probe's terms resolved; parts says how
+	// the probe's own terms make them up (one term reads a node and every
+	// node hanging from it).
+	probeQ [][]qTerm
+	probeV [][]vTerm
+	parts  [][]flatPart
+	output int // probe index or -1
+
+	// The sweep dependence the shape rests on: whether each voltage and
+	// current source's drive sweeps, and for each fixed node whether it
+	// moves with vid (JE has a column for each that does).
+	vSweeps, iSweeps []bool
+	eFix             []int // the fixed node of each JE column
 
 	// Compact layout (see the comment at the top of the file).
-	needed []int // fixed nodes whose delivered current is read, parents first
-	// parentQ[q] is the position in needed of needed[q]'s parent, or -1;
-	// chains says whether any is not -1.
-	parentQ []int
-	chains  bool
-	eVal    []float64 // d v / d vid of each of JE's columns
-	nE      int
-	oJE     int
-	oF      int
-	oFE     int
-	trash   int // work slot
-	rTrash  int // residual row
-	rowOf   []int
-	colOf   []int
+	needed []int     // fixed nodes whose delivered current is read, parents first
+	eVal   []float64 // d v / d vid of each of JE's columns
+	nE     int
+	oJE    int
+	oF     int
+	oFE    int
+	trash  int // work slot
+	rTrash int // residual row
+	rowOf  []int
+	colOf  []int
 	// base is the constant part of the work array: resistors, controlled
 	// sources, branch incidence (junction gmin is added per solver).
 	base []float64
@@ -168,6 +203,21 @@ func (s *system) rrow(v int) int {
 
 // compile checks the circuit and builds its system.
 func compile(c *Circuit) (*system, error) {
+	s, err := shape(c)
+	if err != nil {
+		return nil, err
+	}
+	insts := make([]device.Instance, len(c.Mosfets))
+	if err := s.checkValues(c, insts); err != nil {
+		return nil, err
+	}
+	s.bind(c, insts)
+	return s, nil
+}
+
+// shape checks the circuit's structure and lays out its system: every
+// index, slot and row, with the values left for bind.
+func shape(c *Circuit) (*system, error) {
 	if err := checkNodes(c); err != nil {
 		return nil, err
 	}
@@ -227,12 +277,25 @@ func compile(c *Circuit) (*system, error) {
 	// are the unfixed nodes ("things" 0…nNodes−1) and the branch currents
 	// of floating sources and VCVSs (things nNodes…).
 	nb := len(floating) + len(c.VCVSs)
+	s.vSweeps = make([]bool, len(c.VSources))
+	for i, v := range c.VSources {
+		s.vSweeps[i] = v.Value.sweeps()
+	}
+	s.iSweeps = make([]bool, len(c.ISources))
+	for i, v := range c.ISources {
+		s.iSweeps[i] = v.Value.sweeps()
+	}
 	// moves[k] says whether fixed node k moves with the sweep: whether any
 	// source on its chain to ground has a sweep-dependent drive.
 	moves := make([]bool, len(s.fixed))
 	for k := 1; k < len(s.fixed); k++ {
 		f := s.fixed[k]
-		moves[k] = moves[f.parent] || f.drive.sweeps()
+		moves[k] = moves[f.parent] || s.vSweeps[f.src]
+	}
+	for k, mv := range moves {
+		if mv {
+			s.fixedMoving = append(s.fixedMoving, k)
+		}
 	}
 	dyn := movingUnknowns(c, fixedOf, moves, floating)
 	s.idx = make([]int, nNodes)
@@ -272,10 +335,9 @@ func compile(c *Circuit) (*system, error) {
 			s.fixed[f].idx = s.n + f
 		}
 	}
+	s.fixedDM(s.fixed, c)
 	for k := range s.fixed {
-		f := &s.fixed[k]
-		if f.parent >= 0 {
-			f.dm = s.fixed[f.parent].dm + f.sign*f.drive.DM
+		if f := &s.fixed[k]; f.parent >= 0 {
 			srcOf[f.src] = sourceRef{kind: 0, index: k, sign: -f.sign}
 		}
 	}
@@ -289,38 +351,18 @@ func compile(c *Circuit) (*system, error) {
 	for k, i := range floating {
 		v := c.VSources[i]
 		srcOf[i] = sourceRef{kind: 1, index: len(s.branches), sign: 1}
-		s.addBranch(branchIdx[k], s.idx[v.P], s.idx[v.N], -1, -1, 0, v.Value, i)
+		s.branches = append(s.branches, s.newBranch(branchIdx[k], s.idx[v.P], s.idx[v.N], -1, -1, i, -1))
 	}
 	for k, e := range c.VCVSs {
-		s.addBranch(branchIdx[len(floating)+k], s.idx[e.P], s.idx[e.N], s.idx[e.CP], s.idx[e.CN], e.Gain, Drive{}, -1)
+		s.branches = append(s.branches, s.newBranch(branchIdx[len(floating)+k], s.idx[e.P], s.idx[e.N], s.idx[e.CP], s.idx[e.CN], -1, k))
 	}
-	// Every transistor has an instance of its own, so that a per-device
-	// variation (SetInstance) changes that device alone. Transistors of
-	// the same card and size share a class number, so that load can
-	// recognise two evaluations with identical inputs (the two halves of
-	// a pair at vid = 0) and do the work once.
-	type instKey struct {
-		m device.Model
-		g device.Geometry
-	}
-	ids := map[instKey]int{}
 	constant := func(v int) bool { // an unknown kept during continuation, or a fixed node that does not move
 		if v < s.n {
 			return v >= s.nD
 		}
 		return !moves[v-s.n]
 	}
-	for _, m := range c.Mosfets {
-		inst, err := m.Model.Instance(m.Geom, c.TempK)
-		if err != nil {
-			return nil, fmt.Errorf("circuit %q: transistor %s: %w", c.Title, m.Name, err)
-		}
-		key := instKey{m.Model, m.Geom}
-		id, ok := ids[key]
-		if !ok {
-			id = len(ids)
-			ids[key] = id
-		}
+	for i, m := range c.Mosfets {
 		d, g, so, b := s.idx[m.D], s.idx[m.G], s.idx[m.S], s.idx[m.B]
 		// Stamps nobody reads go to trash slots, a different one for each
 		// position, so that they do not queue behind each other's stores.
@@ -336,78 +378,226 @@ func compile(c *Circuit) (*system, error) {
 			}
 			return s.rTrash + k
 		}
-		s.mos = append(s.mos, mosStamp{inst: inst, id: id,
+		ms := mosStamp{
 			frozen: constant(d) && constant(g) && constant(so) && constant(b),
 			d:      d, g: g, s: so, b: b,
 			dd: sl(0, d, d), dg: sl(1, d, g), ds: sl(2, d, so), db: sl(3, d, b),
 			sd: sl(4, so, d), sg: sl(5, so, g), ss: sl(6, so, so), sb: sl(7, so, b),
-			rd: rr(0, d), rs: rr(1, so), rb: rr(2, b)})
+			rd: rr(0, d), rs: rr(1, so), rb: rr(2, b)}
+		s.mos = append(s.mos, ms)
+		s.all = append(s.all, i)
+		if !ms.frozen {
+			s.moving = append(s.moving, i)
+		}
 	}
 	for _, r := range c.Resistors {
-		if !(r.R > 0) {
-			return nil, fmt.Errorf("circuit %q: resistor %s: resistance %g Ω, want > 0", c.Title, r.Name, r.R)
-		}
-		a, b, g := s.idx[r.A], s.idx[r.B], 1/r.R
-		s.res = append(s.res, resStamp{a: a, b: b, ra: s.rrow(a), rb: s.rrow(b), g: g})
-		s.stamp(a, a, g)
-		s.stamp(a, b, -g)
-		s.stamp(b, a, -g)
-		s.stamp(b, b, g)
+		a, b := s.idx[r.A], s.idx[r.B]
+		s.res = append(s.res, resStamp{a: a, b: b, ra: s.rrow(a), rb: s.rrow(b)})
 	}
-	for _, i := range c.ISources {
+	for k, i := range c.ISources {
 		a, b := s.idx[i.P], s.idx[i.N]
-		s.isrc = append(s.isrc, isrcStamp{ra: s.rrow(a), rb: s.rrow(b), drive: i.Value})
-		if a < s.n {
-			s.direct[a] += i.Value.DM
-		}
-		if b < s.n {
-			s.direct[b] -= i.Value.DM
+		s.isrc = append(s.isrc, isrcStamp{a: a, b: b, ra: s.rrow(a), rb: s.rrow(b)})
+		if s.iSweeps[k] {
+			s.isrcSweep = append(s.isrcSweep, k)
 		}
 	}
 	for _, g := range c.VCCSs {
 		p, n, cp, cn := s.idx[g.P], s.idx[g.N], s.idx[g.CP], s.idx[g.CN]
-		s.vccs = append(s.vccs, vccsStamp{cp: cp, cn: cn, rp: s.rrow(p), rn: s.rrow(n), g: g.G})
-		s.stamp(p, cp, g.G)
-		s.stamp(p, cn, -g.G)
-		s.stamp(n, cp, -g.G)
-		s.stamp(n, cn, g.G)
+		s.vccs = append(s.vccs, vccsStamp{p: p, n: n, cp: cp, cn: cn, rp: s.rrow(p), rn: s.rrow(n)})
 	}
-	for _, terms := range probeTerms {
-		var ft []flatTerm
-		for _, t := range terms {
-			ref := srcOf[t.src]
-			if ref.kind == 0 {
-				q, ok := pos[ref.index]
-				if !ok {
-					q = -1
-				}
-				ft = append(ft, flatTerm{q: q, coef: ref.sign * t.coef})
-			} else {
-				ft = append(ft, flatTerm{q: -1, v: s.branches[ref.index].idx, coef: t.coef})
+	s.flatten(probeTerms, srcOf, pos)
+	return s, nil
+}
+
+// fixedDM computes into fixed the drives of c's sources and each fixed
+// node's d v / d vid along its chain (parents come before children).
+func (s *system) fixedDM(fixed []fixedNode, c *Circuit) {
+	for k := 1; k < len(fixed); k++ {
+		f := &fixed[k]
+		f.drive = c.VSources[f.src].Value
+		f.dm = fixed[f.parent].dm + f.sign*f.drive.DM
+	}
+}
+
+// flatten resolves each probe's terms to flat terms: a term that reads a
+// fixed node's source reads the current delivered into that node and
+// into every node hanging from it; terms that read the same current are
+// merged. The coefficients are left for bind.
+func (s *system) flatten(probeTerms [][]probeTerm, srcOf []sourceRef, pos map[int]int) {
+	// hangs[q] lists q and the needed nodes below it, in the order of
+	// needed.
+	hangs := make([][]int, len(s.needed))
+	for q, k := range s.needed {
+		for a := k; a >= 1; a = s.fixed[a].parent {
+			if p, ok := pos[a]; ok {
+				hangs[p] = append(hangs[p], q)
 			}
 		}
-		s.flat = append(s.flat, ft)
 	}
-	return s, nil
+	for _, terms := range probeTerms {
+		var qs []qTerm
+		var vs []vTerm
+		var parts []flatPart
+		for ti, t := range terms {
+			ref := srcOf[t.src]
+			if ref.kind != 0 {
+				v := s.branches[ref.index].idx
+				at := len(vs)
+				for j, o := range vs {
+					if o.v == v {
+						at = j
+						break
+					}
+				}
+				if at == len(vs) {
+					vs = append(vs, vTerm{v: v})
+				}
+				parts = append(parts, flatPart{term: ti, at: at, branch: true, sign: 1})
+				continue
+			}
+			for _, q := range hangs[pos[ref.index]] {
+				at := len(qs)
+				for j, o := range qs {
+					if o.q == q {
+						at = j
+						break
+					}
+				}
+				if at == len(qs) {
+					qs = append(qs, qTerm{q: q})
+				}
+				parts = append(parts, flatPart{term: ti, at: at, sign: ref.sign})
+			}
+		}
+		s.probeQ = append(s.probeQ, qs)
+		s.probeV = append(s.probeV, vs)
+		s.parts = append(s.parts, parts)
+	}
+}
+
+// newBranch lays out the branch of a floating voltage source (vsrc ≥ 0)
+// or a VCVS (vcvs ≥ 0) whose current is variable idx.
+func (s *system) newBranch(idx, p, n, cp, cn, vsrc, vcvs int) branchStamp {
+	return branchStamp{idx: idx, p: p, n: n, rp: s.rrow(p), rn: s.rrow(n),
+		cp: cp, cn: cn, vsrc: vsrc, vcvs: vcvs}
+}
+
+// checkValues checks the values of c, a circuit of s's shape, that bind
+// would take, and sizes its transistors into insts; it changes nothing
+// in s.
+func (s *system) checkValues(c *Circuit, insts []device.Instance) error {
+	for i, m := range c.Mosfets {
+		inst, err := m.Model.Instance(m.Geom, c.TempK)
+		if err != nil {
+			return fmt.Errorf("circuit %q: transistor %s: %w", c.Title, m.Name, err)
+		}
+		insts[i] = inst
+	}
+	for _, r := range c.Resistors {
+		if !(r.R > 0) {
+			return fmt.Errorf("circuit %q: resistor %s: resistance %g Ω, want > 0", c.Title, r.Name, r.R)
+		}
+	}
+	return nil
+}
+
+// bind takes the values of c, a circuit of s's shape whose values
+// checkValues accepted, with its transistors' instances: drives,
+// conductances, gains, probe coefficients, the constant work array and
+// the direct vid terms. The result is the same, bit for bit, whatever
+// circuit s was shaped from.
+func (s *system) bind(c *Circuit, insts []device.Instance) {
+	s.c = c
+	s.fixedDM(s.fixed, c)
+	for e, k := range s.eFix {
+		s.eVal[e] = s.fixed[k].dm
+	}
+	// Every transistor has an instance of its own, so that a per-device
+	// variation (SetInstance) changes that device alone. Transistors of
+	// the same card and size share a class number, so that load can
+	// recognise two evaluations with identical inputs (the two halves of
+	// a pair at vid = 0) and do the work once.
+	classes := 0
+	for i, m := range c.Mosfets {
+		ms := &s.mos[i]
+		ms.inst = insts[i]
+		ms.id = -1
+		for j := range i {
+			if o := c.Mosfets[j]; o.Model == m.Model && o.Geom == m.Geom {
+				ms.id = s.mos[j].id
+				break
+			}
+		}
+		if ms.id < 0 {
+			ms.id = classes
+			classes++
+		}
+	}
+	clear(s.base)
+	clear(s.direct)
+	for k := range s.branches {
+		b := &s.branches[k]
+		s.stamp(b.p, b.idx, 1)
+		s.stamp(b.n, b.idx, -1)
+		s.stamp(b.idx, b.p, 1)
+		s.stamp(b.idx, b.n, -1)
+		if b.vsrc < 0 {
+			b.gain = c.VCVSs[b.vcvs].Gain
+			s.stamp(b.idx, b.cp, -b.gain)
+			s.stamp(b.idx, b.cn, b.gain)
+		} else {
+			b.drive = c.VSources[b.vsrc].Value
+			s.direct[b.idx] -= b.drive.DM
+		}
+	}
+	for k := range s.res {
+		t := &s.res[k]
+		g := 1 / c.Resistors[k].R
+		t.g = g
+		s.stamp(t.a, t.a, g)
+		s.stamp(t.a, t.b, -g)
+		s.stamp(t.b, t.a, -g)
+		s.stamp(t.b, t.b, g)
+	}
+	for k := range s.isrc {
+		t := &s.isrc[k]
+		t.drive = c.ISources[k].Value
+		if t.a < s.n {
+			s.direct[t.a] += t.drive.DM
+		}
+		if t.b < s.n {
+			s.direct[t.b] -= t.drive.DM
+		}
+	}
+	for k := range s.vccs {
+		t := &s.vccs[k]
+		t.g = c.VCCSs[k].G
+		s.stamp(t.p, t.cp, t.g)
+		s.stamp(t.p, t.cn, -t.g)
+		s.stamp(t.n, t.cp, -t.g)
+		s.stamp(t.n, t.cn, t.g)
+	}
+	for p, parts := range s.parts {
+		qs, vs := s.probeQ[p], s.probeV[p]
+		for j := range qs {
+			qs[j].coef = 0
+		}
+		for j := range vs {
+			vs[j].coef = 0
+		}
+		terms := c.Probes[p].Terms
+		for _, pt := range parts {
+			if pt.branch {
+				vs[pt.at].coef += pt.sign * terms[pt.term].Coef
+			} else {
+				qs[pt.at].coef += pt.sign * terms[pt.term].Coef
+			}
+		}
+	}
 }
 
 // stamp adds a constant Jacobian entry.
 func (s *system) stamp(row, col int, v float64) { s.base[s.slot(row, col)] += v }
-
-func (s *system) addBranch(idx, p, n, cp, cn int, gain float64, drive Drive, vsrc int) {
-	s.branches = append(s.branches, branchStamp{idx: idx, p: p, n: n, rp: s.rrow(p), rn: s.rrow(n),
-		cp: cp, cn: cn, gain: gain, drive: drive, vsrc: vsrc})
-	s.stamp(p, idx, 1)
-	s.stamp(n, idx, -1)
-	s.stamp(idx, p, 1)
-	s.stamp(idx, n, -1)
-	if vsrc < 0 {
-		s.stamp(idx, cp, -gain)
-		s.stamp(idx, cn, gain)
-	} else {
-		s.direct[idx] -= drive.DM
-	}
-}
 
 // resolveProbes turns probe terms into source indices, per probe, and
 // finds the output probe.
@@ -446,13 +636,12 @@ func (s *system) resolveProbes() ([][]probeTerm, error) {
 // current (its fixed-node entries at least). It returns the position in
 // s.needed of each needed fixed node.
 func (s *system) layout(srcOf []sourceRef, probeTerms [][]probeTerm) map[int]int {
-	var eIdx []int // the fixed variables that move with vid (JE's columns)
-	for _, f := range s.fixed {
+	for k, f := range s.fixed {
 		if f.dm != 0 {
-			eIdx = append(eIdx, f.idx)
-			s.eVal = append(s.eVal, f.dm)
+			s.eFix = append(s.eFix, k)
 		}
 	}
+	s.eVal = make([]float64, len(s.eFix))
 	want := make([]bool, len(s.fixed))
 	for _, terms := range probeTerms {
 		for _, t := range terms {
@@ -482,23 +671,15 @@ func (s *system) layout(srcOf []sourceRef, probeTerms [][]probeTerm) map[int]int
 			s.needed = append(s.needed, k)
 		}
 	}
-	for e, v := range eIdx {
-		s.colOf[v] = s.n + e
+	for e, k := range s.eFix {
+		s.colOf[s.fixed[k].idx] = s.n + e
 	}
 	pos := map[int]int{}
 	for q, k := range s.needed {
 		pos[k] = q
 	}
-	for _, k := range s.needed {
-		pq, ok := pos[s.fixed[k].parent]
-		if !ok {
-			pq = -1
-		}
-		s.parentQ = append(s.parentQ, pq)
-		s.chains = s.chains || pq >= 0
-	}
 	nF := len(s.needed)
-	s.nE = len(eIdx)
+	s.nE = len(s.eFix)
 	s.oJE = s.n * s.n
 	s.oF = s.oJE + s.n*s.nE
 	s.oFE = s.oF + nF*s.n

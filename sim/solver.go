@@ -78,7 +78,15 @@ type Solver struct {
 	rhs  []float64 // d x / d vid after post
 	base []float64 // constant part of w, junction gmin included
 
-	deliv []float64 // current delivered into each needed fixed node
+	deliv []float64 // current delivered into each needed fixed node itself
+	slope []float64 // d deliv / d vid, after a post with the gm
+
+	// cbase and cres are the work array and residual with which a sweep's
+	// continuation steps start: base plus the stamps of the frozen
+	// transistors and the constant current sources, valid (cvalid) while
+	// the unknowns they rest on keep their values.
+	cbase, cres []float64
+	cvalid      bool
 
 	// active is how many unknowns the last converged solve moved: n, or
 	// nD for a sweep's reduced step, whose factors are then the leading
@@ -111,12 +119,20 @@ func NewSolver(c *Circuit, opt Options) (*Solver, error) {
 	}
 	s := &Solver{sys: sys, opt: opt.withDefaults()}
 	s.newBuffers()
-	// The junction gmin of every transistor is constant: stamp it into the
-	// base once, for this solver's gmin.
-	s.base = append([]float64(nil), sys.base...)
+	s.base = make([]float64, len(sys.base))
+	s.setBase()
+	return s, nil
+}
+
+// setBase computes the solver's constant work array from the system's:
+// the junction gmin of every transistor is constant, so it is stamped
+// once, for this solver's gmin.
+func (s *Solver) setBase() {
+	sys := s.sys
+	copy(s.base, sys.base)
 	g := s.opt.Gmin
+	add := func(i, j int, v float64) { s.base[sys.slot(i, j)] += v }
 	for _, m := range sys.mos {
-		add := func(i, j int, v float64) { s.base[sys.slot(i, j)] += v }
 		add(m.d, m.d, g)
 		add(m.d, m.b, -g)
 		add(m.s, m.s, g)
@@ -126,7 +142,6 @@ func NewSolver(c *Circuit, opt Options) (*Solver, error) {
 		add(m.b, m.s, -g)
 	}
 	clear(s.base[sys.trash:])
-	return s, nil
 }
 
 // clone returns a solver of the same compiled circuit with buffers of its
@@ -150,8 +165,12 @@ func (s *Solver) newBuffers() {
 	s.dx = make([]float64, n)
 	s.rhs = make([]float64, n)
 	s.deliv = make([]float64, len(sys.needed))
+	s.slope = make([]float64, len(sys.needed))
 	s.save = make([]float64, N)
 	s.memo = make([]mosMemo, len(sys.mos))
+	s.cbase = make([]float64, len(sys.base))
+	s.cres = make([]float64, len(s.r))
+	s.cvalid = false
 }
 
 // SetInstance replaces the instance of transistor i (its index in
@@ -179,6 +198,7 @@ func (s *Solver) SetInstance(i int, inst device.Instance) error {
 	// evaluation of another transistor stands for this one's.
 	m.id = len(sys.mos) + i
 	s.memo[i].ok = false
+	s.cvalid = false
 	return nil
 }
 
@@ -200,35 +220,54 @@ func (s *Solver) setFixed(v []float64, vcm, vid, scale float64) {
 	}
 }
 
+// setMoving is setFixed at scale 1 for the fixed nodes that move with the
+// sweep only, the others keeping their values: bitwise what setFixed
+// would give when they were set at scale 1.
+func (s *Solver) setMoving(vcm, vid float64) {
+	fx, v := s.sys.fixed, s.v
+	for _, k := range s.sys.fixedMoving {
+		f := &fx[k]
+		v[f.idx] = v[fx[f.parent].idx] + f.sign*f.drive.At(vcm, vid)
+	}
+}
+
 // load evaluates every element at s.v and fills the work array and the
-// residual.
-func (s *Solver) load(vcm, vid, scale, gshunt float64) {
+// residual. A reduced load (a sweep's continuation step: scale 1, no
+// shunt, the unknowns past nD kept) starts from the continuation base and
+// evaluates only the transistors that move.
+func (s *Solver) load(vcm, vid, scale, gshunt float64, reduced bool) {
 	sys := s.sys
 	w, r, v := s.w, s.r, s.v
-	copy(w, s.base)
-	clear(r)
+	list := sys.all
+	if reduced {
+		copy(w, s.cbase)
+		copy(r, s.cres)
+		list = sys.moving
+	} else {
+		copy(w, s.base)
+		clear(r)
+	}
 	gmin := s.opt.Gmin
 	// An evaluation is skipped, exactly, when its inputs are bitwise those
 	// of the transistor's last one (a bias branch frozen during a sweep's
 	// continuation) or of the transistor just evaluated with the same
-	// instance (the two halves of a pair at vid = 0).
+	// class (the two halves of a pair at vid = 0).
 	last := -1
 	var lvd, lvg, lvs, lvb float64
 	var ev device.Eval
-	for i := range sys.mos {
+	for _, i := range list {
 		m := &sys.mos[i]
 		vd, vg, vs, vb := v[m.d], v[m.g], v[m.s], v[m.b]
 		if m.frozen {
-			me := &s.memo[i]
-			if !me.ok || vd != me.vd || vg != me.vg || vs != me.vs || vb != me.vb {
-				me.ev = m.inst.Eval(vd, vg, vs, vb)
-				me.vd, me.vg, me.vs, me.vb, me.ok = vd, vg, vs, vb, true
-			}
-			ev = me.ev
+			ev = s.frozenEval(i, vd, vg, vs, vb)
 		} else if m.id != last || vd != lvd || vg != lvg || vs != lvs || vb != lvb {
 			ev = m.inst.Eval(vd, vg, vs, vb)
 		}
 		last, lvd, lvg, lvs, lvb = m.id, vd, vg, vs, vb
+		// The channel, and the currents of the junctions' gmin, drain–bulk
+		// and source–bulk (their conductances are in the base); written
+		// out here rather than calling stampMos, which the compiler does
+		// not inline.
 		w[m.dd] += ev.GD
 		w[m.dg] += ev.GG
 		w[m.ds] += ev.GS
@@ -237,30 +276,41 @@ func (s *Solver) load(vcm, vid, scale, gshunt float64) {
 		w[m.sg] -= ev.GG
 		w[m.ss] -= ev.GS
 		w[m.sb] -= ev.GB
-		// Channel current plus the junctions' gmin, drain–bulk and
-		// source–bulk (their conductances are in base).
 		idb := gmin * (vd - vb)
 		isb := gmin * (vs - vb)
 		r[m.rd] += ev.ID + idb
 		r[m.rs] += isb - ev.ID
 		r[m.rb] -= idb + isb
 	}
-	for _, t := range sys.res {
+	for k := range sys.res {
+		t := &sys.res[k]
 		cur := t.g * (v[t.a] - v[t.b])
 		r[t.ra] += cur
 		r[t.rb] -= cur
 	}
-	for _, t := range sys.isrc {
-		cur := scale * t.drive.At(vcm, vid)
-		r[t.ra] += cur
-		r[t.rb] -= cur
+	if reduced {
+		for _, k := range sys.isrcSweep {
+			t := &sys.isrc[k]
+			cur := t.drive.At(vcm, vid)
+			r[t.ra] += cur
+			r[t.rb] -= cur
+		}
+	} else {
+		for k := range sys.isrc {
+			t := &sys.isrc[k]
+			cur := scale * t.drive.At(vcm, vid)
+			r[t.ra] += cur
+			r[t.rb] -= cur
+		}
 	}
-	for _, g := range sys.vccs {
+	for k := range sys.vccs {
+		g := &sys.vccs[k]
 		cur := g.g * (v[g.cp] - v[g.cn])
 		r[g.rp] += cur
 		r[g.rn] -= cur
 	}
-	for _, b := range sys.branches {
+	for k := range sys.branches {
+		b := &sys.branches[k]
 		cur := v[b.idx]
 		r[b.rp] += cur
 		r[b.rn] -= cur
@@ -283,6 +333,63 @@ func (s *Solver) load(vcm, vid, scale, gshunt float64) {
 	}
 }
 
+// frozenEval returns the evaluation of frozen transistor i, from its
+// memo when the inputs are bitwise those of its last one.
+func (s *Solver) frozenEval(i int, vd, vg, vs, vb float64) device.Eval {
+	me := &s.memo[i]
+	if !me.ok || vd != me.vd || vg != me.vg || vs != me.vs || vb != me.vb {
+		me.ev = s.sys.mos[i].inst.Eval(vd, vg, vs, vb)
+		me.vd, me.vg, me.vs, me.vb, me.ok = vd, vg, vs, vb, true
+	}
+	return me.ev
+}
+
+// stampMos adds a transistor's channel and the currents of its junctions'
+// gmin, idb drain–bulk and isb source–bulk (their conductances are in the
+// base), to the work array and the residual.
+func stampMos(w, r []float64, m *mosStamp, ev *device.Eval, idb, isb float64) {
+	w[m.dd] += ev.GD
+	w[m.dg] += ev.GG
+	w[m.ds] += ev.GS
+	w[m.db] += ev.GB
+	w[m.sd] -= ev.GD
+	w[m.sg] -= ev.GG
+	w[m.ss] -= ev.GS
+	w[m.sb] -= ev.GB
+	r[m.rd] += ev.ID + idb
+	r[m.rs] += isb - ev.ID
+	r[m.rb] -= idb + isb
+}
+
+// freeze computes the continuation base from the present s.v: the base
+// with the stamps of every frozen transistor, and a residual with their
+// currents and those of the current sources that do not sweep (at scale
+// 1). A sweep's continuation keeps every input of these constant.
+func (s *Solver) freeze() {
+	sys := s.sys
+	w, r, v := s.cbase, s.cres, s.v
+	copy(w, s.base)
+	clear(r)
+	gmin := s.opt.Gmin
+	for i := range sys.mos {
+		m := &sys.mos[i]
+		if !m.frozen {
+			continue
+		}
+		vd, vg, vs, vb := v[m.d], v[m.g], v[m.s], v[m.b]
+		ev := s.frozenEval(i, vd, vg, vs, vb)
+		stampMos(w, r, m, &ev, gmin*(vd-vb), gmin*(vs-vb))
+	}
+	for k := range sys.isrc {
+		if t := &sys.isrc[k]; !sys.iSweeps[k] {
+			cur := t.drive.At(0, 0)
+			r[t.ra] += cur
+			r[t.rb] -= cur
+		}
+	}
+	s.cvalid = true
+}
+
 // newton iterates from the present s.v over every unknown. On success the
 // LU factors of the Jacobian at the last evaluation are in the J part of
 // s.w, the rest of s.w and s.r hold that evaluation, and s.dx the final
@@ -302,11 +409,25 @@ func (s *Solver) newtonMoving(vcm, vid float64, maxIter int) bool {
 // iterate is Newton's method over the first m unknowns.
 func (s *Solver) iterate(m int, vcm, vid, scale, gshunt float64, maxIter int) bool {
 	n := s.sys.n
-	s.setFixed(s.v, vcm, vid, scale)
+	// A reduced solve (at scale 1, no shunt) keeps the unknowns past m and
+	// starts from the continuation base, computed when a full solve may
+	// have moved what it rests on; only the fixed nodes that move with
+	// the sweep need setting then.
+	reduced := m < n
+	switch {
+	case !reduced:
+		s.cvalid = false
+		s.setFixed(s.v, vcm, vid, scale)
+	case !s.cvalid:
+		s.setFixed(s.v, vcm, vid, 1)
+		s.freeze()
+	default:
+		s.setMoving(vcm, vid)
+	}
 	lu, dx := s.w[:n*n], s.dx[:m]
 	for it := 0; it < maxIter; it++ {
 		s.iterations++
-		s.load(vcm, vid, scale, gshunt)
+		s.load(vcm, vid, scale, gshunt, reduced)
 		for i := range dx {
 			dx[i] = -s.r[i]
 		}
@@ -342,21 +463,24 @@ func (s *Solver) iterate(m int, vcm, vid, scale, gshunt float64, maxIter int) bo
 // reports false for a step that is not finite, whether the step had
 // converged, and whether it was limited or damped.
 func (s *Solver) applyStep(m int, damp float64) (ok, converged, limited bool) {
-	sys, o := s.sys, &s.opt
-	dx, v := s.dx[:m], s.v[:m]
-	tol := func(i int, old, nv float64) float64 {
-		t := o.AbsTol
-		if sys.isNode[i] {
-			t = o.VnTol
-		}
-		return o.RelTol*math.Max(math.Abs(old), math.Abs(nv)) + t
-	}
+	o := &s.opt
+	dx, v, isNode := s.dx[:m], s.v[:m], s.sys.isNode[:m]
 	converged = true
 	for i, d := range dx {
 		if d != d || d-d != 0 { // NaN or ±Inf
 			return false, false, false
 		}
-		if math.Abs(d) > tol(i, v[i], v[i]+d) {
+		// Within RelTol·max(|old|, |new|) plus VnTol for a node voltage,
+		// AbsTol for a branch current.
+		big := math.Abs(v[i])
+		if b := math.Abs(v[i] + d); b > big {
+			big = b
+		}
+		t := o.AbsTol
+		if isNode[i] {
+			t = o.VnTol
+		}
+		if math.Abs(d) > o.RelTol*big+t {
 			converged = false
 		}
 	}
@@ -366,7 +490,7 @@ func (s *Solver) applyStep(m int, damp float64) (ok, converged, limited bool) {
 	limited = damp != 1
 	for i, d := range dx {
 		d *= damp
-		if sys.isNode[i] {
+		if isNode[i] {
 			if d > o.MaxStep {
 				d, limited = o.MaxStep, true
 			} else if d < -o.MaxStep {
@@ -454,87 +578,75 @@ func (s *Solver) sourceStepping(vcm, vid float64) bool {
 	return true
 }
 
-// post computes, after a converged solve, the currents delivered by the
-// sources of the fixed nodes that probes read, corrected to first order by
-// the final step, and — for the gm — the derivative of the unknowns with
-// respect to vid. After a reduced solve only the moving unknowns take part:
-// the others neither moved nor depend on vid.
+// post computes, after a converged solve, the current delivered into
+// each fixed node that probes read, corrected to first order by the final
+// step, and — for the gm — the derivative of the unknowns with respect to
+// vid and of each of those currents. After a reduced solve only the
+// moving unknowns take part: the others neither moved nor depend on vid.
 func (s *Solver) post(wantGM bool) {
 	sys := s.sys
-	n, nE, m, nF := sys.n, sys.nE, s.active, len(sys.needed)
-	w := s.w
+	n, nE, m := sys.n, sys.nE, s.active
+	w, r := s.w, s.r
 	dx := s.dx[:m]
-	dq := s.deliv[:nF]
-	for q := range dq {
-		c := s.r[n+q]
-		base := sys.oF + q*n
-		for j := 0; j < m; j++ {
-			c += w[base+j] * dx[j]
-		}
-		dq[q] = c
-	}
-	if sys.chains {
-		for q := nF - 1; q >= 0; q-- {
-			if p := sys.parentQ[q]; p >= 0 {
-				dq[p] += dq[q]
-			}
-		}
-	}
 	if !wantGM {
+		for q := range s.deliv {
+			o := sys.oF + q*n
+			s.deliv[q] = dot(r[n+q], w[o:o+m], dx)
+		}
 		return
 	}
 	// J·dx/dvid = −(∂r/∂v_fixed · dv_fixed/dvid + ∂r/∂vid directly).
 	ev := sys.eVal
-	je := w[sys.oJE : sys.oJE+n*nE]
 	rhs := s.rhs[:m]
 	for i := range rhs {
-		acc := sys.direct[i]
-		row := je[i*nE : i*nE+nE]
-		for e, x := range ev {
-			acc += row[e] * x
-		}
-		rhs[i] = -acc
+		o := sys.oJE + i*nE
+		rhs[i] = -dot(sys.direct[i], w[o:o+nE], ev)
 	}
 	clear(s.rhs[m:n])
 	luSolve(w[:n*n], m, n, s.piv, rhs)
-}
-
-// deliveredSlope returns d/dvid of the current delivered into needed
-// fixed node q (and every node hanging from it), from the rhs post left:
-// its F row times dx/dvid plus its FE row times the inputs' dv/dvid.
-func (s *Solver) deliveredSlope(q int) float64 {
-	sys := s.sys
-	n, nE, m := sys.n, sys.nE, s.active
-	w, rhs := s.w, s.rhs
-	d := 0.0
-	base := sys.oF + q*n
-	for j := 0; j < m; j++ {
-		d += w[base+j] * rhs[j]
-	}
-	base = sys.oFE + q*nE
-	for e, x := range sys.eVal {
-		d += w[base+e] * x
-	}
-	if sys.chains {
-		for c, p := range sys.parentQ {
-			if p == q {
-				d += s.deliveredSlope(c)
-			}
+	// One pass over the F rows for both: the delivered current, and its
+	// slope, the F row times dx/dvid plus the FE row times the inputs'
+	// dv/dvid.
+	for q := range s.deliv {
+		o := sys.oF + q*n
+		row := w[o : o+m]
+		dx, rhs := dx[:len(row)], rhs[:len(row)]
+		c, d := r[n+q], 0.0
+		for j, x := range row {
+			c += x * dx[j]
+			d += x * rhs[j]
 		}
+		o = sys.oFE + q*nE
+		s.deliv[q] = c
+		s.slope[q] = dot(d, w[o:o+nE], ev)
 	}
-	return d
 }
 
-// probeSlope returns, after post computed the rhs, the derivative of
+// dot returns c + a·b (b at least as long as a), summed from c and the
+// first element on.
+func dot(c float64, a, b []float64) float64 {
+	b = b[:len(a)]
+	j := 0
+	for ; j+1 < len(a); j += 2 { // unrolled by two: the rows are short
+		c += a[j] * b[j]
+		c += a[j+1] * b[j+1]
+	}
+	if j < len(a) {
+		c += a[j] * b[j]
+	}
+	return c
+}
+
+// probeSlope returns, after post computed the slopes, the derivative of
 // probe p with respect to vid.
 func (s *Solver) probeSlope(p int) float64 {
 	d := 0.0
-	for _, t := range s.sys.flat[p] {
-		if t.q >= 0 {
-			d += t.coef * s.deliveredSlope(t.q)
-		} else {
-			d += t.coef * s.rhs[t.v]
-		}
+	qs := s.sys.probeQ[p]
+	for i := range qs {
+		d += qs[i].coef * s.slope[qs[i].q]
+	}
+	for _, t := range s.sys.probeV[p] {
+		d += t.coef * s.rhs[t.v]
 	}
 	return d
 }
@@ -542,12 +654,12 @@ func (s *Solver) probeSlope(p int) float64 {
 // probeValue returns the value of probe p.
 func (s *Solver) probeValue(p int) float64 {
 	val := 0.0
-	for _, t := range s.sys.flat[p] {
-		if t.q >= 0 {
-			val += t.coef * s.deliv[t.q]
-		} else {
-			val += t.coef * s.v[t.v]
-		}
+	qs := s.sys.probeQ[p]
+	for i := range qs {
+		val += qs[i].coef * s.deliv[qs[i].q]
+	}
+	for _, t := range s.sys.probeV[p] {
+		val += t.coef * s.v[t.v]
 	}
 	return val
 }

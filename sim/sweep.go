@@ -96,8 +96,8 @@ func (s *Solver) prepare(sp SweepSpec, res *Result) (int, error) {
 	} else {
 		res.GM = res.GM[:0]
 	}
-	if len(res.Probe) != len(sys.flat) {
-		res.Probe = make([][]float64, len(sys.flat))
+	if len(res.Probe) != len(sys.probeQ) {
+		res.Probe = make([][]float64, len(sys.probeQ))
 	}
 	for k := range res.Probe {
 		res.Probe[k] = grow(res.Probe[k], npts)
@@ -292,7 +292,7 @@ func (s *Solver) Solve(vcm, vid float64) (*Point, error) {
 	if wantGM {
 		p.GM = s.probeSlope(s.sys.output)
 	}
-	for k := range s.sys.flat {
+	for k := range s.sys.probeQ {
 		p.Probe = append(p.Probe, s.probeValue(k))
 	}
 	return p, nil

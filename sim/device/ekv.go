@@ -45,7 +45,9 @@ func (c *EKV) Type() Type { return c.Polarity }
 // two agree.
 //
 // All partial derivatives are analytic, including the dependence of Is on
-// the gate through n(VP). Junction diodes are not modelled.
+// the gate through n(VP). Junction diodes are not modelled. Eval drops the
+// smaller of iF and iR where it is provably below 1e-9 of the larger
+// (minorTerm), which moves ID by less than that fraction.
 func (c *EKV) Instance(g Geometry, tempK float64) (Instance, error) {
 	if err := c.check(); err != nil {
 		return nil, fmt.Errorf("ekv %s card: %w", c.Polarity, err)
@@ -143,6 +145,11 @@ func ekvF(x float64) (f, df float64) {
 	return sp * sp, sp * sig
 }
 
+// minorTerm is the fraction of the larger of the forward and reverse
+// terms below which Eval drops the smaller one: far below the solver's
+// relative tolerance (1e-6), so that dropping it moves no solution.
+const minorTerm = 1e-9
+
 // Eval returns the drain current and its derivatives with respect to the
 // four terminal voltages.
 func (m *ekvInst) Eval(vd, vg, vs, vb float64) Eval {
@@ -151,36 +158,70 @@ func (m *ekvInst) Eval(vd, vg, vs, vb float64) Eval {
 	vp, dvp, n, dn := m.pinch(xg)
 	is := m.isn * n
 	dis := m.isn * dn * dvp // ∂Is/∂VG
-	// iF, dF = ekvF((vp − xs)/U_T) and iR, dR = ekvF((vp − xd)/U_T), written
-	// out so that the two independent evaluations overlap.
+	// iF, dF = ekvF((vp − xs)/U_T) and iR, dR = ekvF((vp − xd)/U_T), as
+	// ekvF computes them, written out: the larger term (hb) in full; the
+	// smaller (hs) too unless it is below minorTerm of the larger, which
+	// for hs < 0 the bound F(2·hs) ≤ e^(2·hs) = es² proves without the
+	// logarithm (ln(1 + x) ≤ x; the derivative obeys the same bound).
 	hf := 0.5 * (vp - xs) * m.invUT
 	hr := 0.5 * (vp - xd) * m.invUT
 	ef := math.Exp(-math.Abs(hf))
 	er := math.Exp(-math.Abs(hr))
-	spf, spr := math.Log1p(ef), math.Log1p(er)
-	sf, sr := 1/(1+ef), 1/(1+er)
-	if hf > 0 {
-		spf += hf
-	} else {
-		sf *= ef
+	hb, eb, hs, es := hf, ef, hr, er
+	if hr > hf {
+		hb, eb, hs, es = hr, er, hf, ef
 	}
-	if hr > 0 {
-		spr += hr
+	spb, sb := math.Log1p(eb), 1/(1+eb)
+	if hb > 0 {
+		spb += hb
 	} else {
-		sr *= er
+		sb *= eb
 	}
-	iF, dF := spf*spf, spf*sf
-	iR, dR := spr*spr, spr*sr
+	fb, db := spb*spb, spb*sb
+	var fs, ds float64
+	if !(hs < 0 && es*es < minorTerm*fb) {
+		sps, ss := math.Log1p(es), 1/(1+es)
+		if hs > 0 {
+			sps += hs
+		} else {
+			ss *= es
+		}
+		fs, ds = sps*sps, sps*ss
+	}
+	iF, dF, iR, dR := fb, db, fs, ds
+	if hr > hf {
+		iF, dF, iR, dR = fs, ds, fb, db
+	}
 	vds := xd - xs
 	u := vds * m.inv2UT
-	th := 1.0 // tanh(u) rounds to ±1 beyond |u| = 20
-	if u < -20 {
-		th = -1
-	} else if u <= 20 {
-		th = math.Tanh(u)
+	// tanh(u) and 1 − tanh²(u) from e^(−|u|), which is the ratio of ef
+	// and er (smaller over larger) when hf and hr have the same sign and
+	// their product otherwise (hf − hr = u): a division instead of the
+	// exponential inside tanh. Swapping source and drain swaps ef and er
+	// and negates u, so the symmetry stays exact.
+	var e1 float64
+	if (hf > 0) == (hr > 0) {
+		lo, hi := ef, er
+		if lo > hi {
+			lo, hi = hi, lo
+		}
+		if hi > 0x1p-500 {
+			e1 = lo / hi
+		} else { // both near underflow: VP over 17 V from both terminals
+			e1 = math.Exp(-math.Abs(u))
+		}
+	} else {
+		e1 = ef * er
 	}
+	e2 := e1 * e1 // e^(−2|u|)
+	inv := 1 / (1 + e2)
+	th := (1 - e2) * inv
+	if u < 0 {
+		th = -th
+	}
+	sech2 := 4 * e2 * inv * inv
 	clm := 1 + m.lambda*vds*th
-	dclm := m.lambda * (th + u*(1-th*th)) // ∂clm/∂VDS
+	dclm := m.lambda * (th + u*sech2) // ∂clm/∂VDS
 	q := iF - iR
 	a := is * clm * m.invUT
 	b := is * q * dclm
