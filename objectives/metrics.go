@@ -41,42 +41,48 @@ type Metrics struct {
 	GMOverIDMin float64
 }
 
-// MarshalJSON writes the metrics with their names in docs/metrics.md, NaN and Inf
-// as null.
-func (m Metrics) MarshalJSON() ([]byte, error) {
-	return json.Marshal(map[string]*float64{
-		"gm_min":           finite(m.GMMin),
-		"gm_max":           finite(m.GMMax),
-		"gm_ripple":        finite(m.GMRipple),
-		"power":            finite(m.Power),
-		"area":             finite(m.Area),
-		"switchover":       finite(m.Switchover),
-		"transition_width": finite(m.TransitionWidth),
-		"gm_id_min":        finite(m.GMOverIDMin),
-	})
+// MarshalJSON writes the metrics by their catalog keys (their names in
+// docs/metrics.md), NaN and Inf as null.
+func (m Metrics) MarshalJSON() ([]byte, error) { return json.Marshal(metricsJSON(catalog, m)) }
+
+func metricsJSON(entries []Entry, m Metrics) map[string]*float64 {
+	out := map[string]*float64{}
+	for _, e := range entries {
+		if e.Kind == Figure {
+			out[e.Key] = finite(e.Value(m))
+		}
+	}
+	return out
 }
 
-// UnmarshalJSON reads what MarshalJSON writes; null reads back as +Inf for
-// the ripple and NaN elsewhere.
+// UnmarshalJSON reads what MarshalJSON writes; null, or a key left out,
+// reads back as +Inf for an unbounded figure (the ripple) and NaN
+// elsewhere.
 func (m *Metrics) UnmarshalJSON(b []byte) error {
 	var raw map[string]*float64
 	if err := json.Unmarshal(b, &raw); err != nil {
 		return err
 	}
-	get := func(k string, null float64) float64 {
-		if p := raw[k]; p != nil {
-			return *p
-		}
-		return null
-	}
-	nan := math.NaN()
-	*m = Metrics{
-		GMMin: get("gm_min", nan), GMMax: get("gm_max", nan), GMRipple: get("gm_ripple", math.Inf(1)),
-		Power: get("power", nan), Area: get("area", nan),
-		Switchover: get("switchover", nan), TransitionWidth: get("transition_width", nan),
-		GMOverIDMin: get("gm_id_min", nan),
-	}
+	*m = metricsFromJSON(catalog, raw)
 	return nil
+}
+
+func metricsFromJSON(entries []Entry, raw map[string]*float64) Metrics {
+	var m Metrics
+	for _, e := range entries {
+		if e.Kind != Figure {
+			continue
+		}
+		v := math.NaN()
+		switch p := raw[e.Key]; {
+		case p != nil:
+			v = *p
+		case e.Unbounded:
+			v = math.Inf(1)
+		}
+		*e.Field(&m) = v
+	}
+	return m
 }
 
 func finite(v float64) *float64 {

@@ -254,10 +254,11 @@ func checkTop(m *units.Map) error {
 	return m.Check(specKeys()...)
 }
 
-// checkTargetKeys rejects an unknown target, suggesting the _max form of a
-// metric's name ("power" → "power_max") before falling back to Check.
-func checkTargetKeys(tm *units.Map) error {
-	known := targetKeys()
+// checkTargetKeysOf rejects an unknown target, suggesting the _max form
+// of a metric's name ("power" → "power_max") before falling back to
+// Check.
+func checkTargetKeysOf(entries []Entry, tm *units.Map) error {
+	known := targetKeysOf(entries)
 	for _, k := range tm.Keys() {
 		if !slices.Contains(known, k) && slices.Contains(known, k+"_max") {
 			return tm.ErrorAt(k, "", "", fmt.Errorf("%w; did you mean %q?", units.ErrUnknownField, k+"_max"))
@@ -266,69 +267,78 @@ func checkTargetKeys(tm *units.Map) error {
 	return tm.Check(known...)
 }
 
-func readTargets(tm *units.Map, rng Range) (Targets, error) {
-	t := NoTargets()
-	if err := checkTargetKeys(tm); err != nil {
+// readTargets reads a spec's targets section: every target of the
+// catalog, a limit in its entry's unit (above 0, and at most its Max), or
+// for a window {at, tolerance}. The limits are read first, the windows
+// after them, each in the catalog's order.
+func readTargets(tm *units.Map, rng Range) (Targets, error) { return readTargetsOf(catalog, tm, rng) }
+
+func readTargetsOf(entries []Entry, tm *units.Map, rng Range) (Targets, error) {
+	t := noTargetsOf(entries)
+	if err := checkTargetKeysOf(entries, tm); err != nil {
 		return t, err
 	}
-	fields := []struct {
-		key  string
-		dim  units.Dim
-		dst  *float64
-		ok   func(float64) bool
-		want string
-	}{
-		{TargetGMMin, units.Siemens, &t.GMMin, func(x float64) bool { return x > 0 },
-			"a conductance above 0 S, for example 150uS"},
-		{TargetGMRippleMax, units.Percent, &t.GMRippleMax, func(x float64) bool { return x > 0 && x <= MaxRippleTarget },
-			"a ripple above 0 and at most 1000%, for example 20% or 0.2"},
-		{TargetPowerMax, units.Watt, &t.PowerMax, func(x float64) bool { return x > 0 },
-			"a power above 0 W, for example 200uW"},
-		{TargetAreaMax, units.SquareMetre, &t.AreaMax, func(x float64) bool { return x > 0 },
-			"an area above 0 m², for example 3000um2"},
-		{TargetTransitionWidthMax, units.Volt, &t.TransitionWidthMax, func(x float64) bool { return x > 0 },
-			"a width above 0 V, for example 200mV"},
-	}
-	for _, f := range fields {
-		x, ok, err := tm.Quantity(f.key, f.dim)
+	for _, e := range entries {
+		if !e.HasTarget() || e.Target.Window != nil {
+			continue
+		}
+		key := e.Target.Key
+		x, ok, err := tm.Quantity(key, e.Dim)
 		if err != nil {
 			return t, err
 		}
 		if !ok {
 			continue
 		}
-		if !f.ok(x) {
-			return t, tm.Errorf(f.key, "%s", f.want)
+		if !(x > 0) || (e.Target.Max > 0 && x > e.Target.Max) {
+			return t, tm.Errorf(key, "%s", e.Target.Want)
 		}
-		*f.dst = x
+		*e.Target.Limit(&t) = x
 	}
-	sm, ok, err := tm.Map(TargetSwitchover)
+	for _, e := range entries {
+		if !e.HasTarget() || e.Target.Window == nil {
+			continue
+		}
+		w, ok, err := readWindow(e, tm, rng)
+		if err != nil {
+			return t, err
+		}
+		if ok {
+			*e.Target.Window(&t) = w
+		}
+	}
+	return t, nil
+}
+
+// readWindow reads a window target {at, tolerance}, both required.
+func readWindow(e Entry, tm *units.Map, rng Range) (SwitchoverTarget, bool, error) {
+	var w SwitchoverTarget
+	sm, ok, err := tm.Map(e.Target.Key)
 	if err != nil || !ok {
-		return t, err
+		return w, false, err
 	}
 	if err := sm.Check("at", "tolerance"); err != nil {
-		return t, err
+		return w, false, err
 	}
 	if err := sm.Require("at", "tolerance"); err != nil {
-		return t, err
+		return w, false, err
 	}
-	at, _, err := sm.Quantity("at", units.Volt)
+	at, _, err := sm.Quantity("at", e.Dim)
 	if err != nil {
-		return t, err
+		return w, false, err
 	}
-	if at < rng.Low || at > rng.High {
-		return t, sm.Errorf("at", "a voltage within the input range (%s … %s)",
-			units.Format(rng.Low, units.Volt), units.Format(rng.High, units.Volt))
+	if e.Target.AtInRange && (at < rng.Low || at > rng.High) {
+		return w, false, sm.Errorf("at", "%s (%s … %s)", e.Target.AtWant,
+			units.Format(rng.Low, e.Dim), units.Format(rng.High, e.Dim))
 	}
-	tol, _, err := sm.Quantity("tolerance", units.Volt)
+	tol, _, err := sm.Quantity("tolerance", e.Dim)
 	if err != nil {
-		return t, err
+		return w, false, err
 	}
 	if !(tol > 0) {
-		return t, sm.Errorf("tolerance", "a tolerance above 0 V, for example 0.1V")
+		return w, false, sm.Errorf("tolerance", "%s", e.Target.Want)
 	}
-	t.Switchover = SwitchoverTarget{At: at, Tolerance: tol}
-	return t, nil
+	return SwitchoverTarget{At: at, Tolerance: tol}, true, nil
 }
 
 // nameList reads a top-level field holding a name or a list of names,

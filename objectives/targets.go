@@ -16,10 +16,18 @@ const (
 	TargetTransitionWidthMax = "transition_width_max"
 )
 
-// targetOrder is the order of Check and Names.
-func targetOrder() []string {
-	return []string{TargetGMMin, TargetGMRippleMax, TargetPowerMax, TargetAreaMax,
-		TargetSwitchover, TargetTransitionWidthMax}
+// targetOrder is the order of Check and Names: the spec keys of the
+// entries that a spec may bound, in the catalog's order.
+func targetOrder() []string { return targetKeysOf(catalog) }
+
+func targetKeysOf(entries []Entry) []string {
+	var out []string
+	for _, e := range entries {
+		if e.HasTarget() {
+			out = append(out, e.Target.Key)
+		}
+	}
+	return out
 }
 
 // The trade-off axes a spec sheet's pareto list may name. Every axis is
@@ -32,14 +40,34 @@ const (
 	AxisTransitionWidth = "transition_width"
 )
 
-// AxisNames returns every trade-off axis a spec may name, in a fixed order.
-func AxisNames() []string {
-	return []string{AxisGMRipple, AxisPower, AxisArea, AxisGMMin, AxisTransitionWidth}
+// AxisNames returns every trade-off axis a spec may name, in a fixed
+// order: those of DefaultPareto, then the others, each in the catalog's
+// order.
+func AxisNames() []string { return axisNamesOf(catalog) }
+
+func axisNamesOf(entries []Entry) []string {
+	out := defaultParetoOf(entries)
+	for _, e := range entries {
+		if e.IsAxis() && !e.Axis.Default {
+			out = append(out, e.Key)
+		}
+	}
+	return out
 }
 
 // DefaultPareto returns the trade-off axes of a spec that names none:
 // gm ripple, power and area (docs/search.md#trade-off-axes).
-func DefaultPareto() []string { return []string{AxisGMRipple, AxisPower, AxisArea} }
+func DefaultPareto() []string { return defaultParetoOf(catalog) }
+
+func defaultParetoOf(entries []Entry) []string {
+	var out []string
+	for _, e := range entries {
+		if e.IsAxis() && e.Axis.Default {
+			out = append(out, e.Key)
+		}
+	}
+	return out
+}
 
 // Natural scales of the trade-off axes when the spec sets no target on
 // them; see Spec.AxisScale.
@@ -93,10 +121,21 @@ type SwitchoverTarget struct {
 }
 
 // NoTargets returns Targets with every target unset (NaN).
-func NoTargets() Targets {
+func NoTargets() Targets { return noTargetsOf(catalog) }
+
+func noTargetsOf(entries []Entry) Targets {
+	var t Targets
 	nan := math.NaN()
-	return Targets{GMMin: nan, GMRippleMax: nan, PowerMax: nan, AreaMax: nan,
-		Switchover: SwitchoverTarget{At: nan, Tolerance: nan}, TransitionWidthMax: nan}
+	for _, e := range entries {
+		switch {
+		case !e.HasTarget():
+		case e.Target.Window != nil:
+			*e.Target.Window(&t) = SwitchoverTarget{At: nan, Tolerance: nan}
+		default:
+			*e.Target.Limit(&t) = nan
+		}
+	}
+	return t
 }
 
 // isLimit reports whether x is a set limit: positive and finite (NaN is
@@ -108,31 +147,50 @@ func isFinite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 // Has reports whether the target with that spec key is set; false for a
 // name that is no target.
 func (t Targets) Has(name string) bool {
-	switch name {
-	case TargetGMMin:
-		return isLimit(t.GMMin)
-	case TargetGMRippleMax:
-		return isLimit(t.GMRippleMax)
-	case TargetPowerMax:
-		return isLimit(t.PowerMax)
-	case TargetAreaMax:
-		return isLimit(t.AreaMax)
-	case TargetSwitchover:
-		return isLimit(t.Switchover.Tolerance) && isFinite(t.Switchover.At)
-	case TargetTransitionWidthMax:
-		return isLimit(t.TransitionWidthMax)
+	e := find(catalog, name)
+	return e != nil && e.HasTarget() && e.Target.Key == name && t.has(e)
+}
+
+// has reports whether e's target is set in t.
+func (t *Targets) has(e *Entry) bool {
+	if e.Target.Window != nil {
+		w := e.Target.Window(t)
+		return isLimit(w.Tolerance) && isFinite(w.At)
 	}
-	return false
+	return isLimit(*e.Target.Limit(t))
+}
+
+// Bound returns the target with that spec key: its limit (a window's
+// centre At) and a window's tolerance (0 for a limit); NaN, NaN for a
+// name that is no target. Whether it is set is Has's to say.
+func (t Targets) Bound(name string) (limit, tol float64) {
+	e := find(catalog, name)
+	if e == nil || !e.HasTarget() || e.Target.Key != name {
+		return math.NaN(), math.NaN()
+	}
+	return t.limit(e)
+}
+
+// limit returns e's target in t: the limit and, for a Window, the
+// tolerance (0 otherwise).
+func (t *Targets) limit(e *Entry) (limit, tol float64) {
+	if e.Target.Window != nil {
+		w := e.Target.Window(t)
+		return w.At, w.Tolerance
+	}
+	return *e.Target.Limit(t), 0
 }
 
 // Names returns the spec keys of the set targets, in the order gm_min,
 // gm_ripple_max, power_max, area_max, switchover, transition_width_max:
 // the order of Check's violations.
-func (t Targets) Names() []string {
+func (t Targets) Names() []string { return t.namesOf(catalog) }
+
+func (t Targets) namesOf(entries []Entry) []string {
 	var out []string
-	for _, n := range targetOrder() {
-		if t.Has(n) {
-			out = append(out, n)
+	for i := range entries {
+		if e := &entries[i]; e.HasTarget() && t.has(e) {
+			out = append(out, e.Target.Key)
 		}
 	}
 	return out
@@ -185,50 +243,25 @@ func (v Violation) MarshalJSON() ([]byte, error) {
 // zero. A missing switchover or transition width (NaN: a single pair has
 // no handover), and any other NaN or infinite value, fails with Amount
 // MissingAmount.
-func (t Targets) Check(m Metrics) []Violation {
+//
+// The entries of the catalog say which targets there are, their senses
+// and the unbounded figures (Entry.Unbounded, Entry.Cap).
+func (t Targets) Check(m Metrics) []Violation { return t.checkOf(catalog, m) }
+
+func (t Targets) checkOf(entries []Entry, m Metrics) []Violation {
 	var out []Violation
-	above := func(name string, value, limit float64) { // value must be ≥ limit
-		amt := MissingAmount
-		if isFinite(value) {
-			amt = math.Max(0, (limit-value)/limit)
+	for i := range entries {
+		e := &entries[i]
+		if !e.HasTarget() || !t.has(e) {
+			continue
 		}
-		out = append(out, Violation{Target: name, Value: value, Limit: limit, Amount: amt})
-	}
-	below := func(name string, value, limit float64) { // value must be ≤ limit
-		amt := MissingAmount
-		if isFinite(value) {
-			amt = math.Max(0, (value-limit)/limit)
+		value := e.Value(m)
+		limit, tol := t.limit(e)
+		amt := amount(e.Sense, value, limit, tol)
+		if e.Unbounded && math.IsInf(value, 1) {
+			amt = math.Max(MissingAmount, amount(e.Sense, e.Cap, limit, tol))
 		}
-		out = append(out, Violation{Target: name, Value: value, Limit: limit, Amount: amt})
-	}
-	if t.Has(TargetGMMin) {
-		above(TargetGMMin, m.GMMin, t.GMMin)
-	}
-	if t.Has(TargetGMRippleMax) {
-		lim := t.GMRippleMax
-		if math.IsInf(m.GMRipple, 1) {
-			out = append(out, Violation{Target: TargetGMRippleMax, Value: m.GMRipple, Limit: lim,
-				Amount: math.Max(MissingAmount, (RippleCap-lim)/lim)})
-		} else {
-			below(TargetGMRippleMax, m.GMRipple, lim)
-		}
-	}
-	if t.Has(TargetPowerMax) {
-		below(TargetPowerMax, m.Power, t.PowerMax)
-	}
-	if t.Has(TargetAreaMax) {
-		below(TargetAreaMax, m.Area, t.AreaMax)
-	}
-	if t.Has(TargetSwitchover) {
-		sw := t.Switchover
-		amt := MissingAmount
-		if isFinite(m.Switchover) {
-			amt = math.Max(0, (math.Abs(m.Switchover-sw.At)-sw.Tolerance)/sw.Tolerance)
-		}
-		out = append(out, Violation{Target: TargetSwitchover, Value: m.Switchover, Limit: sw.At, Amount: amt})
-	}
-	if t.Has(TargetTransitionWidthMax) {
-		below(TargetTransitionWidthMax, m.TransitionWidth, t.TransitionWidthMax)
+		out = append(out, Violation{Target: e.Target.Key, Value: value, Limit: limit, Amount: amt})
 	}
 	return out
 }
@@ -246,25 +279,23 @@ func TotalViolation(vs []Violation) float64 {
 // MarshalJSON writes the set targets only, by their spec keys, in SI
 // units: {"gm_min": 1.5e-4, "switchover": {"at": 0.9, "tolerance": 0.1}, …};
 // {} when none is set.
-func (t Targets) MarshalJSON() ([]byte, error) {
+func (t Targets) MarshalJSON() ([]byte, error) { return json.Marshal(t.jsonOf(catalog)) }
+
+func (t Targets) jsonOf(entries []Entry) map[string]any {
 	out := map[string]any{}
-	for _, n := range t.Names() {
-		switch n {
-		case TargetGMMin:
-			out[n] = t.GMMin
-		case TargetGMRippleMax:
-			out[n] = t.GMRippleMax
-		case TargetPowerMax:
-			out[n] = t.PowerMax
-		case TargetAreaMax:
-			out[n] = t.AreaMax
-		case TargetSwitchover:
-			out[n] = map[string]float64{"at": t.Switchover.At, "tolerance": t.Switchover.Tolerance}
-		case TargetTransitionWidthMax:
-			out[n] = t.TransitionWidthMax
+	for i := range entries {
+		e := &entries[i]
+		if !e.HasTarget() || !t.has(e) {
+			continue
+		}
+		limit, tol := t.limit(e)
+		if e.Target.Window != nil {
+			out[e.Target.Key] = map[string]float64{"at": limit, "tolerance": tol}
+		} else {
+			out[e.Target.Key] = limit
 		}
 	}
-	return json.Marshal(out)
+	return out
 }
 
 // Axes returns the values of m on the spec's trade-off axes (s.Pareto, in
@@ -280,36 +311,25 @@ func (t Targets) MarshalJSON() ([]byte, error) {
 //	                  input range, the widest a transition can be there
 //
 // An axis name the spec does not know gives NaN.
-func (s *Spec) Axes(m Metrics) []float64 {
+//
+// The entries of the catalog give each axis's sense (Entry.Sense) and its
+// stand-in for a missing value (Axis.Missing).
+func (s *Spec) Axes(m Metrics) []float64 { return s.axesOf(catalog, m) }
+
+func (s *Spec) axesOf(entries []Entry, m Metrics) []float64 {
 	out := make([]float64, len(s.Pareto))
 	for i, a := range s.Pareto {
-		var v float64
-		switch a {
-		case AxisGMRipple:
-			v = m.GMRipple
-			if !isFinite(v) {
-				v = RippleCap
-			}
-		case AxisPower, AxisArea:
-			v = m.Power
-			if a == AxisArea {
-				v = m.Area
-			}
-			if !isFinite(v) {
-				v = worstAxisValue
-			}
-		case AxisGMMin:
-			v = 0 - m.GMMin // 0 − x, so that gm_min = 0 gives +0, not −0
-			if !isFinite(v) {
-				v = 0
-			}
-		case AxisTransitionWidth:
-			v = m.TransitionWidth
-			if !isFinite(v) {
-				v = s.Range.High - s.Range.Low
-			}
-		default:
-			v = math.NaN()
+		e := find(entries, a)
+		if e == nil || e.Key != a || !e.IsAxis() {
+			out[i] = math.NaN()
+			continue
+		}
+		v := e.Value(m)
+		if e.Sense == AtLeast {
+			v = 0 - v // 0 − x, so that x = 0 gives +0, not −0
+		}
+		if !isFinite(v) {
+			v = e.Axis.Missing(s.Range)
 		}
 		out[i] = v
 	}
@@ -322,27 +342,17 @@ func (s *Spec) Axes(m Metrics) []float64 {
 // transition_width_max), else a default: ripple 1.0 (a doubling), power
 // 1 mW, area 10 000 µm², gm_min 100 µS, transition width 0.2 V. The scale
 // is positive; an axis name the spec does not know gives 1.
-func (s *Spec) AxisScale(axis string) float64 {
-	pick := func(limit, def float64) float64 {
-		if isLimit(limit) {
-			return limit
-		}
-		return def
+func (s *Spec) AxisScale(axis string) float64 { return s.axisScaleOf(catalog, axis) }
+
+func (s *Spec) axisScaleOf(entries []Entry, axis string) float64 {
+	e := find(entries, axis)
+	if e == nil || e.Key != axis || !e.IsAxis() {
+		return defaultScaleUnknown
 	}
-	t := s.Targets
-	switch axis {
-	case AxisGMRipple:
-		return pick(t.GMRippleMax, DefaultScaleGMRipple)
-	case AxisPower:
-		return pick(t.PowerMax, DefaultScalePower)
-	case AxisArea:
-		return pick(t.AreaMax, DefaultScaleArea)
-	case AxisGMMin:
-		return pick(t.GMMin, DefaultScaleGMMin)
-	case AxisTransitionWidth:
-		return pick(t.TransitionWidthMax, DefaultScaleTransitionWidth)
+	if e.HasTarget() && e.Target.Limit != nil && s.Targets.has(e) {
+		return *e.Target.Limit(&s.Targets)
 	}
-	return defaultScaleUnknown
+	return e.Axis.Scale
 }
 
 // Tightened returns the targets moved inwards by the fraction margin: the
@@ -350,25 +360,23 @@ func (s *Spec) AxisScale(axis string) float64 {
 // lowered by it. A search that meets the tightened targets leaves that
 // much room for the difference between its models and the designer's
 // simulator (a guard band: common practice, no source).
-func (t Targets) Tightened(margin float64) Targets {
+func (t Targets) Tightened(margin float64) Targets { return t.tightenedOf(catalog, margin) }
+
+func (t Targets) tightenedOf(entries []Entry, margin float64) Targets {
 	u := t
-	if t.Has(TargetGMMin) {
-		u.GMMin = t.GMMin * (1 + margin)
-	}
-	if t.Has(TargetGMRippleMax) {
-		u.GMRippleMax = t.GMRippleMax * (1 - margin)
-	}
-	if t.Has(TargetPowerMax) {
-		u.PowerMax = t.PowerMax * (1 - margin)
-	}
-	if t.Has(TargetAreaMax) {
-		u.AreaMax = t.AreaMax * (1 - margin)
-	}
-	if t.Has(TargetSwitchover) {
-		u.Switchover.Tolerance = t.Switchover.Tolerance * (1 - margin)
-	}
-	if t.Has(TargetTransitionWidthMax) {
-		u.TransitionWidthMax = t.TransitionWidthMax * (1 - margin)
+	for i := range entries {
+		e := &entries[i]
+		if !e.HasTarget() || !t.has(e) {
+			continue
+		}
+		switch e.Sense {
+		case AtLeast:
+			*e.Target.Limit(&u) *= 1 + margin
+		case AtMost:
+			*e.Target.Limit(&u) *= 1 - margin
+		case Window:
+			e.Target.Window(&u).Tolerance *= 1 - margin
+		}
 	}
 	return u
 }

@@ -5,7 +5,6 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
-	"math"
 	"os"
 	"path"
 	"path/filepath"
@@ -379,26 +378,28 @@ func Summary(res *sizing.Result, opt RunOptions) ([]byte, error) {
 }
 
 // MetricColumns are the metric columns of pareto.csv, with their SI units
-// in the names.
+// in the names: every figure's Entry.Column, in the catalog's order.
 func MetricColumns() []string {
-	return []string{"gm_min_S", "gm_max_S", "gm_ripple", "power_W", "area_m2", "switchover_V", "transition_width_V", "gm_id_min_per_V"}
+	var out []string
+	for _, e := range objectives.Figures() {
+		out = append(out, e.Column)
+	}
+	return out
 }
 
 // axisColumn names the column of a trade-off axis's value in pareto.csv:
-// "axis_power_W". gm_min is minimised as −gm_min (see Spec.Axes), so its
+// "axis_" and the figure's column, "axis_power_W". A figure that is
+// larger the better is minimised negated (see Spec.Axes), so gm_min's
 // column is "axis_neg_gm_min_S".
 func axisColumn(axis string) string {
-	switch axis {
-	case objectives.AxisPower:
-		return "axis_power_W"
-	case objectives.AxisArea:
-		return "axis_area_m2"
-	case objectives.AxisGMMin:
-		return "axis_neg_gm_min_S"
-	case objectives.AxisTransitionWidth:
-		return "axis_transition_width_V"
+	e, ok := objectives.Lookup(axis)
+	if !ok || e.Key != axis || !e.IsAxis() {
+		return "axis_" + axis
 	}
-	return "axis_" + axis
+	if e.Sense == objectives.AtLeast {
+		return "axis_neg_" + e.Column
+	}
+	return "axis_" + e.Column
 }
 
 // csvNum writes a value exactly (shortest form that reads back the same),
@@ -431,8 +432,10 @@ func ParetoCSV(res *sizing.Result) ([]byte, error) {
 			continue
 		}
 		m := c.Metrics
-		row := []string{c.ID, c.Topology, csvNum(m.GMMin), csvNum(m.GMMax), csvNum(m.GMRipple),
-			csvNum(m.Power), csvNum(m.Area), csvNum(m.Switchover), csvNum(m.TransitionWidth), csvNum(m.GMOverIDMin)}
+		row := []string{c.ID, c.Topology}
+		for _, e := range objectives.Figures() {
+			row = append(row, csvNum(e.Value(m)))
+		}
 		for _, v := range res.Spec.Axes(m) {
 			row = append(row, csvNum(v))
 		}
@@ -459,63 +462,27 @@ func MissTexts(spec *objectives.Spec, vs []objectives.Violation) []string {
 	return out
 }
 
+// missText is one phrase of MissTexts, in the words of the target's or
+// constraint's catalog entry (violationText); a window's tolerance is the
+// spec's.
 func missText(spec *objectives.Spec, v objectives.Violation) string {
-	q := func(x float64, unit string) string {
-		if math.IsNaN(x) {
-			return "none (no handover)"
-		}
-		return SI(x, unit, tableDigits)
+	e, ok := objectives.Lookup(v.Target)
+	if !ok || (e.Kind == objectives.Figure && e.Target.Key != v.Target) {
+		return fmt.Sprintf("%s %s (limit %s)", v.Target, SI(v.Value, "", tableDigits), SI(v.Limit, "", tableDigits))
 	}
-	switch v.Target {
-	case objectives.TargetGMMin:
-		return fmt.Sprintf("gm_min %s < %s", q(v.Value, "S"), q(v.Limit, "S"))
-	case objectives.TargetGMRippleMax:
-		return fmt.Sprintf("gm_ripple %s > %s", RippleText(v.Value), Percent(v.Limit))
-	case objectives.TargetPowerMax:
-		return fmt.Sprintf("power %s > %s", q(v.Value, "W"), q(v.Limit, "W"))
-	case objectives.TargetAreaMax:
-		return fmt.Sprintf("area %s > %s", areaText(v.Value), areaText(v.Limit))
-	case objectives.TargetSwitchover:
-		window := fmt.Sprintf("%s ± %s", q(v.Limit, "V"), q(spec.Targets.Switchover.Tolerance, "V"))
-		if math.IsNaN(v.Value) {
-			return "switchover none (no handover), wanted " + window
-		}
-		return fmt.Sprintf("switchover %s outside %s", q(v.Value, "V"), window)
-	case objectives.TargetTransitionWidthMax:
-		if math.IsNaN(v.Value) {
-			return fmt.Sprintf("transition_width none (no handover), wanted ≤ %s", q(v.Limit, "V"))
-		}
-		return fmt.Sprintf("transition_width %s > %s", q(v.Value, "V"), q(v.Limit, "V"))
-	case objectives.CheckGeometry:
-		return fmt.Sprintf("geometry: a drawn size %s against the rule %s", q(v.Value, "m"), q(v.Limit, "m"))
-	case objectives.CheckSaturation:
-		return fmt.Sprintf("saturation: |V_DS| − |V_DSAT| %s, want ≥ %s", q(v.Value, "V"), q(v.Limit, "V"))
-	case objectives.CheckValidity:
-		return fmt.Sprintf("level1_validity: overdrive %s < 4·U_T = %s (outside the square law)", q(v.Value, "V"), q(v.Limit, "V"))
-	}
-	return fmt.Sprintf("%s %s (limit %s)", v.Target, SI(v.Value, "", tableDigits), SI(v.Limit, "", tableDigits))
+	_, tol := spec.Targets.Bound(v.Target)
+	return violationText(e, v, tol)
 }
 
 // TargetTexts writes the spec's set targets for reading, one phrase each:
 // "gm_min ≥ 150 µS", "gm_ripple ≤ 20 %", "switchover 900 mV ± 100 mV".
+// Each is the figure's key and its bound (boundText).
 func TargetTexts(t objectives.Targets) []string {
 	var out []string
 	for _, n := range t.Names() {
-		switch n {
-		case objectives.TargetGMMin:
-			out = append(out, "gm_min ≥ "+SI(t.GMMin, "S", tableDigits))
-		case objectives.TargetGMRippleMax:
-			out = append(out, "gm_ripple ≤ "+Percent(t.GMRippleMax))
-		case objectives.TargetPowerMax:
-			out = append(out, "power ≤ "+SI(t.PowerMax, "W", tableDigits))
-		case objectives.TargetAreaMax:
-			out = append(out, "area ≤ "+areaText(t.AreaMax))
-		case objectives.TargetSwitchover:
-			out = append(out, fmt.Sprintf("switchover %s ± %s", SI(t.Switchover.At, "V", tableDigits),
-				SI(t.Switchover.Tolerance, "V", tableDigits)))
-		case objectives.TargetTransitionWidthMax:
-			out = append(out, "transition_width ≤ "+SI(t.TransitionWidthMax, "V", tableDigits))
-		}
+		e, _ := objectives.Lookup(n)
+		limit, tol := t.Bound(n)
+		out = append(out, e.Key+" "+boundText(e, limit, tol))
 	}
 	return out
 }

@@ -29,16 +29,21 @@ type pageDevice struct {
 
 // pageCandidate is one candidate as the report page lists it.
 type pageCandidate struct {
-	ID, Topology, Design, Netlist                 string
-	Status                                        string
-	GMMin, GMMax, Ripple, Power, Area, Switchover string
-	RippleCell                                    string // Ripple without its note, for table cells
-	Width, GMID, Score                            string
-	Misses                                        []string
-	Feasible, Pareto                              bool
-	Params                                        []pageParam
-	Devices                                       []pageDevice
-	MidVCM                                        string // where Devices were taken
+	ID, Topology, Design, Netlist string
+	Status                        string
+	// Its figures in running text, "gm_min 154.7 µS, ripple 7.3 %, …":
+	// those of every summary (objectives.InEvery), of the rankings
+	// (InRanking), those that Brief leaves out, and all.
+	Brief, Ranked, Rest, Full string
+	// Its figures as table cells: those of the rankings, of the ranked
+	// families (InFamilies), and all (the Pareto table).
+	RankedCells, FamilyCells, FrontCells []string
+	Score                                string
+	Misses                               []string
+	Feasible, Pareto                     bool
+	Params                               []pageParam
+	Devices                              []pageDevice
+	MidVCM                               string // where Devices were taken
 }
 
 // pageFamily is one row of the ranked families table.
@@ -75,6 +80,12 @@ type pageData struct {
 	All        []*pageCandidate
 	Glossary   []pageTerm
 	Files      []pageRow
+
+	// The figures' column heads of the tables of the rankings, of the
+	// ranked families and of the Pareto candidates, and how many columns
+	// the rankings' and the families' rows span.
+	RankedHeads, FamilyHeads, FrontHeads []string
+	RankedSpan, FamilySpan               int
 }
 
 // svgProlog matches what precedes the <svg element in a rendered figure
@@ -112,15 +123,15 @@ func candidateStatus(c *sizing.Candidate) string {
 // and, when it was evaluated, its transistors at the middle of the sweep.
 func candidateView(spec *objectives.Spec, c *sizing.Candidate) *pageCandidate {
 	m := c.Metrics
-	sw, _ := handoverParts(m.Switchover, false)
-	tw, _ := handoverParts(m.TransitionWidth, false)
+	ranked, all := figuresUpTo(objectives.InRanking), objectives.Figures()
 	v := &pageCandidate{
 		ID: c.ID, Topology: c.Topology, Design: CandidateDesign(c.ID), Netlist: CandidateNetlist(c.ID),
-		Status: candidateStatus(c), GMMin: SI(m.GMMin, "S", tableDigits), GMMax: SI(m.GMMax, "S", tableDigits),
-		Ripple: RippleText(m.GMRipple), RippleCell: ripplePlain(m.GMRipple), Power: SI(m.Power, "W", tableDigits), Area: areaText(m.Area),
-		Switchover: sw, Width: tw, GMID: gmIDText(m.GMOverIDMin), Score: ScoreText(c.Score),
+		Status: candidateStatus(c), Score: ScoreText(c.Score),
 		Misses: MissTexts(spec, c.Violations), Feasible: c.Feasible, Pareto: c.Pareto,
 	}
+	v.Brief, v.Rest = figuresProse(figuresUpTo(objectives.InEvery), m), figuresProse(figuresBeyond(objectives.InEvery), m)
+	v.Ranked, v.Full = figuresProse(ranked, m), figuresProse(all, m)
+	v.RankedCells, v.FamilyCells, v.FrontCells = figureCells(ranked, m), figureCells(figuresUpTo(objectives.InFamilies), m), figureCells(all, m)
 	if c.Design != nil {
 		v.Params = paramRows(c.Design)
 	}
@@ -236,22 +247,24 @@ func specRows(spec *objectives.Spec) []pageRow {
 }
 
 // glossary explains every metric and figure the page shows (docs/metrics.md,
-// objectives.Metrics, optimize.Score and objectives.Targets.Check).
+// objectives.Metrics, optimize.Score and objectives.Targets.Check): gm,
+// then every figure of the catalog in its own words (objectives.Words.Doc),
+// then the devices' g_m/I_D, the score, violations and the front.
 func glossary() []pageTerm {
-	return []pageTerm{
+	terms := []pageTerm{
 		{"gm", "the input stage's transconductance: d I_out / d V_id at V_id = 0, the exact derivative of the linearised circuit at each common-mode point (not a finite difference)."},
-		{"gm_min, gm_max", "the smallest and largest gm over the spec's common-mode range, sampled at its step."},
-		{"gm_ripple", fmt.Sprintf("gm_max / gm_min − 1 (42 %% means gm_max is 1.42 × gm_min). It is ∞ where gm falls to zero somewhere in the range (below %s of gm_max: a pair switched off near its rail), which fails every ripple target.", Percent(objectives.DeadGM))},
-		{"power", "the supply voltage × the total current drawn from the supply, the largest value over the sweep. The current includes every tail and its reference (bias) branch, the switch and mirror branches of the families that have them, and the NMOS pair's current, which the summing stage above it draws from the supply; the ideal reference voltages a family receives (vref) are taken to draw none."},
-		{"area", "the total gate area Σ W·L·m of every transistor of the stage, in µm²; routing, spacing and the summing stage are not included."},
-		{"switchover", "the centre of the handover from the PMOS to the NMOS pair: ∫ vcm · d share / ∫ d share over the range, with share = i_n / (i_n + i_p), the NMOS pair's part of the input-pair current. A single pair has none (—)."},
-		{"transition_width", "how wide the handover is: from the lowest vcm where share reaches 10 % to the highest where it is still below 90 %. A single pair has none (—)."},
-		{"gm_id_min", "the smallest 2·gm / (i_n + i_p) over the range, in 1/V: the input transistors' gm/I_D where they are most strongly inverted. Physics bounds gm/I_D by 1/(n·U_T), its weak-inversion value (about 25–30 /V at room temperature); a level-1 model, which has no weak inversion, can exceed that, so on level-1 processes the search requires gm/I_D ≤ 1/(2·U_T) somewhere in the range (strong inversion)."},
-		{"g_m/I_D (devices)", "one transistor's gm over its drain current at the middle of the sweep: about 1/(n·U_T) in weak inversion, falling as the overdrive grows."},
-		{"score", "the augmented weighted Tchebycheff scalarisation (Steuer and Choo, 1983) of the trade-off axes, each divided by its budget or natural scale: the largest such fraction plus 1 % of their sum. Lower is better; below 1 every axis is within its budget. The best candidate is the front member of lowest score."},
-		{"violations", fmt.Sprintf("how far a candidate is from each target it misses, divided by the target (for the switchover, the distance outside the window divided by the tolerance); a candidate is feasible when every violation is zero. The search keeps a guard band of %s from every target, and the nearest misses are those of least total violation.", Percent(sizing.Margin))},
-		{"Pareto front", "the feasible candidates that no other feasible candidate beats on every trade-off axis at once."},
 	}
+	for _, e := range objectives.Catalog() {
+		if e.Words.Doc != "" {
+			terms = append(terms, pageTerm{e.GlossaryTerm(), e.Words.Doc})
+		}
+	}
+	return append(terms,
+		pageTerm{"g_m/I_D (devices)", "one transistor's gm over its drain current at the middle of the sweep: about 1/(n·U_T) in weak inversion, falling as the overdrive grows."},
+		pageTerm{"score", "the augmented weighted Tchebycheff scalarisation (Steuer and Choo, 1983) of the trade-off axes, each divided by its budget or natural scale: the largest such fraction plus 1 % of their sum. Lower is better; below 1 every axis is within its budget. The best candidate is the front member of lowest score."},
+		pageTerm{"violations", fmt.Sprintf("how far a candidate is from each target it misses, divided by the target (for the switchover, the distance outside the window divided by the tolerance); a candidate is feasible when every violation is zero. The search keeps a guard band of %s from every target, and the nearest misses are those of least total violation.", Percent(sizing.Margin))},
+		pageTerm{"Pareto front", "the feasible candidates that no other feasible candidate beats on every trade-off axis at once."},
+	)
 }
 
 // RunPage returns report.html: one self-contained page (no external
@@ -280,6 +293,13 @@ func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG []byte) ([
 		CurvesSVG:  inlineSVG(curvesSVG),
 		Glossary:   glossary(),
 	}
+	d.RankedHeads = figureKeys(figuresUpTo(objectives.InRanking))
+	d.FamilyHeads = figureKeys(figuresUpTo(objectives.InFamilies))
+	d.FrontHeads = figureKeys(objectives.Figures())
+	// The families' rows: rank, then topology, best, status, the figures
+	// and evaluations; the other candidates': id, then topology, status,
+	// the figures, score and files.
+	d.RankedSpan, d.FamilySpan = len(d.RankedHeads)+4, len(d.FamilyHeads)+4
 	if d.Title == "" {
 		d.Title = "pairsmith run"
 	}
@@ -397,7 +417,7 @@ dl.glossary dd { margin: 0.1rem 0 0 1.5rem; }
 {{end}}<p class="sub">pairsmith run {{.Conditions}}</p>
 <p class="caution">{{.Caution}}</p>
 {{if .Feasible}}<div class="verdict ok">Best candidate: <strong><a href="#{{.Best.ID}}">{{.Best.ID}}</a></strong> ({{.Best.Topology}}), which meets every target:
-gm_min {{.Best.GMMin}}, ripple {{.Best.Ripple}}, power {{.Best.Power}}, area {{.Best.Area}}, switchover {{.Best.Switchover}}.
+{{.Best.Ranked}}.
 Files: <a href="{{.Best.Design}}"><code>{{.Best.Design}}</code></a>, <a href="{{.Best.Netlist}}"><code>{{.Best.Netlist}}</code></a>.</div>
 {{else}}<div class="verdict miss"><strong>No candidate meets the spec.</strong>
 {{if .Binding}}The targets that bind: {{range $i, $b := .Binding}}{{if $i}}, {{end}}<code>{{$b}}</code>{{end}}.{{end}}
@@ -414,16 +434,16 @@ Files: <a href="{{.Best.Design}}"><code>{{.Best.Design}}</code></a>, <a href="{{
 
 <h2>Families, ranked</h2>
 <div class="scroll"><table class="families">
-<tr><th>rank</th><th>topology</th><th>best</th><th>status</th><th>gm_min</th><th>gm_ripple</th><th>power</th><th>area</th><th>switchover</th><th>transition_width</th><th>evaluations</th></tr>
+<tr><th>rank</th><th>topology</th><th>best</th><th>status</th>{{range .FamilyHeads}}<th>{{.}}</th>{{end}}<th>evaluations</th></tr>
 {{range .Families}}{{if .Cand}}<tr class="{{if not .Cand.Feasible}}infeasible{{end}}{{if .Cand.Misses}} has-misses{{end}}"><td class="num">{{.Rank}}</td><td class="nowrap">{{.Topology}}</td>
 <td><a href="#{{.Cand.ID}}">{{.Cand.ID}}</a></td><td class="nowrap">{{.Status}}</td>
-<td class="num">{{.Cand.GMMin}}</td><td class="num">{{.Cand.RippleCell}}</td><td class="num">{{.Cand.Power}}</td><td class="num">{{.Cand.Area}}</td><td class="num">{{.Cand.Switchover}}</td><td class="num">{{.Cand.Width}}</td><td class="num">{{.Evaluations}}</td></tr>
-{{if .Cand.Misses}}<tr class="misses"><td></td><td colspan="10">misses {{range $i, $m := .Cand.Misses}}{{if $i}}; {{end}}{{$m}}{{end}}</td></tr>
-{{end}}{{else}}<tr class="infeasible"><td class="num">{{.Rank}}</td><td class="nowrap">{{.Topology}}</td><td>—</td><td class="nowrap">no result</td><td colspan="6">every evaluation failed (no DC solution or an invalid sizing)</td><td class="num">{{.Evaluations}}</td></tr>
+{{range .Cand.FamilyCells}}<td class="num">{{.}}</td>{{end}}<td class="num">{{.Evaluations}}</td></tr>
+{{if .Cand.Misses}}<tr class="misses"><td></td><td colspan="{{$.FamilySpan}}">misses {{range $i, $m := .Cand.Misses}}{{if $i}}; {{end}}{{$m}}{{end}}</td></tr>
+{{end}}{{else}}<tr class="infeasible"><td class="num">{{.Rank}}</td><td class="nowrap">{{.Topology}}</td><td>—</td><td class="nowrap">no result</td><td colspan="{{len $.FamilyHeads}}">every evaluation failed (no DC solution or an invalid sizing)</td><td class="num">{{.Evaluations}}</td></tr>
 {{end}}{{end}}</table></div>
 
 {{with or .Best .Nearest}}<h2>{{if $.Feasible}}Best candidate{{else}}Nearest candidate{{end}}: {{.ID}} ({{.Topology}})</h2>
-<p>{{.Status}}; gm_min {{.GMMin}}, gm_max {{.GMMax}}, ripple {{.Ripple}}, power {{.Power}}, area {{.Area}}, switchover {{.Switchover}}, transition width {{.Width}}, gm_id_min {{.GMID}}, score {{.Score}}.
+<p>{{.Status}}; {{.Full}}, score {{.Score}}.
 Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}"><code>{{.Netlist}}</code></a>.</p>
 {{if .Misses}}<p class="misses">misses {{range $i, $m := .Misses}}{{if $i}}; {{end}}{{$m}}{{end}}</p>{{end}}
 {{template "sizes" .}}
@@ -436,8 +456,8 @@ Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}
 <h2>Pareto candidates</h2>
 {{if .Front}}<p>{{.FrontText}}.{{if .Thinned}} The front holds more members than a run reports (at most ` + strconv.Itoa(sizing.MaxReportedFront) + `); the reported ones are those most spread along it by crowding distance, its extremes always kept.{{end}}</p>
 <div class="scroll"><table>
-<tr><th>id</th><th>topology</th><th>gm_min</th><th>gm_max</th><th>gm_ripple</th><th>power</th><th>area</th><th>switchover</th><th>transition_width</th><th>gm_id_min</th><th>score</th><th>files</th></tr>
-{{range .Front}}<tr><td><a href="#{{.ID}}">{{.ID}}</a></td><td class="nowrap">{{.Topology}}</td><td class="num">{{.GMMin}}</td><td class="num">{{.GMMax}}</td><td class="num">{{.RippleCell}}</td><td class="num">{{.Power}}</td><td class="num">{{.Area}}</td><td class="num">{{.Switchover}}</td><td class="num">{{.Width}}</td><td class="num">{{.GMID}}</td><td class="num">{{.Score}}</td>
+<tr><th>id</th><th>topology</th>{{range .FrontHeads}}<th>{{.}}</th>{{end}}<th>score</th><th>files</th></tr>
+{{range .Front}}<tr><td><a href="#{{.ID}}">{{.ID}}</a></td><td class="nowrap">{{.Topology}}</td>{{range .FrontCells}}<td class="num">{{.}}</td>{{end}}<td class="num">{{.Score}}</td>
 <td class="nowrap"><a href="{{.Design}}">yaml</a> <a href="{{.Netlist}}">cir</a></td></tr>
 {{end}}</table></div>
 {{else}}<p>No candidate meets the spec, so the front is empty.</p>
@@ -445,17 +465,17 @@ Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}
 {{if .Others}}<h2>Other reported candidates</h2>
 <p class="note">Each family's best when it is not on the reported front, and the nearest misses.</p>
 <div class="scroll"><table>
-<tr><th>id</th><th>topology</th><th>status</th><th>gm_min</th><th>gm_ripple</th><th>power</th><th>area</th><th>switchover</th><th>score</th><th>files</th></tr>
+<tr><th>id</th><th>topology</th><th>status</th>{{range .RankedHeads}}<th>{{.}}</th>{{end}}<th>score</th><th>files</th></tr>
 {{range .Others}}<tr class="{{if not .Feasible}}infeasible{{end}}{{if .Misses}} has-misses{{end}}"><td><a href="#{{.ID}}">{{.ID}}</a></td><td class="nowrap">{{.Topology}}</td><td class="nowrap">{{.Status}}</td>
-<td class="num">{{.GMMin}}</td><td class="num">{{.RippleCell}}</td><td class="num">{{.Power}}</td><td class="num">{{.Area}}</td><td class="num">{{.Switchover}}</td><td class="num">{{.Score}}</td>
+{{range .RankedCells}}<td class="num">{{.}}</td>{{end}}<td class="num">{{.Score}}</td>
 <td class="nowrap"><a href="{{.Design}}">yaml</a> <a href="{{.Netlist}}">cir</a></td></tr>
-{{if .Misses}}<tr class="misses"><td></td><td colspan="9">misses {{range $i, $m := .Misses}}{{if $i}}; {{end}}{{$m}}{{end}}</td></tr>
+{{if .Misses}}<tr class="misses"><td></td><td colspan="{{$.RankedSpan}}">misses {{range $i, $m := .Misses}}{{if $i}}; {{end}}{{$m}}{{end}}</td></tr>
 {{end}}{{end}}</table></div>
 {{end}}
 <h2>Every reported candidate</h2>
 <p class="note">Click a candidate for its parameters and its transistors at the middle of the sweep.</p>
-{{range .All}}<details id="{{.ID}}"><summary><strong>{{.ID}}</strong> {{.Topology}} — {{.Status}}; gm_min {{.GMMin}}, ripple {{.Ripple}}, power {{.Power}}, area {{.Area}}</summary>
-<p>gm_max {{.GMMax}}, switchover {{.Switchover}}, transition width {{.Width}}, gm_id_min {{.GMID}}, score {{.Score}}. Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}"><code>{{.Netlist}}</code></a>.</p>
+{{range .All}}<details id="{{.ID}}"><summary><strong>{{.ID}}</strong> {{.Topology}} — {{.Status}}; {{.Brief}}</summary>
+<p>{{if .Rest}}{{.Rest}}, {{end}}score {{.Score}}. Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}"><code>{{.Netlist}}</code></a>.</p>
 {{if .Misses}}<p class="misses">misses {{range $i, $m := .Misses}}{{if $i}}; {{end}}{{$m}}{{end}}</p>{{end}}
 {{template "sizes" .}}</details>
 {{end}}

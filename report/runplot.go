@@ -16,6 +16,7 @@ import (
 
 	"pairsmith/objectives"
 	"pairsmith/sizing"
+	"pairsmith/units"
 )
 
 // familyColours are the colours of the families in the run plots, in the
@@ -131,33 +132,24 @@ type axisView struct {
 	budget float64
 }
 
-// viewOf returns how an axis is drawn for a spec.
+// viewOf returns how an axis is drawn for a spec: the figure's plot label
+// (objectives.Words.Plot) and values, a fraction in per cent, with the
+// spec's target on it as its budget.
 func viewOf(spec *objectives.Spec, axis string) axisView {
-	t := spec.Targets
-	budget := func(name string, v float64) float64 {
-		if t.Has(name) {
-			return v
-		}
-		return math.NaN()
+	e, ok := objectives.Lookup(axis)
+	if !ok || e.Key != axis || e.Kind != objectives.Figure {
+		return axisView{axis, "", func(objectives.Metrics) float64 { return math.NaN() }, math.NaN()}
 	}
-	switch axis {
-	case objectives.AxisGMRipple:
-		return axisView{"gm ripple", "%", func(m objectives.Metrics) float64 { return 100 * m.GMRipple },
-			100 * budget(objectives.TargetGMRippleMax, t.GMRippleMax)}
-	case objectives.AxisPower:
-		return axisView{"power", "W", func(m objectives.Metrics) float64 { return m.Power },
-			budget(objectives.TargetPowerMax, t.PowerMax)}
-	case objectives.AxisArea:
-		return axisView{"area", "m²", func(m objectives.Metrics) float64 { return m.Area },
-			budget(objectives.TargetAreaMax, t.AreaMax)}
-	case objectives.AxisGMMin:
-		return axisView{"gm_min", "S", func(m objectives.Metrics) float64 { return m.GMMin },
-			budget(objectives.TargetGMMin, t.GMMin)}
-	case objectives.AxisTransitionWidth:
-		return axisView{"transition width", "V", func(m objectives.Metrics) float64 { return m.TransitionWidth },
-			budget(objectives.TargetTransitionWidthMax, t.TransitionWidthMax)}
+	budget := math.NaN()
+	if e.HasTarget() && spec.Targets.Has(e.Target.Key) {
+		budget, _ = spec.Targets.Bound(e.Target.Key)
 	}
-	return axisView{axis, "", func(objectives.Metrics) float64 { return math.NaN() }, math.NaN()}
+	v := axisView{name: e.PlotLabel(), unit: unitSymbol(e.Dim), value: e.Value, budget: budget}
+	if e.Dim == units.Percent {
+		v.unit, v.budget = "%", 100*budget
+		v.value = func(m objectives.Metrics) float64 { return 100 * e.Value(m) }
+	}
+	return v
 }
 
 // scaled returns the factor that brings an axis's values up to maxAbs into

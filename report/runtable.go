@@ -17,7 +17,8 @@ import (
 // RunTable writes the outcome of a run for a terminal: a line with the
 // spec and its targets; the families ranked, each with its best candidate
 // that meets the spec (or its nearest miss and what that misses) and the
-// candidate's gm_min, ripple, power, area, switchover and id; a line with
+// candidate's figures shown in rankings (objectives.InRanking: gm_min,
+// ripple, power, area, switchover) and id; a line with
 // the best candidate (or, when none meets the spec, the targets that bind
 // and the nearest candidate), where the run directory dir is, the
 // evaluations and their rate; and the caution.
@@ -30,8 +31,15 @@ func RunTable(w io.Writer, res *sizing.Result, dir string) error {
 	} else {
 		e.printf("targets: none (trade-offs only)\n\n")
 	}
-	t := &textTable{right: []bool{true, false, false, true, true, true, true, true, false}}
-	t.add("rank", "topology", "status", "gm_min", "ripple", "power", "area", "switchover", "id")
+	figs := figuresUpTo(objectives.InRanking)
+	right := []bool{true, false, false}
+	head := []string{"rank", "topology", "status"}
+	none := []string{"no result"}
+	for _, e := range figs {
+		right, head, none = append(right, true), append(head, e.ShortName()), append(none, "—")
+	}
+	t := &textTable{right: append(right, false)}
+	t.add(append(head, "id")...)
 	// A note goes on a line of its own below row (counted from the
 	// header, 0).
 	type note struct {
@@ -43,7 +51,7 @@ func RunTable(w io.Writer, res *sizing.Result, dir string) error {
 		rank := strconv.Itoa(f.Rank)
 		c := f.Best
 		if c == nil {
-			t.add(rank, f.Topology, "no result", "—", "—", "—", "—", "—", "—")
+			t.add(append(append([]string{rank, f.Topology}, none...), "—")...)
 			notes = append(notes, note{len(t.rows) - 1, "every evaluation failed (no DC solution or an invalid sizing)"})
 			continue
 		}
@@ -51,10 +59,7 @@ func RunTable(w io.Writer, res *sizing.Result, dir string) error {
 		if !c.Feasible {
 			status = "nearest miss"
 		}
-		m := c.Metrics
-		sw, _ := handoverParts(m.Switchover, false)
-		t.add(rank, f.Topology, status, SI(m.GMMin, "S", tableDigits), ripplePlain(m.GMRipple),
-			SI(m.Power, "W", tableDigits), areaText(m.Area), sw, c.ID)
+		t.add(append(append([]string{rank, f.Topology, status}, figureCells(figs, c.Metrics)...), c.ID)...)
 		if !c.Feasible {
 			notes = append(notes, note{len(t.rows) - 1, "misses " + strings.Join(MissTexts(spec, c.Violations), "; ")})
 		}
@@ -145,13 +150,6 @@ func nearest(res *sizing.Result) *sizing.Candidate {
 		}
 	}
 	return near
-}
-
-// ripplePlain is a ripple for a table cell: "12.3 %", or "∞" when gm
-// falls to zero.
-func ripplePlain(r float64) string {
-	v, _ := rippleParts(r)
-	return v
 }
 
 // lines returns the table's lines as write writes them, without their

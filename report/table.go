@@ -100,40 +100,18 @@ func singlePair(ev *objectives.Evaluation) bool {
 
 // RippleText writes a gm ripple for reading: "42.5 %", or
 // "∞ (gm falls to zero)" when it is unbounded (docs/metrics.md#missing-and-unbounded-values).
+// It is the ripple's figure in running text (figureProse).
 func RippleText(r float64) string {
-	v, note := rippleParts(r)
-	if note != "" {
-		return v + " " + note
-	}
-	return v
-}
-
-// rippleParts splits RippleText into the value and a note on why it has
-// none.
-func rippleParts(r float64) (value, note string) {
-	if math.IsInf(r, 1) {
-		return "∞", "(gm falls to zero)"
-	}
-	return Percent(r), ""
-}
-
-// handoverParts writes a switchover or transition width, or a dash and
-// the reason it has none.
-func handoverParts(v float64, single bool) (value, note string) {
-	switch {
-	case !math.IsNaN(v):
-		return SIFixed(v, "V", tableDigits), ""
-	case single:
-		return "—", "(single pair)"
-	default:
-		return "—", "(no complete handover)"
-	}
+	e, _ := objectives.Lookup(objectives.AxisGMRipple)
+	return figureProse(e, r)
 }
 
 // MetricsTable writes the metrics of an evaluation (docs/metrics.md) as a
 // short aligned table for a terminal: a line naming the topology,
-// process and conditions, one line per metric with an SI-prefixed unit
-// and what it means, and the caution that the figures are estimates.
+// process and conditions, one line per figure shown there
+// (objectives.InEval) with an SI-prefixed unit, why it has no value when
+// it has none, and what it means (objectives.Words.Meaning), and the
+// caution that the figures are estimates.
 func MetricsTable(w io.Writer, ev *objectives.Evaluation) error {
 	e := &errWriter{w: w}
 	m := ev.Metrics
@@ -148,16 +126,10 @@ func MetricsTable(w io.Writer, ev *objectives.Evaluation) error {
 		}
 		t.add(name, num, unit, meaning)
 	}
-	row("gm_min", SIFixed(m.GMMin, "S", tableDigits), "", "smallest gm over the sweep")
-	row("gm_max", SIFixed(m.GMMax, "S", tableDigits), "", "largest gm over the sweep")
-	v, note := rippleParts(m.GMRipple)
-	row("gm_ripple", v, note, "gm_max / gm_min − 1")
-	row("power", SIFixed(m.Power, "W", tableDigits), "", "supply power, largest over the sweep")
-	row("area", areaText(m.Area), "", "total gate area Σ W·L·m")
-	v, note = handoverParts(m.Switchover, single)
-	row("switchover", v, note, "centre of the NMOS/PMOS handover")
-	v, note = handoverParts(m.TransitionWidth, single)
-	row("transition_width", v, note, "NMOS share from 10 % to 90 %")
+	for _, f := range figuresUpTo(objectives.InEval) {
+		v, note := figureParts(f, f.Value(m), true, single)
+		row(f.Key, v, note, f.Words.Meaning)
+	}
 	t.write(e, "  ")
 	e.printf("\n%s\n", objectives.Caution)
 	return e.err
