@@ -11,7 +11,6 @@ import (
 	"gopkg.in/yaml.v3"
 
 	"pairsmith/sim"
-	"pairsmith/sim/device"
 	"pairsmith/topologies"
 	"pairsmith/units"
 )
@@ -24,10 +23,9 @@ const DefaultStep = 10e-3
 type Design struct {
 	Topology   string
 	ProcessRef string // as written: a built-in name or a path relative to the file
-	Process    *device.Process
-	Supply     float64 // V
-	TempK      float64 // K
-	Sweep      sim.SweepSpec
+	// Conditions are the process, the supply and the temperature.
+	topologies.Conditions
+	Sweep sim.SweepSpec
 	// SaturationMargin is the file's saturation_margin, V, overriding the
 	// process's (Process already carries it); 0 when the file gives none.
 	SaturationMargin float64
@@ -37,11 +35,6 @@ type Design struct {
 
 // Family returns the design's family.
 func (d *Design) Family() (topologies.Family, error) { return topologies.Lookup(d.Topology) }
-
-// Conditions returns the conditions the design is built for.
-func (d *Design) Conditions() topologies.Conditions {
-	return topologies.Conditions{Process: d.Process, Supply: d.Supply, TempK: d.TempK}
-}
 
 // LoadDesign reads a design file.
 func LoadDesign(path string) (*Design, error) {
@@ -87,7 +80,7 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 	if err != nil {
 		return nil, err
 	}
-	d.ProcessRef, d.Process, d.Supply, d.TempK = cond.ProcessRef, cond.Process, cond.Supply, cond.TempK
+	d.ProcessRef, d.Conditions = cond.ProcessRef, cond.Conditions
 	d.SaturationMargin = cond.Margin
 	d.Sweep = sim.SweepSpec{Low: 0, High: d.Supply, Step: DefaultStep}
 	if sw, ok, err := m.Map("sweep"); err != nil {

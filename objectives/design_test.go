@@ -70,9 +70,9 @@ params:
 	if len(d.Params) != len(fam.Params()) {
 		t.Errorf("%d params, want every one of the family's %d", len(d.Params), len(fam.Params()))
 	}
-	cond := d.Conditions()
+	cond := d.Conditions
 	if cond.Process != d.Process || cond.Supply != 1.8 || cond.TempK != 233.15 {
-		t.Errorf("Conditions() = %+v", cond)
+		t.Errorf("Conditions = %+v", cond)
 	}
 }
 
@@ -160,7 +160,7 @@ func randomDesign(r *rand.Rand, f topologies.Family) *objectives.Design {
 		temp = math.Round(temp*100) / 100 // a value with a short °C form
 	}
 	return &objectives.Design{
-		Topology: f.Name(), ProcessRef: "demo18-l1", Supply: supply, TempK: temp,
+		Topology: f.Name(), ProcessRef: "demo18-l1", Conditions: topologies.Conditions{Supply: supply, TempK: temp},
 		Sweep:  sim.SweepSpec{Low: low, High: high, Step: step},
 		Params: v,
 	}
@@ -255,7 +255,7 @@ func TestFormatProcessPath(t *testing.T) {
 				t.Fatal(err)
 			}
 			fam, _ := topologies.Lookup("n-pair")
-			d := &objectives.Design{Topology: "n-pair", ProcessRef: name, Supply: 1.8, TempK: 300.15,
+			d := &objectives.Design{Topology: "n-pair", ProcessRef: name, Conditions: topologies.Conditions{Supply: 1.8, TempK: 300.15},
 				Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01}, Params: topologies.Defaults(fam)}
 			back, err := objectives.ReadDesign("round.yaml", d.Format(), dir)
 			if err != nil {

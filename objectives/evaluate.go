@@ -73,7 +73,7 @@ func Build(d *Design) (*topologies.Stage, error) {
 		return nil, err
 	}
 	d.Params = topologies.Snap(fam, d.Params, d.Process.Rules)
-	st, err := fam.Build(d.Params, d.Conditions())
+	st, err := fam.Build(d.Params, d.Conditions)
 	if err != nil {
 		return nil, fmt.Errorf("build %s: %w", d.Topology, err)
 	}

@@ -30,8 +30,8 @@ func design(t *testing.T, family string, given topologies.Values) *objectives.De
 	if err != nil {
 		t.Fatal(err)
 	}
-	return &objectives.Design{Topology: family, ProcessRef: "demo18-l1", Process: proc, Supply: 1.8,
-		TempK: 300.15, Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01}, Params: v}
+	return &objectives.Design{Topology: family, ProcessRef: "demo18-l1", Conditions: topologies.Conditions{Process: proc, Supply: 1.8, TempK: 300.15},
+		Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01}, Params: v}
 }
 
 func evaluate(t *testing.T, d *objectives.Design) *objectives.Evaluation {
@@ -412,7 +412,7 @@ func TestEvaluateDevices(t *testing.T) {
 func TestGMOverIDSquareLaw(t *testing.T) {
 	proc, _ := device.Builtin("demo18-l1")
 	f, _ := topologies.Lookup("n-pair")
-	d := &objectives.Design{Topology: "n-pair", ProcessRef: "demo18-l1", Process: proc, Supply: 1.8, TempK: 300.15,
+	d := &objectives.Design{Topology: "n-pair", ProcessRef: "demo18-l1", Conditions: topologies.Conditions{Process: proc, Supply: 1.8, TempK: 300.15},
 		Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01}, Params: topologies.Defaults(f)}
 	ev, err := objectives.Evaluate(d)
 	if err != nil {

@@ -214,8 +214,8 @@ func fuzzDesign(family, process uint8, supply, temp uint16, params []byte) *obje
 		v[p.Name] = math.Min(p.Max, math.Max(p.Min, x))
 	}
 	return &objectives.Design{
-		Topology: fam.Name(), ProcessRef: name, Process: proc, Supply: vdd,
-		TempK: float64(int(temp)%fuzzTempSteps-40) + units.ZeroCelsius,
+		Topology: fam.Name(), ProcessRef: name, Conditions: topologies.Conditions{Process: proc, Supply: vdd, TempK: float64(int(temp)%fuzzTempSteps-40) + units.ZeroCelsius},
+
 		Sweep: sim.SweepSpec{Low: 0, High: vdd, Step: objectives.DefaultStep}, Params: v,
 	}
 }

@@ -91,7 +91,7 @@ func lengthUses(fam topologies.Family, v topologies.Values, cond topologies.Cond
 // sets it when the design file writes one (pm, the params map, may be
 // nil), else at the process file's ld line.
 func checkDesignLengths(d *Design, fam topologies.Family, pm *units.Map) error {
-	uses, err := lengthUses(fam, d.Params, d.Conditions())
+	uses, err := lengthUses(fam, d.Params, d.Conditions)
 	if err != nil {
 		return err
 	}
@@ -137,7 +137,7 @@ func checkSpecLengths(s *Spec) error {
 			if err != nil {
 				return err
 			}
-			uses, err := lengthUses(fam, topologies.Defaults(fam), s.Conditions())
+			uses, err := lengthUses(fam, topologies.Defaults(fam), s.Conditions)
 			if err != nil {
 				return err
 			}

@@ -7,6 +7,7 @@ import (
 	"strings"
 
 	"pairsmith/sim/device"
+	"pairsmith/topologies"
 	"pairsmith/units"
 )
 
@@ -15,9 +16,7 @@ import (
 type conditions struct {
 	ProcessRef  string // as written
 	ProcessPath string // absolute path of a process file; "" for a built-in
-	Process     *device.Process
-	Supply      float64 // V
-	TempK       float64 // K
+	topologies.Conditions
 	// Margin is the file's saturation_margin, V; 0 when it gives none
 	// (the process's then holds). Process carries it already.
 	Margin float64

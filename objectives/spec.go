@@ -13,7 +13,6 @@ import (
 	"time"
 
 	"pairsmith/sim"
-	"pairsmith/sim/device"
 	"pairsmith/topologies"
 	"pairsmith/units"
 )
@@ -103,10 +102,9 @@ type Spec struct {
 	// ProcessPath is the absolute path of the process file, "" for a
 	// built-in process.
 	ProcessPath string
-	Process     *device.Process
-
-	Supply float64 // V
-	TempK  float64 // K; default 27 °C
+	// Conditions are the process, the supply and the temperature (default
+	// 27 °C) a stage must work at.
+	topologies.Conditions
 	// SaturationMargin is the sheet's saturation_margin, V, overriding the
 	// process's (Process already carries it); 0 when the sheet gives none.
 	SaturationMargin float64
@@ -196,8 +194,8 @@ func readSpec(m *units.Map, baseDir string) (*Spec, error) {
 	if err != nil {
 		return nil, err
 	}
-	s.ProcessRef, s.ProcessPath, s.Process = cond.ProcessRef, cond.ProcessPath, cond.Process
-	s.Supply, s.TempK, s.SaturationMargin = cond.Supply, cond.TempK, cond.Margin
+	s.ProcessRef, s.ProcessPath, s.Conditions = cond.ProcessRef, cond.ProcessPath, cond.Conditions
+	s.SaturationMargin = cond.Margin
 	s.Range, s.Step = Range{Low: 0, High: s.Supply}, DefaultStep
 	if rm, ok, err := m.Map("input_range"); err != nil {
 		return nil, err
@@ -459,11 +457,6 @@ func (s *Spec) Sweep() sim.SweepSpec {
 	return sim.SweepSpec{Low: s.Range.Low, High: s.Range.High, Step: s.Step}
 }
 
-// Conditions returns the conditions the spec asks a stage to work at.
-func (s *Spec) Conditions() topologies.Conditions {
-	return topologies.Conditions{Process: s.Process, Supply: s.Supply, TempK: s.TempK}
-}
-
 // Families returns the families of s.Topologies.
 func (s *Spec) Families() ([]topologies.Family, error) {
 	out := make([]topologies.Family, 0, len(s.Topologies))
@@ -491,8 +484,8 @@ func (s *Spec) Design(topology string, params topologies.Values) *Design {
 	for k, x := range params {
 		v[k] = x
 	}
-	return &Design{Topology: topology, ProcessRef: ref, Process: s.Process, Supply: s.Supply,
-		TempK: s.TempK, SaturationMargin: s.SaturationMargin, Sweep: s.Sweep(), Params: v}
+	return &Design{Topology: topology, ProcessRef: ref, Conditions: s.Conditions, SaturationMargin: s.SaturationMargin,
+		Sweep: s.Sweep(), Params: v}
 }
 
 // MarshalJSON writes the spec as summary.json's "spec": the spec sheet's

@@ -98,8 +98,8 @@ func TestReadSpecIssueExample(t *testing.T) {
 	if sw.Low != 0 || sw.High != 1.8 || sw.Step != 0.01 || sw.VID != 0 {
 		t.Errorf("Sweep() = %+v", sw)
 	}
-	if c := s.Conditions(); c.Process != s.Process || c.Supply != 1.8 || c.TempK != 300.15 {
-		t.Errorf("Conditions() = %+v", c)
+	if c := s.Conditions; c.Process != s.Process || c.Supply != 1.8 || c.TempK != 300.15 {
+		t.Errorf("Conditions = %+v", c)
 	}
 	fams, err := s.Families()
 	if err != nil || len(fams) != 7 || fams[3].Name() != "current-switch" {

@@ -462,7 +462,7 @@ func TestRandomLegalDecksObeyRules(t *testing.T) {
 						t.Fatal(err)
 					}
 					d := &objectives.Design{
-						Topology: f.Name(), ProcessRef: pname, Process: proc, Supply: supply, TempK: 27 + device.ZeroC,
+						Topology: f.Name(), ProcessRef: pname, Conditions: topologies.Conditions{Process: proc, Supply: supply, TempK: 27 + device.ZeroC},
 						Sweep: sim.SweepSpec{Low: 0, High: supply, Step: 0.05}, Params: v,
 					}
 					c, outcome := evaluateForRules(t, d)

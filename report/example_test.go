@@ -19,8 +19,8 @@ func ExampleMetricsTable() {
 	proc, _ := device.Builtin("demo18")
 	ev := &objectives.Evaluation{
 		Design: &objectives.Design{
-			Topology: "current-switch", ProcessRef: "demo18", Process: proc,
-			Supply: 1.8, TempK: 300.15, Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01},
+			Topology: "current-switch", ProcessRef: "demo18",
+			Conditions: topologies.Conditions{Process: proc, Supply: 1.8, TempK: 300.15}, Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01},
 		},
 		Stage: &topologies.Stage{PairN: [2]string{"M1", "M2"}, PairP: [2]string{"M3", "M4"}},
 		Metrics: objectives.Metrics{

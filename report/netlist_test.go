@@ -34,7 +34,7 @@ func familyDesign(t *testing.T, f topologies.Family, proc *device.Process, suppl
 		}
 	}
 	d := &objectives.Design{
-		Topology: f.Name(), ProcessRef: proc.Name, Process: proc, Supply: supply, TempK: 27 + device.ZeroC,
+		Topology: f.Name(), ProcessRef: proc.Name, Conditions: topologies.Conditions{Process: proc, Supply: supply, TempK: 27 + device.ZeroC},
 		Sweep: sim.SweepSpec{Low: 0, High: supply, Step: 0.01},
 	}
 	var err error

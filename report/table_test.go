@@ -22,7 +22,7 @@ func fakeEval(t *testing.T, topology string, m objectives.Metrics, single bool) 
 	if !ok {
 		t.Fatal("no demo18")
 	}
-	d := &objectives.Design{Topology: topology, ProcessRef: "demo18", Process: proc, Supply: 1.8, TempK: 300.15,
+	d := &objectives.Design{Topology: topology, ProcessRef: "demo18", Conditions: topologies.Conditions{Process: proc, Supply: 1.8, TempK: 300.15},
 		Sweep: sim.SweepSpec{Low: 0, High: 1.8, Step: 0.01}}
 	// A real sweep of the family (for the curve and point count), with
 	// the metrics and devices replaced by the case's own.

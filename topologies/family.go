@@ -20,7 +20,6 @@ import (
 	"strings"
 
 	"pairsmith/sim"
-	"pairsmith/sim/device"
 	"pairsmith/units"
 )
 
@@ -55,13 +54,6 @@ type Param struct {
 
 // Values maps parameter names to SI values.
 type Values map[string]float64
-
-// Conditions are the operating conditions a stage is built for.
-type Conditions struct {
-	Process *device.Process
-	Supply  float64 // V
-	TempK   float64 // K
-}
 
 // Family is one topology family.
 type Family interface {

@@ -102,7 +102,7 @@ func TestFamiliesAgainstNgspice(t *testing.T) {
 func compareWithNgspice(t *testing.T, f topologies.Family, v topologies.Values, proc *device.Process, supply float64) (gmErr, idErr float64) {
 	t.Helper()
 	d := &objectives.Design{
-		Topology: f.Name(), ProcessRef: proc.Name, Process: proc, Supply: supply, TempK: 27 + device.ZeroC,
+		Topology: f.Name(), ProcessRef: proc.Name, Conditions: topologies.Conditions{Process: proc, Supply: supply, TempK: 27 + device.ZeroC},
 		Sweep: sim.SweepSpec{Low: 0, High: supply, Step: 0.05},
 	}
 	var err error

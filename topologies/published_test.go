@@ -22,8 +22,8 @@ func evalOn(t *testing.T, family, process string, supply float64, params topolog
 	if !ok {
 		t.Fatalf("no built-in %s", process)
 	}
-	d := &objectives.Design{Topology: family, ProcessRef: process, Process: proc, Supply: supply,
-		TempK: 27 + device.ZeroC, Sweep: sim.SweepSpec{Low: 0, High: supply, Step: 0.01}}
+	d := &objectives.Design{Topology: family, ProcessRef: process, Conditions: topologies.Conditions{Process: proc, Supply: supply, TempK: 27 + device.ZeroC},
+		Sweep: sim.SweepSpec{Low: 0, High: supply, Step: 0.01}}
 	own := topologies.Values{} // the shared sizing, less what the family lacks
 	for k, v := range params {
 		if _, ok := topologies.ParamOf(f, k); ok {

@@ -101,8 +101,8 @@ func writeDemoDesign(t *testing.T, name string) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	d := &objectives.Design{Topology: family, ProcessRef: process, Process: proc, Supply: supply,
-		TempK: 27 + units.ZeroCelsius, Sweep: sim.SweepSpec{Low: 0, High: supply, Step: 10e-3},
+	d := &objectives.Design{Topology: family, ProcessRef: process, Conditions: topologies.Conditions{Process: proc, Supply: supply, TempK: 27 + units.ZeroCelsius},
+		Sweep:  sim.SweepSpec{Low: 0, High: supply, Step: 10e-3},
 		Params: demoParams(name, fam)}
 	at := "at its defaults"
 	if demoSizing(name) != nil {
