@@ -149,6 +149,8 @@ type system struct {
 	parts  [][]flatPart
 	output int // probe index or -1
 
+	// sig is the shape of the circuit compiled, for Rebind to compare.
+	sig shapeSig
 	// The sweep dependence the shape rests on: whether each voltage and
 	// current source's drive sweeps, and for each fixed node whether it
 	// moves with vid (JE has a column for each that does).
@@ -226,7 +228,10 @@ func shape(c *Circuit) (*system, error) {
 	for i := range fixedOf {
 		fixedOf[i] = -1
 	}
-	s := &system{c: c}
+	nm := len(c.Mosfets)
+	s := &system{c: c, mos: make([]mosStamp, 0, nm), all: make([]int, 0, nm), moving: make([]int, 0, nm),
+		res: make([]resStamp, 0, len(c.Resistors)), isrc: make([]isrcStamp, 0, len(c.ISources)),
+		vccs: make([]vccsStamp, 0, len(c.VCCSs))}
 	s.fixed = append(s.fixed, fixedNode{parent: -1, src: -1})
 	fixedOf[Ground] = 0
 
@@ -345,7 +350,7 @@ func shape(c *Circuit) (*system, error) {
 	if err != nil {
 		return nil, err
 	}
-	pos := s.layout(srcOf, probeTerms)
+	s.layout(srcOf, probeTerms)
 	s.direct = make([]float64, s.n)
 
 	for k, i := range floating {
@@ -405,7 +410,9 @@ func shape(c *Circuit) (*system, error) {
 		p, n, cp, cn := s.idx[g.P], s.idx[g.N], s.idx[g.CP], s.idx[g.CN]
 		s.vccs = append(s.vccs, vccsStamp{p: p, n: n, cp: cp, cn: cn, rp: s.rrow(p), rn: s.rrow(n)})
 	}
-	s.flatten(probeTerms, srcOf, pos)
+	s.flatten(probeTerms, srcOf)
+	s.sig = newShapeSig(c)
+	walkShape(c, &shapeCursor{sig: &s.sig, record: true})
 	return s, nil
 }
 
@@ -423,21 +430,11 @@ func (s *system) fixedDM(fixed []fixedNode, c *Circuit) {
 // fixed node's source reads the current delivered into that node and
 // into every node hanging from it; terms that read the same current are
 // merged. The coefficients are left for bind.
-func (s *system) flatten(probeTerms [][]probeTerm, srcOf []sourceRef, pos map[int]int) {
-	// hangs[q] lists q and the needed nodes below it, in the order of
-	// needed.
-	hangs := make([][]int, len(s.needed))
-	for q, k := range s.needed {
-		for a := k; a >= 1; a = s.fixed[a].parent {
-			if p, ok := pos[a]; ok {
-				hangs[p] = append(hangs[p], q)
-			}
-		}
-	}
+func (s *system) flatten(probeTerms [][]probeTerm, srcOf []sourceRef) {
 	for _, terms := range probeTerms {
-		var qs []qTerm
+		qs := make([]qTerm, 0, len(terms))
 		var vs []vTerm
-		var parts []flatPart
+		parts := make([]flatPart, 0, len(terms))
 		for ti, t := range terms {
 			ref := srcOf[t.src]
 			if ref.kind != 0 {
@@ -455,7 +452,10 @@ func (s *system) flatten(probeTerms [][]probeTerm, srcOf []sourceRef, pos map[in
 				parts = append(parts, flatPart{term: ti, at: at, branch: true, sign: 1})
 				continue
 			}
-			for _, q := range hangs[pos[ref.index]] {
+			for q := range s.needed {
+				if !s.hangsFrom(q, ref.index) {
+					continue
+				}
 				at := len(qs)
 				for j, o := range qs {
 					if o.q == q {
@@ -473,6 +473,17 @@ func (s *system) flatten(probeTerms [][]probeTerm, srcOf []sourceRef, pos map[in
 		s.probeV = append(s.probeV, vs)
 		s.parts = append(s.parts, parts)
 	}
+}
+
+// hangsFrom reports whether needed node q is fixed node k or hangs from
+// it through a chain of sources.
+func (s *system) hangsFrom(q, k int) bool {
+	for a := s.needed[q]; a >= 1; a = s.fixed[a].parent {
+		if a == k {
+			return true
+		}
+	}
+	return false
 }
 
 // newBranch lays out the branch of a floating voltage source (vsrc ≥ 0)
@@ -633,9 +644,8 @@ func (s *system) resolveProbes() ([][]probeTerm, error) {
 
 // layout finds the inputs' columns and the fixed rows the probes read, and
 // sizes the compact work array. srcOf locates each voltage source's
-// current (its fixed-node entries at least). It returns the position in
-// s.needed of each needed fixed node.
-func (s *system) layout(srcOf []sourceRef, probeTerms [][]probeTerm) map[int]int {
+// current (its fixed-node entries at least).
+func (s *system) layout(srcOf []sourceRef, probeTerms [][]probeTerm) {
 	for k, f := range s.fixed {
 		if f.dm != 0 {
 			s.eFix = append(s.eFix, k)
@@ -674,10 +684,6 @@ func (s *system) layout(srcOf []sourceRef, probeTerms [][]probeTerm) map[int]int
 	for e, k := range s.eFix {
 		s.colOf[s.fixed[k].idx] = s.n + e
 	}
-	pos := map[int]int{}
-	for q, k := range s.needed {
-		pos[k] = q
-	}
 	nF := len(s.needed)
 	s.nE = len(s.eFix)
 	s.oJE = s.n * s.n
@@ -686,7 +692,6 @@ func (s *system) layout(srcOf []sourceRef, probeTerms [][]probeTerm) map[int]int
 	s.trash = s.oFE + nF*s.nE
 	s.rTrash = s.n + nF
 	s.base = make([]float64, s.trash+trashSlots)
-	return pos
 }
 
 // movingUnknowns finds which unknowns can move with the sweep: those whose

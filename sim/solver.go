@@ -88,6 +88,10 @@ type Solver struct {
 	cbase, cres []float64
 	cvalid      bool
 
+	// Scratch of Rebind, kept from one call to the next.
+	dmBuf   []fixedNode
+	instBuf []device.Instance
+
 	// active is how many unknowns the last converged solve moved: n, or
 	// nD for a sweep's reduced step, whose factors are then the leading
 	// nD×nD block of J.
@@ -157,19 +161,21 @@ func (s *Solver) clone() *Solver {
 // newBuffers gives s zeroed work buffers of its own, sized for s.sys.
 func (s *Solver) newBuffers() {
 	sys := s.sys
-	n, N := sys.n, sys.N
-	s.v = make([]float64, N)
-	s.w = make([]float64, len(sys.base))
-	s.r = make([]float64, sys.rTrash+trashSlots)
+	n, N, nw, nr, nF := sys.n, sys.N, len(sys.base), sys.rTrash+trashSlots, len(sys.needed)
+	// The float buffers are cut from one allocation.
+	buf := make([]float64, 2*N+2*nw+2*nr+2*n+2*nF)
+	cut := func(k int) []float64 {
+		b := buf[:k:k]
+		buf = buf[k:]
+		return b
+	}
+	s.v, s.save = cut(N), cut(N)
+	s.w, s.cbase = cut(nw), cut(nw)
+	s.r, s.cres = cut(nr), cut(nr)
+	s.dx, s.rhs = cut(n), cut(n)
+	s.deliv, s.slope = cut(nF), cut(nF)
 	s.piv = make([]int, n)
-	s.dx = make([]float64, n)
-	s.rhs = make([]float64, n)
-	s.deliv = make([]float64, len(sys.needed))
-	s.slope = make([]float64, len(sys.needed))
-	s.save = make([]float64, N)
 	s.memo = make([]mosMemo, len(sys.mos))
-	s.cbase = make([]float64, len(sys.base))
-	s.cres = make([]float64, len(s.r))
 	s.cvalid = false
 }
 

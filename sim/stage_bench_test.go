@@ -111,3 +111,66 @@ func BenchmarkCompile(b *testing.B) {
 		})
 	}
 }
+
+// BenchmarkRebind times taking the values of another circuit of the same
+// shape into a compiled solver, alternating between two sizings of
+// railStage: what a candidate of a search pays instead of a compile.
+func BenchmarkRebind(b *testing.B) {
+	for _, tc := range []struct {
+		name string
+		ekv  bool
+	}{{"level1", false}, {"ekv", true}} {
+		b.Run(tc.name, func(b *testing.B) {
+			cs := []*Circuit{railStage(tc.ekv, 1, 1), railStage(tc.ekv, 1.5, 0.7)}
+			s, err := NewSolver(cs[0], Options{})
+			if err != nil {
+				b.Fatal(err)
+			}
+			b.ReportAllocs()
+			k := 0
+			for b.Loop() {
+				k ^= 1
+				if err := s.Rebind(cs[k]); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkCandidate times one candidate's solver and a 181-point sweep
+// (rail to rail in 10 mV), with a compile per candidate or a rebind of
+// one solver, on level-1 cards.
+func BenchmarkCandidate(b *testing.B) {
+	cs := []*Circuit{railStage(false, 1, 1), railStage(false, 1.5, 0.7)}
+	sp := SweepSpec{Low: 0, High: 1.8, Step: 0.01}
+	for _, rebind := range []bool{false, true} {
+		name := "compile"
+		if rebind {
+			name = "rebind"
+		}
+		b.Run(name, func(b *testing.B) {
+			s, err := NewSolver(cs[0], Options{})
+			if err != nil {
+				b.Fatal(err)
+			}
+			res := &Result{}
+			b.ReportAllocs()
+			k := 0
+			for b.Loop() {
+				k ^= 1
+				if rebind {
+					err = s.Rebind(cs[k])
+				} else {
+					s, err = NewSolver(cs[k], Options{})
+				}
+				if err != nil {
+					b.Fatal(err)
+				}
+				if err := s.Sweep(sp, res); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
