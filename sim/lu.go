@@ -21,6 +21,14 @@ func luFactor(a []float64, n, ld int, piv []int) bool {
 	if n == 0 {
 		return true
 	}
+	if n == 3 {
+		return luFactor3(a, ld, piv)
+	}
+	return factorLoops(a, n, ld, piv)
+}
+
+// factorLoops is luFactor's elimination with loops for any n ≥ 1.
+func factorLoops(a []float64, n, ld int, piv []int) bool {
 	a = a[:(n-1)*ld+n]
 	piv = piv[:n]
 	for k := 0; k < n; k++ {
@@ -51,6 +59,77 @@ func luFactor(a []float64, n, ld int, piv []int) bool {
 			}
 		}
 	}
+	return true
+}
+
+// luFactor3 is factorLoops for n = 3 written out, the most common size
+// of a sweep's moving block: the same operations in the same order, so
+// the same bits (TestLUFactor3 checks), held in registers.
+func luFactor3(a []float64, ld int, piv []int) bool {
+	a = a[:2*ld+3]
+	piv = piv[:3]
+	r0, r1, r2 := a[0:3:3], a[ld:ld+3:ld+3], a[2*ld:2*ld+3:2*ld+3]
+	a00, a01, a02 := r0[0], r0[1], r0[2]
+	a10, a11, a12 := r1[0], r1[1], r1[2]
+	a20, a21, a22 := r2[0], r2[1], r2[2]
+	ok := func(big float64) bool { return big > 0 && big <= math.MaxFloat64 }
+	// Column 0.
+	p, big := 0, math.Abs(a00)
+	if v := math.Abs(a10); v > big {
+		big, p = v, 1
+	}
+	if v := math.Abs(a20); v > big {
+		big, p = v, 2
+	}
+	piv[0] = p
+	if !ok(big) {
+		return false
+	}
+	switch p {
+	case 1:
+		a00, a01, a02, a10, a11, a12 = a10, a11, a12, a00, a01, a02
+	case 2:
+		a00, a01, a02, a20, a21, a22 = a20, a21, a22, a00, a01, a02
+	}
+	inv := 1 / a00
+	a00 = inv
+	f := a10 * inv
+	a10 = f
+	a11 -= f * a01
+	a12 -= f * a02
+	f = a20 * inv
+	a20 = f
+	a21 -= f * a01
+	a22 -= f * a02
+	// Column 1.
+	p, big = 1, math.Abs(a11)
+	if v := math.Abs(a21); v > big {
+		big, p = v, 2
+	}
+	piv[1] = p
+	if !ok(big) {
+		r0[0], r0[1], r0[2] = a00, a01, a02
+		r1[0], r1[1], r1[2] = a10, a11, a12
+		r2[0], r2[1], r2[2] = a20, a21, a22
+		return false
+	}
+	if p == 2 {
+		a10, a11, a12, a20, a21, a22 = a20, a21, a22, a10, a11, a12
+	}
+	inv = 1 / a11
+	a11 = inv
+	f = a21 * inv
+	a21 = f
+	a22 -= f * a12
+	// Column 2.
+	piv[2] = 2
+	r0[0], r0[1], r0[2] = a00, a01, a02
+	r1[0], r1[1], r1[2] = a10, a11, a12
+	if !ok(math.Abs(a22)) {
+		r2[0], r2[1], r2[2] = a20, a21, a22
+		return false
+	}
+	r2[0], r2[1], r2[2] = a20, a21, 1/a22
 	return true
 }
 

@@ -168,3 +168,49 @@ func BenchmarkLU(b *testing.B) {
 		})
 	}
 }
+
+// TestLUFactor3 checks that the written-out 3×3 factorisation gives the
+// loops' factors and pivots bit for bit, and the same verdict on singular
+// blocks, for random blocks inside larger arrays (with every pivot order)
+// and blocks with zero or non-finite pivots.
+func TestLUFactor3(t *testing.T) {
+	rng := rand.New(rand.NewPCG(9, 10))
+	var cases [][]float64
+	for trial := 0; trial < 300; trial++ {
+		a, _ := randomSystem(rng, 5, trial%2 == 1)
+		cases = append(cases, a)
+	}
+	for _, bad := range [][3]int{{0, 0, 0}, {1, 1, 1}, {2, 2, 2}} {
+		for _, v := range []float64{0, math.NaN(), math.Inf(1)} {
+			a, _ := randomSystem(rng, 5, false)
+			// Make column bad[0] of every row in the block v, or row-wise
+			// dependent, so that each elimination step can fail.
+			for i := 0; i < 3; i++ {
+				a[i*5+bad[0]] = v
+			}
+			cases = append(cases, a)
+			dep, _ := randomSystem(rng, 5, false)
+			copy(dep[5:8], dep[0:3]) // rows 0 and 1 equal: singular at step 1
+			cases = append(cases, dep)
+		}
+	}
+	for k, a := range cases {
+		x, y := append([]float64(nil), a...), append([]float64(nil), a...)
+		px, py := make([]int, 3), make([]int, 3)
+		okx, oky := luFactor3(x, 5, px), factorLoops(y, 3, 5, py)
+		if okx != oky {
+			t.Fatalf("case %d: written out %v, loops %v", k, okx, oky)
+		}
+		if !okx {
+			continue
+		}
+		for i := range x {
+			if math.Float64bits(x[i]) != math.Float64bits(y[i]) {
+				t.Fatalf("case %d: entry %d: written out %v, loops %v", k, i, x[i], y[i])
+			}
+		}
+		if px[0] != py[0] || px[1] != py[1] || px[2] != py[2] {
+			t.Fatalf("case %d: pivots %v, loops %v", k, px, py)
+		}
+	}
+}

@@ -604,16 +604,25 @@ func (s *Solver) post(wantGM bool) {
 	// J·dx/dvid = −(∂r/∂v_fixed · dv_fixed/dvid + ∂r/∂vid directly).
 	ev := sys.eVal
 	rhs := s.rhs[:m]
-	for i := range rhs {
-		o := sys.oJE + i*nE
-		rhs[i] = -dot(sys.direct[i], w[o:o+nE], ev)
+	if nE == 2 { // the two inputs: the usual case, written out
+		e0, e1 := ev[0], ev[1]
+		je := w[sys.oJE : sys.oJE+2*m]
+		for i := range rhs {
+			rhs[i] = -(sys.direct[i] + je[2*i]*e0 + je[2*i+1]*e1)
+		}
+	} else {
+		for i := range rhs {
+			o := sys.oJE + i*nE
+			rhs[i] = -dot(sys.direct[i], w[o:o+nE], ev)
+		}
 	}
 	clear(s.rhs[m:n])
 	luSolve(w[:n*n], m, n, s.piv, rhs)
 	// One pass over the F rows for both: the delivered current, and its
 	// slope, the F row times dx/dvid plus the FE row times the inputs'
 	// dv/dvid.
-	for q := range s.deliv {
+	deliv, slope := s.deliv, s.slope[:len(s.deliv)]
+	for q := range deliv {
 		o := sys.oF + q*n
 		row := w[o : o+m]
 		dx, rhs := dx[:len(row)], rhs[:len(row)]
@@ -622,9 +631,14 @@ func (s *Solver) post(wantGM bool) {
 			c += x * dx[j]
 			d += x * rhs[j]
 		}
+		deliv[q] = c
 		o = sys.oFE + q*nE
-		s.deliv[q] = c
-		s.slope[q] = dot(d, w[o:o+nE], ev)
+		if nE == 2 {
+			fe := w[o : o+2]
+			slope[q] = d + fe[0]*ev[0] + fe[1]*ev[1]
+		} else {
+			slope[q] = dot(d, w[o:o+nE], ev)
+		}
 	}
 }
 
