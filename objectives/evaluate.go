@@ -107,7 +107,7 @@ func sweep(d *Design) (*swept, error) {
 	if err := CheckPhysical(st, res); err != nil {
 		return nil, err
 	}
-	fs := Assess(st, res, s.DeviceOps(res, Checked(st, d.Process.Kind)), d.Process.Kind, d.Margin(), d.TempK)
+	fs := Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK)
 	return &swept{st: st, s: s, res: res, findings: fs}, nil
 }
 

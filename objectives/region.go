@@ -157,9 +157,10 @@ func (f Finding) String() string {
 // (volts) of every device whose duty needs it at every point where it
 // carries its working current, and on a level-1 process the square law's
 // validity of every device at every such point. ops are the devices'
-// operating points at every sweep point (sim.Solver.DeviceOps); tempK the
+// operating points at every sweep point (sim.Solver.DeviceColumn, from
+// the solver that swept res; nil for the geometry checks alone); tempK the
 // temperature.
-func Assess(st *topologies.Stage, res *sim.Result, ops *sim.DeviceSweep, kind string, margin, tempK float64) []Finding {
+func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, margin, tempK float64) []Finding {
 	var out []Finding
 	for _, g := range st.Geometry {
 		rule := "min"
@@ -178,10 +179,11 @@ func Assess(st *topologies.Stage, res *sim.Result, ops *sim.DeviceSweep, kind st
 				short(st.VHead, units.Volt), short(topologies.FoldOverdrive, units.Volt),
 				short(st.VHead-topologies.FoldOverdrive, units.Volt), short(margin, units.Volt))})
 	}
-	if ops == nil || len(ops.Op) == 0 {
+	if s == nil || res == nil || res.Len() == 0 {
 		return out
 	}
-	n := len(ops.Op)
+	n := res.Len()
+	var col sim.OpColumn
 	ut := device.ThermalVoltage(tempK)
 	c := st.Circuit
 	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
@@ -199,25 +201,26 @@ func Assess(st *topologies.Stage, res *sim.Result, ops *sim.DeviceSweep, kind st
 		if !want[k] {
 			continue
 		}
+		s.DeviceColumn(res, k, &col)
 		imax := 0.0
 		for i := 0; i < n; i++ {
-			imax = math.Max(imax, math.Abs(ops.Op[i][k].ID))
+			imax = math.Max(imax, math.Abs(col.ID[i]))
 		}
 		if !(imax > 0) {
 			continue
 		}
 		working := func(i int) bool {
-			op := ops.Op[i][k]
+			op := col.At(i)
 			return op.Region != device.Off && math.Abs(op.ID) >= WorkingFraction*imax
 		}
 		if dev.Duty == topologies.Saturated {
-			low := func(i int) bool { return SatHeadroom(ops.Op[i][k]) < margin }
+			low := func(i int) bool { return SatHeadroom(col.At(i)) < margin }
 			exempt := railTurnOff(n, low, working, func(i int) bool { return minor(dev.Side, i) })
-			f := spanFinding(CheckSaturation, dev, ops.VCM, func(i int) (bool, float64, float64, float64) {
+			f := spanFinding(CheckSaturation, dev, res.VCM, func(i int) (bool, float64, float64, float64) {
 				if !working(i) || !low(i) || exempt[i] {
 					return false, 0, 0, 0
 				}
-				op := ops.Op[i][k]
+				op := col.At(i)
 				need := math.Abs(op.VDSAT) + margin
 				return true, SatHeadroom(op), margin, (need - math.Abs(op.VDS)) / need
 			})
@@ -228,11 +231,11 @@ func Assess(st *topologies.Stage, res *sim.Result, ops *sim.DeviceSweep, kind st
 		}
 		if kind == "level1" {
 			lim := 4 * ut
-			f := spanFinding(CheckValidity, dev, ops.VCM, func(i int) (bool, float64, float64, float64) {
+			f := spanFinding(CheckValidity, dev, res.VCM, func(i int) (bool, float64, float64, float64) {
 				if !working(i) {
 					return false, 0, 0, 0
 				}
-				ov := overdrive(ops.Op[i][k])
+				ov := overdrive(col.At(i))
 				if ov >= lim {
 					return false, 0, 0, 0
 				}
