@@ -228,31 +228,34 @@ func TestHybridReusesEvaluations(t *testing.T) {
 // TestRefinementSkipsKnownStart checks that a Nelder–Mead run from a start
 // whose outcome is known spends its whole budget on other points, and that
 // without the outcome its first evaluation is the start (gonum's
-// Nelder–Mead evaluates its initial point first; the check would see it).
+// Nelder–Mead evaluates its initial point first; the check would see it),
+// with one lane and with two.
 func TestRefinementSkipsKnownStart(t *testing.T) {
-	for _, known := range []bool{true, false} {
-		p := &tiersProblem{}
-		r, err := newRunner(context.Background(), p, Settings{Evaluations: 100, Seed: 1})
-		if err != nil {
-			t.Fatal(err)
-		}
-		st := start{pt: Point{Family: tierLate, X: []float64{0.4, 0.6, 0.1, 0.2, 0.3, 0.9}}}
-		if known {
-			o := p.Evaluate(st.pt)
-			st.out = &o
-		}
-		const budget = 40
-		r.nelderMead(st, budget, 0)
-		res := r.result()
-		if res.Evaluations != budget {
-			t.Errorf("known start %v: %d evaluations, want the budget %d", known, res.Evaluations, budget)
-		}
-		again := false
-		for _, c := range res.All {
-			again = again || pointKey(c.Point.X) == pointKey(st.pt.X)
-		}
-		if again == known {
-			t.Errorf("known start %v: start evaluated by the run %v", known, again)
+	for _, lanes := range []int{1, 2} {
+		for _, known := range []bool{true, false} {
+			p := &tiersProblem{}
+			r, err := newRunner(context.Background(), p, Settings{Evaluations: 100, Seed: 1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			st := start{pt: Point{Family: tierLate, X: []float64{0.4, 0.6, 0.1, 0.2, 0.3, 0.9}}}
+			if known {
+				o := p.Evaluate(st.pt)
+				st.out = &o
+			}
+			const budget = 40
+			r.nelderMead(st, budget, 0, lanes)
+			res := r.result()
+			if res.Evaluations != budget {
+				t.Errorf("%d lanes, known start %v: %d evaluations, want the budget %d", lanes, known, res.Evaluations, budget)
+			}
+			again := false
+			for _, c := range res.All {
+				again = again || pointKey(c.Point.X) == pointKey(st.pt.X)
+			}
+			if again == known {
+				t.Errorf("%d lanes, known start %v: start evaluated by the run %v", lanes, known, again)
+			}
 		}
 	}
 }
