@@ -4,7 +4,9 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"runtime"
 	"strings"
+	"sync"
 
 	"pairsmith/sim"
 	"pairsmith/sim/device"
@@ -183,7 +185,6 @@ func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 		return out
 	}
 	n := res.Len()
-	var col sim.OpColumn
 	ut := device.ThermalVoltage(tempK)
 	c := st.Circuit
 	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
@@ -197,32 +198,66 @@ func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 		return side == topologies.NoSide || !(tot > 0) || mine <= 0.5*tot
 	}
 	want := Checked(st, kind)
-	for k, dev := range st.Devices {
-		if !want[k] {
-			continue
+	// Devices are checked in parallel, each worker with its own column and
+	// flags; the findings keep the devices' order.
+	per := make([][]Finding, len(st.Devices))
+	next := make(chan int)
+	var wg sync.WaitGroup
+	for w := 0; w < min(runtime.GOMAXPROCS(0), len(st.Devices)); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var col sim.OpColumn
+			work, low := make([]bool, n), make([]bool, n)
+			for k := range next {
+				per[k] = assessDevice(st.Devices[k], k, s, res, &col, work, low, minor, kind, margin, ut)
+			}
+		}()
+	}
+	for k := range st.Devices {
+		if want[k] {
+			next <- k
 		}
-		s.DeviceColumn(res, k, &col)
+	}
+	close(next)
+	wg.Wait()
+	for _, fs := range per {
+		out = append(out, fs...)
+	}
+	return out
+}
+
+// assessDevice makes the saturation and validity checks of device k of a
+// stage over a sweep, with col, work and low as its scratch space.
+func assessDevice(dev topologies.Device, k int, s *sim.Solver, res *sim.Result, col *sim.OpColumn, work, low []bool,
+	minor func(topologies.Side, int) bool, kind string, margin, ut float64) []Finding {
+	var out []Finding
+	n := res.Len()
+	{
+		s.DeviceColumn(res, k, col)
 		imax := 0.0
-		for i := 0; i < n; i++ {
-			imax = math.Max(imax, math.Abs(col.ID[i]))
+		for _, id := range col.ID {
+			if a := math.Abs(id); a > imax {
+				imax = a
+			}
 		}
 		if !(imax > 0) {
-			continue
+			return nil
 		}
-		working := func(i int) bool {
-			op := col.At(i)
-			return op.Region != device.Off && math.Abs(op.ID) >= WorkingFraction*imax
+		for i := range work {
+			work[i] = !col.Off[i] && math.Abs(col.ID[i]) >= WorkingFraction*imax
+			low[i] = math.Abs(col.VDS[i])-math.Abs(col.VDSAT[i]) < margin
 		}
 		if dev.Duty == topologies.Saturated {
-			low := func(i int) bool { return SatHeadroom(col.At(i)) < margin }
-			exempt := railTurnOff(n, low, working, func(i int) bool { return minor(dev.Side, i) })
+			exempt := railTurnOff(n, func(i int) bool { return low[i] }, func(i int) bool { return work[i] },
+				func(i int) bool { return minor(dev.Side, i) })
 			f := spanFinding(CheckSaturation, dev, res.VCM, func(i int) (bool, float64, float64, float64) {
-				if !working(i) || !low(i) || exempt[i] {
+				if !work[i] || !low[i] || exempt[i] {
 					return false, 0, 0, 0
 				}
-				op := col.At(i)
-				need := math.Abs(op.VDSAT) + margin
-				return true, SatHeadroom(op), margin, (need - math.Abs(op.VDS)) / need
+				vds, vdsat := math.Abs(col.VDS[i]), math.Abs(col.VDSAT[i])
+				need := vdsat + margin
+				return true, vds - vdsat, margin, (need - vds) / need
 			})
 			if f != nil {
 				f.What = fmt.Sprintf("|V_DS| − |V_DSAT| = %s, want at least the margin %s", short(f.Value, units.Volt), short(f.Limit, units.Volt))
@@ -232,10 +267,10 @@ func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 		if kind == "level1" {
 			lim := 4 * ut
 			f := spanFinding(CheckValidity, dev, res.VCM, func(i int) (bool, float64, float64, float64) {
-				if !working(i) {
+				if !work[i] {
 					return false, 0, 0, 0
 				}
-				ov := overdrive(col.At(i))
+				ov := overdrive(device.OpPoint{VGS: col.VGS[i], VTH: col.VTH[i]})
 				if ov >= lim {
 					return false, 0, 0, 0
 				}
