@@ -6,6 +6,7 @@ import (
 	"runtime"
 	"strconv"
 	"strings"
+	"sync"
 
 	"pairsmith/sim"
 	"pairsmith/topologies"
@@ -89,17 +90,20 @@ type swept struct {
 }
 
 // sweep builds, sweeps and checks a design: the one code path behind
-// Evaluate and MeasureChecked, so that both give the same metrics and
-// findings and refuse the same unphysical sweeps (CheckPhysical).
-func sweep(d *Design) (*swept, error) {
+// Evaluate and MeasureCached. With a cache the solver goes back to it
+// when sweep returns, so the caller must not use swept.s then (Evaluate
+// passes none). Both give the same metrics and findings and refuse the
+// same unphysical sweeps (CheckPhysical).
+func sweep(d *Design, cache *SolverCache) (*swept, error) {
 	st, err := Build(d)
 	if err != nil {
 		return nil, err
 	}
-	s, err := sim.NewSolver(st.Circuit, sim.Options{})
+	s, err := cache.get(d.Topology, st.Circuit)
 	if err != nil {
 		return nil, err
 	}
+	defer cache.put(d.Topology, s)
 	res := &sim.Result{}
 	if err := s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0)); err != nil {
 		return nil, err
@@ -109,6 +113,35 @@ func sweep(d *Design) (*swept, error) {
 	}
 	fs := Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK)
 	return &swept{st: st, s: s, res: res, findings: fs}, nil
+}
+
+// SolverCache keeps compiled solvers by family, for reuse across
+// evaluations by any number of goroutines. The zero value is ready; a nil
+// cache compiles afresh every time.
+type SolverCache struct {
+	pools sync.Map // family name → *sync.Pool of *sim.Solver
+}
+
+// get returns a solver for c: a cached one of the family rebound to c,
+// or a new one.
+func (sc *SolverCache) get(family string, c *sim.Circuit) (*sim.Solver, error) {
+	if sc != nil {
+		if p, ok := sc.pools.Load(family); ok {
+			if s, ok := p.(*sync.Pool).Get().(*sim.Solver); ok && s.Rebind(c) == nil {
+				return s, nil
+			}
+		}
+	}
+	return sim.NewSolver(c, sim.Options{})
+}
+
+// put returns a solver to the cache once its results have been read.
+func (sc *SolverCache) put(family string, s *sim.Solver) {
+	if sc == nil || s == nil {
+		return
+	}
+	p, _ := sc.pools.LoadOrStore(family, &sync.Pool{})
+	p.(*sync.Pool).Put(s)
 }
 
 // MeasureDesign builds, sweeps and measures a design without the rest of
@@ -121,7 +154,15 @@ func MeasureDesign(d *Design) (Metrics, error) {
 // MeasureChecked is MeasureDesign with the always-on checks' findings:
 // what a search needs of each candidate.
 func MeasureChecked(d *Design) (Metrics, []Finding, error) {
-	sw, err := sweep(d)
+	return MeasureCached(d, nil)
+}
+
+// MeasureCached is MeasureChecked with compiled solvers reused from cache
+// (nil for none): a search's candidates of one family share a circuit
+// shape, so a solver compiled for one is rebound to the next
+// (sim.Solver.Rebind) with the same results, bit for bit.
+func MeasureCached(d *Design, cache *SolverCache) (Metrics, []Finding, error) {
+	sw, err := sweep(d, cache)
 	if err != nil {
 		return Metrics{}, nil, err
 	}
@@ -130,7 +171,7 @@ func MeasureChecked(d *Design) (Metrics, []Finding, error) {
 
 // Evaluate builds, sweeps, measures and checks a design.
 func Evaluate(d *Design) (*Evaluation, error) {
-	sw, err := sweep(d)
+	sw, err := sweep(d, nil)
 	if err != nil {
 		return nil, err
 	}

@@ -48,6 +48,7 @@ type Problem struct {
 	fams    []topologies.Family
 	params  [][]topologies.Param
 	targets objectives.Targets // the spec's, tightened by Margin
+	solvers objectives.SolverCache
 }
 
 var (
@@ -201,7 +202,7 @@ func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 
 // measure sweeps a design and turns its metrics into an outcome.
 func (p *Problem) measure(d *objectives.Design, coarse bool) (optimize.Outcome, bool) {
-	m, fs, err := objectives.MeasureChecked(d)
+	m, fs, err := objectives.MeasureCached(d, &p.solvers)
 	if err != nil {
 		return optimize.Outcome{Failed: true, Payload: &Outcome{Coarse: coarse, Err: err.Error()}}, false
 	}
