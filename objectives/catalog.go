@@ -243,7 +243,7 @@ var catalog = []Entry{
 			Limit: func(t *Targets) *float64 { return &t.PowerMax }},
 		Axis: Axis{Default: true, Scale: DefaultScalePower, Missing: func(Range) float64 { return worstAxisValue }},
 		Words: Words{Meaning: "supply power, largest over the sweep", Shown: InEvery,
-			Doc: "the supply voltage × the total current drawn from the supply, the largest value over the sweep. The current includes every tail and its reference (bias) branch, the switch and mirror branches of the families that have them, and the NMOS pair's current, which the summing stage above it draws from the supply; the ideal reference voltages a family receives (vref) are taken to draw none."},
+			Doc: "the supply voltage × the total current drawn from the supply, the largest value over the sweep. The current includes every tail and its reference (bias) branch, the switch and mirror branches of the families that have them, plus the summing stage's bias: its folding sources carry the largest NMOS pair current over the range plus 10 % of the larger pair's largest current for the cascode branches, whatever the common mode; the ideal reference voltages a family receives (vref) are taken to draw none."},
 	},
 	{
 		Key: AxisArea, Kind: Figure, Dim: units.SquareMetre, Sense: AtMost, Combine: Highest,
@@ -287,7 +287,7 @@ var catalog = []Entry{
 		Column: "gm_id_min_per_V",
 		Words: Words{Meaning: "smallest 2·gm / (i_n + i_p): the input devices' gm/I_D", Shown: InFull, Fixed: true,
 			Missing: "no pair conducts",
-			Doc:     "the smallest 2·gm / (i_n + i_p) over the range, in 1/V: the input transistors' gm/I_D where they are most strongly inverted. Physics bounds gm/I_D by 1/(n·U_T), its weak-inversion value (about 25–30 /V at room temperature); a level-1 model, which has no weak inversion, can exceed that, so on level-1 processes the search requires gm/I_D ≤ 1/(2·U_T) somewhere in the range (strong inversion)."},
+			Doc:     "the smallest 2·gm / (i_n + i_p) over the range, in 1/V: the input transistors' gm/I_D where they are most strongly inverted. Physics bounds gm/I_D by 1/(n·U_T), its weak-inversion value (about 25–30 /V at room temperature); a level-1 model, which has no weak inversion, can exceed that, so on level-1 processes every device carrying its working current must keep an overdrive of at least 4·U_T (gm/I_D ≤ 1/(2·U_T)), the level1_validity check."},
 	},
 	{
 		Key: CheckGeometry, Kind: Constraint, Dim: units.Metre, Sense: AtLeast,
