@@ -20,9 +20,9 @@ import (
 type summary struct {
 	RunID      string `json:"run_id"`
 	Candidates []struct {
-		ID      string          `json:"id"`
-		Design  string          `json:"design"`
-		Netlist string          `json:"netlist"`
+		ID         string          `json:"id"`
+		Design     string          `json:"design"`
+		Netlist    string          `json:"netlist"`
 		Pareto     bool            `json:"pareto"`
 		Feasible   bool            `json:"feasible"`
 		Metrics    json.RawMessage `json:"metrics"`
