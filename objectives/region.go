@@ -23,8 +23,17 @@ const (
 	CheckValidity   = "level1_validity" // a level-1 result rests on a device outside the square law
 )
 
-// CheckNames returns the always-on checks in the order Assess reports them.
-func CheckNames() []string { return []string{CheckGeometry, CheckSaturation, CheckValidity} }
+// CheckNames returns the always-on checks, the catalog's Constraint
+// entries, in its order.
+func CheckNames() []string {
+	var out []string
+	for _, e := range catalog {
+		if e.Kind == Constraint {
+			out = append(out, e.Key)
+		}
+	}
+	return out
+}
 
 // WorkingFraction is the share of its largest current over the range at
 // or above which a device counts as carrying its working current, where
