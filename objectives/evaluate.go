@@ -177,13 +177,7 @@ func Evaluate(d *Design) (*Evaluation, error) {
 	}
 	st, s, res := sw.st, sw.s, sw.res
 	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: Measure(st, res), Findings: sw.findings}
-	c := st.Circuit
-	var inMax, ipMax float64
-	for i := range res.VCM {
-		inMax = math.Max(inMax, res.Probe[c.ProbeIndex(topologies.ProbeIN)][i])
-		ipMax = math.Max(ipMax, res.Probe[c.ProbeIndex(topologies.ProbeIP)][i])
-	}
-	ev.SummingCurrent = topologies.SummingCurrent(inMax, ipMax)
+	ev.SummingCurrent = summingCurrent(st, res)
 	mid := res.Len() / 2
 	ev.MidVCM = res.VCM[mid]
 	for k, op := range s.Devices(s.PointAt(res, mid)) {

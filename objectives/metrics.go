@@ -132,15 +132,11 @@ func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 	}
 	m.GMRipple = Ripple(m.GMMin, m.GMMax)
 	// Power: the stage's own supply current at its worst point, plus the
-	// summing stage's constant bias (topologies.SummingCurrent).
-	var inMax, ipMax float64
-	for i := range in {
-		inMax, ipMax = math.Max(inMax, in[i]), math.Max(ipMax, ip[i])
-	}
+	// summing stage's constant bias.
 	for _, p := range res.Probe[c.ProbeIndex(topologies.ProbePower)] {
 		m.Power = math.Max(m.Power, p)
 	}
-	m.Power += st.Supply * topologies.SummingCurrent(inMax, ipMax)
+	m.Power += st.Supply * summingCurrent(st, res)
 	for _, t := range c.Mosfets {
 		m.Area += t.Geom.Area()
 	}
@@ -259,4 +255,16 @@ func (m Metrics) Same(o Metrics) bool {
 		}
 	}
 	return true
+}
+
+// summingCurrent is the summing stage's supply current for a sweep: that
+// of topologies.SummingCurrent at the pairs' largest currents over it.
+func summingCurrent(st *topologies.Stage, res *sim.Result) float64 {
+	c := st.Circuit
+	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
+	var inMax, ipMax float64
+	for i := range in {
+		inMax, ipMax = math.Max(inMax, in[i]), math.Max(ipMax, ip[i])
+	}
+	return topologies.SummingCurrent(inMax, ipMax)
 }

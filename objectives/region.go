@@ -167,20 +167,18 @@ func (f Finding) String() string {
 // the geometry rules the builder recorded, saturation with margin
 // (volts) of every device whose duty needs it at every point where it
 // carries its working current, and on a level-1 process the square law's
-// validity of every device at every such point. ops are the devices'
-// operating points at every sweep point (sim.Solver.DeviceColumn, from
-// the solver that swept res; nil for the geometry checks alone); tempK the
-// temperature.
+// validity of every device at every such point. s is the solver that
+// swept res, whose stored solution gives the devices' operating points
+// (sim.Solver.DeviceColumn; nil for the geometry and headroom checks
+// alone); tempK the temperature. A long sweep's devices are checked in
+// parallel; a search's short sweeps on the calling goroutine, whose
+// caller already keeps the cores busy.
 func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, margin, tempK float64) []Finding {
 	var out []Finding
 	for _, g := range st.Geometry {
-		rule := "min"
-		if !g.Min {
-			rule = "max"
-		}
 		out = append(out, Finding{Check: CheckGeometry, Device: g.Device, Role: g.Role,
 			From: math.NaN(), To: math.NaN(), VCM: math.NaN(), Value: g.Value, Limit: g.Limit,
-			Amount: math.Min(g.Amount(), MissingAmount), What: g.GeometryIssue.String() + " (" + g.Field + rule + ")"})
+			Amount: math.Min(g.Amount(), MissingAmount), What: g.GeometryIssue.String()})
 	}
 	if need := topologies.MinVHead(margin); st.VHead < need*(1-1e-9) {
 		out = append(out, Finding{Check: CheckSaturation, Device: "summing stage", Role: "folding sources and mirror",
@@ -212,7 +210,11 @@ func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 	per := make([][]Finding, len(st.Devices))
 	next := make(chan int)
 	var wg sync.WaitGroup
-	for w := 0; w < min(runtime.GOMAXPROCS(0), len(st.Devices)); w++ {
+	workers := 1
+	if n >= parallelPoints {
+		workers = min(runtime.GOMAXPROCS(0), len(st.Devices))
+	}
+	for w := 0; w < workers; w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
@@ -236,60 +238,63 @@ func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 	return out
 }
 
+// parallelPoints is the sweep length from which Assess checks devices in
+// parallel: a search's sweeps (37 and 181 points) are checked on the
+// worker that swept them, an eval's long sweep on every core.
+const parallelPoints = 1000
+
 // assessDevice makes the saturation and validity checks of device k of a
 // stage over a sweep, with col, work and low as its scratch space.
 func assessDevice(dev topologies.Device, k int, s *sim.Solver, res *sim.Result, col *sim.OpColumn, work, low []bool,
 	minor func(topologies.Side, int) bool, kind string, margin, ut float64) []Finding {
 	var out []Finding
 	n := res.Len()
-	{
-		s.DeviceColumn(res, k, col)
-		imax := 0.0
-		for _, id := range col.ID {
-			if a := math.Abs(id); a > imax {
-				imax = a
+	s.DeviceColumn(res, k, col)
+	imax := 0.0
+	for _, id := range col.ID {
+		if a := math.Abs(id); a > imax {
+			imax = a
+		}
+	}
+	if !(imax > 0) {
+		return nil
+	}
+	for i := range work {
+		work[i] = !col.Off[i] && math.Abs(col.ID[i]) >= WorkingFraction*imax
+		low[i] = math.Abs(col.VDS[i])-math.Abs(col.VDSAT[i]) < margin
+	}
+	if dev.Duty == topologies.Saturated {
+		exempt := railTurnOff(n, func(i int) bool { return low[i] }, func(i int) bool { return work[i] },
+			func(i int) bool { return minor(dev.Side, i) })
+		f := spanFinding(CheckSaturation, dev, res.VCM, func(i int) (bool, float64, float64, float64) {
+			if !work[i] || !low[i] || exempt[i] {
+				return false, 0, 0, 0
 			}
+			vds, vdsat := math.Abs(col.VDS[i]), math.Abs(col.VDSAT[i])
+			need := vdsat + margin
+			return true, vds - vdsat, margin, (need - vds) / need
+		})
+		if f != nil {
+			f.What = fmt.Sprintf("|V_DS| − |V_DSAT| = %s, want at least the margin %s", short(f.Value, units.Volt), short(f.Limit, units.Volt))
+			out = append(out, *f)
 		}
-		if !(imax > 0) {
-			return nil
-		}
-		for i := range work {
-			work[i] = !col.Off[i] && math.Abs(col.ID[i]) >= WorkingFraction*imax
-			low[i] = math.Abs(col.VDS[i])-math.Abs(col.VDSAT[i]) < margin
-		}
-		if dev.Duty == topologies.Saturated {
-			exempt := railTurnOff(n, func(i int) bool { return low[i] }, func(i int) bool { return work[i] },
-				func(i int) bool { return minor(dev.Side, i) })
-			f := spanFinding(CheckSaturation, dev, res.VCM, func(i int) (bool, float64, float64, float64) {
-				if !work[i] || !low[i] || exempt[i] {
-					return false, 0, 0, 0
-				}
-				vds, vdsat := math.Abs(col.VDS[i]), math.Abs(col.VDSAT[i])
-				need := vdsat + margin
-				return true, vds - vdsat, margin, (need - vds) / need
-			})
-			if f != nil {
-				f.What = fmt.Sprintf("|V_DS| − |V_DSAT| = %s, want at least the margin %s", short(f.Value, units.Volt), short(f.Limit, units.Volt))
-				out = append(out, *f)
+	}
+	if kind == "level1" {
+		lim := 4 * ut
+		f := spanFinding(CheckValidity, dev, res.VCM, func(i int) (bool, float64, float64, float64) {
+			if !work[i] {
+				return false, 0, 0, 0
 			}
-		}
-		if kind == "level1" {
-			lim := 4 * ut
-			f := spanFinding(CheckValidity, dev, res.VCM, func(i int) (bool, float64, float64, float64) {
-				if !work[i] {
-					return false, 0, 0, 0
-				}
-				ov := overdrive(device.OpPoint{VGS: col.VGS[i], VTH: col.VTH[i]})
-				if ov >= lim {
-					return false, 0, 0, 0
-				}
-				return true, ov, lim, math.Min((lim-ov)/lim, MissingAmount)
-			})
-			if f != nil {
-				f.What = fmt.Sprintf("overdrive %s below 4·U_T = %s (gm/I_D above 1/(2·U_T)): the square law does not describe it",
-					short(f.Value, units.Volt), short(f.Limit, units.Volt))
-				out = append(out, *f)
+			ov := overdrive(device.OpPoint{VGS: col.VGS[i], VTH: col.VTH[i]})
+			if ov >= lim {
+				return false, 0, 0, 0
 			}
+			return true, ov, lim, math.Min((lim-ov)/lim, MissingAmount)
+		})
+		if f != nil {
+			f.What = fmt.Sprintf("overdrive %s below 4·U_T = %s (gm/I_D above 1/(2·U_T)): the square law does not describe it",
+				short(f.Value, units.Volt), short(f.Limit, units.Volt))
+			out = append(out, *f)
 		}
 	}
 	return out

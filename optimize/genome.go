@@ -88,7 +88,7 @@ func polyMutate(x, u float64) float64 {
 		v := 2*(1-u) + 2*(u-0.5)*math.Pow(1-d2, etaMutation+1)
 		dq = 1 - math.Pow(v, mpow)
 	}
-	return clamp01(x + dq)
+	return Clamp01(x + dq)
 }
 
 // Crossover applies SBX between two genomes of the same family; genomes
@@ -133,7 +133,7 @@ func sbx(x1, x2, u float64) (float64, float64) {
 	c1 := 0.5 * ((lo + hi) - b1*span)
 	b2 := child(1 + 2*(1-hi)/span)
 	c2 := 0.5 * ((lo + hi) + b2*span)
-	return clamp01(c1), clamp01(c2)
+	return Clamp01(c1), Clamp01(c2)
 }
 
 // Clone returns a copy sharing nothing but the runner; the copy keeps the
@@ -147,7 +147,9 @@ func (g *genome) Clone() eaopt.Genome {
 	return c
 }
 
-func clamp01(x float64) float64 {
+// Clamp01 clamps x into [0, 1], NaN to 0: a coordinate of the unit box
+// every problem's parameters are searched in.
+func Clamp01(x float64) float64 {
 	switch {
 	case x < 0 || x != x:
 		return 0

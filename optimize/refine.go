@@ -344,7 +344,7 @@ func (o *runObjective) values(ys [][]float64) []float64 {
 	for j, y := range ys {
 		x := make([]float64, d)
 		for i, v := range y {
-			x[i] = clamp01(v)
+			x[i] = Clamp01(v)
 			pens[j] += (v - x[i]) * (v - x[i])
 		}
 		xs[j], keys[j] = x, pointKey(x)

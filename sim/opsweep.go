@@ -9,6 +9,7 @@ import "pairsmith/sim/device"
 type OpColumn struct {
 	ID, VGS, VDS, VTH, VDSAT []float64
 	Off                      []bool // the model calls the device off (level 1 below threshold)
+	v                        []float64
 }
 
 // At returns the column's point i as an OpPoint (the fields it holds).
@@ -34,7 +35,8 @@ func (s *Solver) DeviceColumn(res *Result, k int, col *OpColumn) {
 	}
 	col.Off = col.Off[:n]
 	m := s.sys.mos[k]
-	v := make([]float64, s.sys.N)
+	col.v = grow(col.v, s.sys.N)
+	v := col.v
 	u := res.Unknowns
 	for i := 0; i < n; i++ {
 		copy(v[:u], res.X[i*u:(i+1)*u])

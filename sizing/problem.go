@@ -124,7 +124,7 @@ func (p *Problem) ParamNames(f int) []string {
 func (p *Problem) Values(f int, x []float64) topologies.Values {
 	v := topologies.Values{}
 	for i, q := range p.params[f] {
-		u := clamp01(x[i])
+		u := optimize.Clamp01(x[i])
 		var val float64
 		if q.Scale == topologies.Log {
 			val = q.Min * math.Pow(q.Max/q.Min, u)
@@ -147,18 +147,7 @@ func (p *Problem) Normalize(f int, v topologies.Values) []float64 {
 		} else {
 			x[i] = (val - q.Min) / (q.Max - q.Min)
 		}
-		x[i] = clamp01(x[i])
-	}
-	return x
-}
-
-// clamp01 clamps x into [0, 1], NaN to 0.
-func clamp01(x float64) float64 {
-	switch {
-	case x < 0 || x != x:
-		return 0
-	case x > 1:
-		return 1
+		x[i] = optimize.Clamp01(x[i])
 	}
 	return x
 }
@@ -208,10 +197,9 @@ func (p *Problem) measure(d *objectives.Design, coarse bool) (optimize.Outcome, 
 	}
 	vs := p.Checks(m, fs, p.targets)
 	amounts := make([]float64, len(vs))
-	nt := len(vs) - len(objectives.CheckNames())
 	for i, v := range vs {
 		amounts[i] = v.Amount
-		if i >= nt {
+		if e, ok := objectives.Lookup(v.Target); ok && e.Kind == objectives.Constraint {
 			amounts[i] *= CheckWeight
 		}
 	}

@@ -163,19 +163,19 @@ func tighten(lo, hi, min, max float64) (float64, float64) {
 
 // snapUp and snapDown move x onto the grid, up or down.
 func snapUp(r device.Rules, x float64) float64 {
-	if s := r.Snap(x); s < x*(1-1e-12) {
+	s := r.Snap(x)
+	if s < x*(1-1e-12) {
 		return r.Snap(s + r.Grid)
-	} else {
-		return s
 	}
+	return s
 }
 
 func snapDown(r device.Rules, x float64) float64 {
-	if s := r.Snap(x); s > x*(1+1e-12) {
+	s := r.Snap(x)
+	if s > x*(1+1e-12) {
 		return r.Snap(s - r.Grid)
-	} else {
-		return s
 	}
+	return s
 }
 
 // Snap returns the values with every drawn size on the process grid, as
