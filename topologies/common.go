@@ -57,7 +57,6 @@ type builder struct {
 	vdd, gnd   sim.Node
 	inp, inn   sim.Node
 	count      int
-	roles      map[string]string
 	iout       []sim.Term
 	in, ip     []sim.Term
 	powerTerms []sim.Term
@@ -86,9 +85,9 @@ func newBuilder(f Family, v Values, cond Conditions) (*builder, error) {
 	b := &builder{
 		c: c, v: v, cond: cond, rules: cond.Process.Rules,
 		nm: cond.Process.Card(device.NMOS), pm: cond.Process.Card(device.PMOS),
-		roles: map[string]string{}, sides: map[sim.Node]Side{},
+		sides: map[sim.Node]Side{},
 	}
-	b.st = &Stage{Family: family, Circuit: c, params: f.Params()}
+	b.st = &Stage{Family: family, Circuit: c}
 	b.vdd = c.Node("vdd")
 	b.gnd = sim.Ground
 	b.inp = c.Node("inp")
@@ -143,7 +142,6 @@ func (b *builder) addMos(t device.Type, role string, duty Duty, d, g, s, bulk si
 	}
 	geom := device.Geometry{W: b.rules.Snap(w), L: b.rules.Snap(l)}
 	b.c.AddMosfet(name, d, g, s, bulk, m, geom)
-	b.roles[name] = role
 	side := b.sides[d]
 	if side == NoSide {
 		side = b.sides[s]
@@ -255,7 +253,10 @@ func (b *builder) finish() (*Stage, error) {
 		}
 	}
 	b.st.Ports = ports
-	b.st.Roles = b.roles
+	b.st.Roles = make(map[string]string, len(b.st.Devices))
+	for _, d := range b.st.Devices {
+		b.st.Roles[d.Name] = d.Role
+	}
 	b.st.VHead = b.p(pVHead)
 	b.st.Supply = b.cond.Supply
 	return b.st, nil

@@ -86,8 +86,6 @@ type Stage struct {
 	// VHead is the summing nodes' headroom from the rails, V; Supply the
 	// supply, V.
 	VHead, Supply float64
-
-	params []Param
 }
 
 // Probe names every stage defines.

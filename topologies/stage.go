@@ -113,9 +113,6 @@ func SummingCurrent(inMax, ipMax float64) float64 {
 	return inMax + CascodeFraction*math.Max(inMax, ipMax)
 }
 
-// Params returns the stage's family's parameters.
-func (st *Stage) Params() []Param { return st.params }
-
 // ParamsFor returns the family's parameters with the bounds the process
 // sets: widths from wmin (and at most wmax), lengths from lmin (and at
 // most lmax), the headroom from MinVHead(margin); every bound of a size
