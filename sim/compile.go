@@ -99,16 +99,12 @@ type probeTerm struct {
 }
 
 // A probe is resolved to where its currents are: coefficients of the
-// currents delivered into needed fixed nodes (qTerm; see system.needed),
-// each node's own, the currents of the nodes hanging from it being terms
-// of their own, and of branch current variables (vTerm).
-type qTerm struct {
-	q    int
-	coef float64
-}
-
-type vTerm struct {
-	v    int
+// currents delivered into needed fixed nodes (at is the node's position q
+// in system.needed; each node's own current, those of the nodes hanging
+// from it being terms of their own), and of branch current variables (at
+// is the variable v).
+type flatTerm struct {
+	at   int
 	coef float64
 }
 
@@ -134,6 +130,7 @@ type system struct {
 	fixedMoving []int // indices into fixed of the nodes that move with the sweep
 	mos         []mosStamp
 	moving      []int // indices into mos of the transistors that are not frozen
+	frozen      []int // indices into mos of the transistors that are
 	all         []int // 0 … len(mos)−1
 	res         []resStamp
 	isrc        []isrcStamp
@@ -141,21 +138,19 @@ type system struct {
 	vccs        []vccsStamp
 	branches    []branchStamp
 
-	// probeQ and probeV hold each probe's terms resolved; parts says how
-	// the probe's own terms make them up (one term reads a node and every
-	// node hanging from it).
-	probeQ [][]qTerm
-	probeV [][]vTerm
+	// probeQ and probeV hold each probe's terms resolved, on delivered
+	// currents and on branch currents; parts says how the probe's own
+	// terms make them up (one term reads a node and every node hanging
+	// from it).
+	probeQ [][]flatTerm
+	probeV [][]flatTerm
 	parts  [][]flatPart
 	output int // probe index or -1
 
 	// sig is the shape of the circuit compiled, for Rebind to compare.
 	sig shapeSig
-	// The sweep dependence the shape rests on: whether each voltage and
-	// current source's drive sweeps, and for each fixed node whether it
-	// moves with vid (JE has a column for each that does).
-	vSweeps, iSweeps []bool
-	eFix             []int // the fixed node of each JE column
+	// eFix is the fixed node of each JE column: those that move with vid.
+	eFix []int
 
 	// Compact layout (see the comment at the top of the file).
 	needed []int     // fixed nodes whose delivered current is read, parents first
@@ -229,7 +224,7 @@ func shape(c *Circuit) (*system, error) {
 		fixedOf[i] = -1
 	}
 	nm := len(c.Mosfets)
-	s := &system{c: c, mos: make([]mosStamp, 0, nm), all: make([]int, 0, nm), moving: make([]int, 0, nm),
+	s := &system{c: c, mos: make([]mosStamp, 0, nm), all: make([]int, 0, nm), moving: make([]int, 0, nm), frozen: make([]int, 0, nm),
 		res: make([]resStamp, 0, len(c.Resistors)), isrc: make([]isrcStamp, 0, len(c.ISources)),
 		vccs: make([]vccsStamp, 0, len(c.VCCSs))}
 	s.fixed = append(s.fixed, fixedNode{parent: -1, src: -1})
@@ -282,20 +277,12 @@ func shape(c *Circuit) (*system, error) {
 	// are the unfixed nodes ("things" 0…nNodes−1) and the branch currents
 	// of floating sources and VCVSs (things nNodes…).
 	nb := len(floating) + len(c.VCVSs)
-	s.vSweeps = make([]bool, len(c.VSources))
-	for i, v := range c.VSources {
-		s.vSweeps[i] = v.Value.sweeps()
-	}
-	s.iSweeps = make([]bool, len(c.ISources))
-	for i, v := range c.ISources {
-		s.iSweeps[i] = v.Value.sweeps()
-	}
 	// moves[k] says whether fixed node k moves with the sweep: whether any
 	// source on its chain to ground has a sweep-dependent drive.
 	moves := make([]bool, len(s.fixed))
 	for k := 1; k < len(s.fixed); k++ {
 		f := s.fixed[k]
-		moves[k] = moves[f.parent] || s.vSweeps[f.src]
+		moves[k] = moves[f.parent] || f.drive.sweeps()
 	}
 	for k, mv := range moves {
 		if mv {
@@ -391,7 +378,9 @@ func shape(c *Circuit) (*system, error) {
 			rd: rr(0, d), rs: rr(1, so), rb: rr(2, b)}
 		s.mos = append(s.mos, ms)
 		s.all = append(s.all, i)
-		if !ms.frozen {
+		if ms.frozen {
+			s.frozen = append(s.frozen, i)
+		} else {
 			s.moving = append(s.moving, i)
 		}
 	}
@@ -402,7 +391,7 @@ func shape(c *Circuit) (*system, error) {
 	for k, i := range c.ISources {
 		a, b := s.idx[i.P], s.idx[i.N]
 		s.isrc = append(s.isrc, isrcStamp{a: a, b: b, ra: s.rrow(a), rb: s.rrow(b)})
-		if s.iSweeps[k] {
+		if i.Value.sweeps() {
 			s.isrcSweep = append(s.isrcSweep, k)
 		}
 	}
@@ -432,47 +421,40 @@ func (s *system) fixedDM(fixed []fixedNode, c *Circuit) {
 // merged. The coefficients are left for bind.
 func (s *system) flatten(probeTerms [][]probeTerm, srcOf []sourceRef) {
 	for _, terms := range probeTerms {
-		qs := make([]qTerm, 0, len(terms))
-		var vs []vTerm
+		qs := make([]flatTerm, 0, len(terms))
+		var vs []flatTerm
 		parts := make([]flatPart, 0, len(terms))
 		for ti, t := range terms {
 			ref := srcOf[t.src]
 			if ref.kind != 0 {
-				v := s.branches[ref.index].idx
-				at := len(vs)
-				for j, o := range vs {
-					if o.v == v {
-						at = j
-						break
-					}
-				}
-				if at == len(vs) {
-					vs = append(vs, vTerm{v: v})
-				}
+				var at int
+				vs, at = termAt(vs, s.branches[ref.index].idx)
 				parts = append(parts, flatPart{term: ti, at: at, branch: true, sign: 1})
 				continue
 			}
 			for q := range s.needed {
-				if !s.hangsFrom(q, ref.index) {
-					continue
+				if s.hangsFrom(q, ref.index) {
+					var at int
+					qs, at = termAt(qs, q)
+					parts = append(parts, flatPart{term: ti, at: at, sign: ref.sign})
 				}
-				at := len(qs)
-				for j, o := range qs {
-					if o.q == q {
-						at = j
-						break
-					}
-				}
-				if at == len(qs) {
-					qs = append(qs, qTerm{q: q})
-				}
-				parts = append(parts, flatPart{term: ti, at: at, sign: ref.sign})
 			}
 		}
 		s.probeQ = append(s.probeQ, qs)
 		s.probeV = append(s.probeV, vs)
 		s.parts = append(s.parts, parts)
 	}
+}
+
+// termAt returns ts with a term at x, appended unless there is one, and
+// that term's index.
+func termAt(ts []flatTerm, x int) ([]flatTerm, int) {
+	for j, t := range ts {
+		if t.at == x {
+			return ts, j
+		}
+	}
+	return append(ts, flatTerm{at: x}), len(ts)
 }
 
 // hangsFrom reports whether needed node q is fixed node k or hangs from

@@ -95,21 +95,28 @@ func newShapeSig(c *Circuit) shapeSig {
 }
 
 // shapeCursor records a shape into sig, or compares one with it: the
-// first difference stops the comparison and keeps which element (kind
-// and index) it was found in.
+// first difference stops the comparison and keeps which element (kind,
+// index and name) it was found in.
 type shapeCursor struct {
-	sig    *shapeSig
-	record bool
-	i, j   int
-	kind   string
-	index  int
-	bad    bool
-	badAt  string
-	badIdx int
+	sig            *shapeSig
+	record         bool
+	i, j           int
+	kind, elem     string
+	index          int
+	bad            bool
+	badAt, badElem string
+	badIdx         int
 }
 
-// at says which element the values that follow belong to.
-func (k *shapeCursor) at(kind string, index int) { k.kind, k.index = kind, index }
+// at says which element (of the circuit walked) the values that follow
+// belong to, and records its name and terminals.
+func (k *shapeCursor) at(kind string, index int, name string, nodes ...Node) {
+	k.kind, k.index, k.elem = kind, index, name
+	k.name(name)
+	for _, n := range nodes {
+		k.num(int(n))
+	}
+}
 
 func (k *shapeCursor) num(v int) {
 	switch {
@@ -135,10 +142,18 @@ func (k *shapeCursor) name(v string) {
 	}
 }
 
-func (k *shapeCursor) fail() { k.bad, k.badAt, k.badIdx = true, k.kind, k.index }
+func (k *shapeCursor) flag(x bool) {
+	if x {
+		k.num(1)
+	} else {
+		k.num(0)
+	}
+}
+
+func (k *shapeCursor) fail() { k.bad, k.badAt, k.badIdx, k.badElem = true, k.kind, k.index, k.elem }
 
 // err returns the error a comparison found between the compiled circuit
-// was and c, or nil.
+// was and c, the circuit walked, or nil.
 func (k *shapeCursor) err(was, c *Circuit) error {
 	if !k.bad && k.i == len(k.sig.ints) && k.j == len(k.sig.names) {
 		return nil
@@ -146,116 +161,55 @@ func (k *shapeCursor) err(was, c *Circuit) error {
 	what := "the circuit"
 	if k.bad {
 		what = fmt.Sprintf("%s %d", k.badAt, k.badIdx+1)
-		if name := elementName(c, k.badAt, k.badIdx); name != "" {
-			what += " (" + name + ")"
+		if k.badElem != "" {
+			what += " (" + k.badElem + ")"
 		}
 	}
 	return fmt.Errorf("rebind circuit %q to %q: %s differs in shape (nodes, elements, terminals, names, probes or which sources sweep)",
 		was.Title, c.Title, what)
 }
 
-// elementName returns the name of element index of the given kind in c,
-// or "".
-func elementName(c *Circuit, kind string, index int) string {
-	in := func(n int) bool { return index >= 0 && index < n }
-	switch {
-	case kind == "node" && in(len(c.names)):
-		return c.names[index]
-	case kind == "transistor" && in(len(c.Mosfets)):
-		return c.Mosfets[index].Name
-	case kind == "resistor" && in(len(c.Resistors)):
-		return c.Resistors[index].Name
-	case kind == "voltage source" && in(len(c.VSources)):
-		return c.VSources[index].Name
-	case kind == "current source" && in(len(c.ISources)):
-		return c.ISources[index].Name
-	case kind == "VCCS" && in(len(c.VCCSs)):
-		return c.VCCSs[index].Name
-	case kind == "VCVS" && in(len(c.VCVSs)):
-		return c.VCVSs[index].Name
-	case kind == "probe" && in(len(c.Probes)):
-		return c.Probes[index].Name
-	}
-	return ""
-}
-
 // walkShape visits what the shape of c is made of: everything compile's
 // first step reads, and nothing bind takes.
 func walkShape(c *Circuit, k *shapeCursor) {
-	b := func(x bool) int {
-		if x {
-			return 1
-		}
-		return 0
+	k.kind, k.index, k.elem = "circuit", 0, ""
+	for _, n := range []int{len(c.names), len(c.Mosfets), len(c.Resistors), len(c.VSources),
+		len(c.ISources), len(c.VCCSs), len(c.VCVSs), len(c.Probes)} {
+		k.num(n)
 	}
-	k.at("circuit", 0)
-	k.num(len(c.names))
-	k.num(len(c.Mosfets))
-	k.num(len(c.Resistors))
-	k.num(len(c.VSources))
-	k.num(len(c.ISources))
-	k.num(len(c.VCCSs))
-	k.num(len(c.VCVSs))
-	k.num(len(c.Probes))
 	k.name(c.Output)
 	for i, n := range c.names {
-		k.at("node", i)
-		k.name(n)
+		k.at("node", i, n)
 	}
 	for i := range c.Mosfets {
 		m := &c.Mosfets[i]
-		k.at("transistor", i)
-		k.name(m.Name)
-		k.num(int(m.D))
-		k.num(int(m.G))
-		k.num(int(m.S))
-		k.num(int(m.B))
+		k.at("transistor", i, m.Name, m.D, m.G, m.S, m.B)
 	}
 	for i := range c.Resistors {
 		r := &c.Resistors[i]
-		k.at("resistor", i)
-		k.name(r.Name)
-		k.num(int(r.A))
-		k.num(int(r.B))
+		k.at("resistor", i, r.Name, r.A, r.B)
 	}
 	for i := range c.VSources {
 		v := &c.VSources[i]
-		k.at("voltage source", i)
-		k.name(v.Name)
-		k.num(int(v.P))
-		k.num(int(v.N))
-		k.num(b(v.Value.sweeps()))
+		k.at("voltage source", i, v.Name, v.P, v.N)
+		k.flag(v.Value.sweeps())
 	}
 	for i := range c.ISources {
 		v := &c.ISources[i]
-		k.at("current source", i)
-		k.name(v.Name)
-		k.num(int(v.P))
-		k.num(int(v.N))
-		k.num(b(v.Value.sweeps()))
+		k.at("current source", i, v.Name, v.P, v.N)
+		k.flag(v.Value.sweeps())
 	}
 	for i := range c.VCCSs {
 		g := &c.VCCSs[i]
-		k.at("VCCS", i)
-		k.name(g.Name)
-		k.num(int(g.P))
-		k.num(int(g.N))
-		k.num(int(g.CP))
-		k.num(int(g.CN))
+		k.at("VCCS", i, g.Name, g.P, g.N, g.CP, g.CN)
 	}
 	for i := range c.VCVSs {
 		e := &c.VCVSs[i]
-		k.at("VCVS", i)
-		k.name(e.Name)
-		k.num(int(e.P))
-		k.num(int(e.N))
-		k.num(int(e.CP))
-		k.num(int(e.CN))
+		k.at("VCVS", i, e.Name, e.P, e.N, e.CP, e.CN)
 	}
 	for i := range c.Probes {
 		p := &c.Probes[i]
-		k.at("probe", i)
-		k.name(p.Name)
+		k.at("probe", i, p.Name)
 		k.num(len(p.Terms))
 		for _, t := range p.Terms {
 			k.name(t.Source)

@@ -253,41 +253,7 @@ func (s *Solver) load(vcm, vid, scale, gshunt float64, reduced bool) {
 		copy(w, s.base)
 		clear(r)
 	}
-	gmin := s.opt.Gmin
-	// An evaluation is skipped, exactly, when its inputs are bitwise those
-	// of the transistor's last one (a bias branch frozen during a sweep's
-	// continuation) or of the transistor just evaluated with the same
-	// class (the two halves of a pair at vid = 0).
-	last := -1
-	var lvd, lvg, lvs, lvb float64
-	var ev device.Eval
-	for _, i := range list {
-		m := &sys.mos[i]
-		vd, vg, vs, vb := v[m.d], v[m.g], v[m.s], v[m.b]
-		if m.frozen {
-			ev = s.frozenEval(i, vd, vg, vs, vb)
-		} else if m.id != last || vd != lvd || vg != lvg || vs != lvs || vb != lvb {
-			ev = m.inst.Eval(vd, vg, vs, vb)
-		}
-		last, lvd, lvg, lvs, lvb = m.id, vd, vg, vs, vb
-		// The channel, and the currents of the junctions' gmin, drain–bulk
-		// and source–bulk (their conductances are in the base); written
-		// out here rather than calling stampMos, which the compiler does
-		// not inline.
-		w[m.dd] += ev.GD
-		w[m.dg] += ev.GG
-		w[m.ds] += ev.GS
-		w[m.db] += ev.GB
-		w[m.sd] -= ev.GD
-		w[m.sg] -= ev.GG
-		w[m.ss] -= ev.GS
-		w[m.sb] -= ev.GB
-		idb := gmin * (vd - vb)
-		isb := gmin * (vs - vb)
-		r[m.rd] += ev.ID + idb
-		r[m.rs] += isb - ev.ID
-		r[m.rb] -= idb + isb
-	}
+	s.loadMos(w, r, list)
 	for k := range sys.res {
 		t := &sys.res[k]
 		cur := t.g * (v[t.a] - v[t.b])
@@ -350,21 +316,42 @@ func (s *Solver) frozenEval(i int, vd, vg, vs, vb float64) device.Eval {
 	return me.ev
 }
 
-// stampMos adds a transistor's channel and the currents of its junctions'
-// gmin, idb drain–bulk and isb source–bulk (their conductances are in the
-// base), to the work array and the residual.
-func stampMos(w, r []float64, m *mosStamp, ev *device.Eval, idb, isb float64) {
-	w[m.dd] += ev.GD
-	w[m.dg] += ev.GG
-	w[m.ds] += ev.GS
-	w[m.db] += ev.GB
-	w[m.sd] -= ev.GD
-	w[m.sg] -= ev.GG
-	w[m.ss] -= ev.GS
-	w[m.sb] -= ev.GB
-	r[m.rd] += ev.ID + idb
-	r[m.rs] += isb - ev.ID
-	r[m.rb] -= idb + isb
+// loadMos evaluates the transistors of list (indices into sys.mos, in
+// increasing order) at s.v and adds their stamps to the work array w and
+// the residual r: the channel, and the currents of the junctions' gmin,
+// drain–bulk and source–bulk (their conductances are in the base).
+func (s *Solver) loadMos(w, r []float64, list []int) {
+	sys, v, gmin := s.sys, s.v, s.opt.Gmin
+	// An evaluation is skipped, exactly, when its inputs are bitwise those
+	// of the transistor's last one (a bias branch frozen during a sweep's
+	// continuation) or of the transistor just evaluated with the same
+	// class (the two halves of a pair at vid = 0).
+	last := -1
+	var lvd, lvg, lvs, lvb float64
+	var ev device.Eval
+	for _, i := range list {
+		m := &sys.mos[i]
+		vd, vg, vs, vb := v[m.d], v[m.g], v[m.s], v[m.b]
+		if m.frozen {
+			ev = s.frozenEval(i, vd, vg, vs, vb)
+		} else if m.id != last || vd != lvd || vg != lvg || vs != lvs || vb != lvb {
+			ev = m.inst.Eval(vd, vg, vs, vb)
+		}
+		last, lvd, lvg, lvs, lvb = m.id, vd, vg, vs, vb
+		w[m.dd] += ev.GD
+		w[m.dg] += ev.GG
+		w[m.ds] += ev.GS
+		w[m.db] += ev.GB
+		w[m.sd] -= ev.GD
+		w[m.sg] -= ev.GG
+		w[m.ss] -= ev.GS
+		w[m.sb] -= ev.GB
+		idb := gmin * (vd - vb)
+		isb := gmin * (vs - vb)
+		r[m.rd] += ev.ID + idb
+		r[m.rs] += isb - ev.ID
+		r[m.rb] -= idb + isb
+	}
 }
 
 // freeze computes the continuation base from the present s.v: the base
@@ -372,22 +359,12 @@ func stampMos(w, r []float64, m *mosStamp, ev *device.Eval, idb, isb float64) {
 // currents and those of the current sources that do not sweep (at scale
 // 1). A sweep's continuation keeps every input of these constant.
 func (s *Solver) freeze() {
-	sys := s.sys
-	w, r, v := s.cbase, s.cres, s.v
-	copy(w, s.base)
+	sys, r := s.sys, s.cres
+	copy(s.cbase, s.base)
 	clear(r)
-	gmin := s.opt.Gmin
-	for i := range sys.mos {
-		m := &sys.mos[i]
-		if !m.frozen {
-			continue
-		}
-		vd, vg, vs, vb := v[m.d], v[m.g], v[m.s], v[m.b]
-		ev := s.frozenEval(i, vd, vg, vs, vb)
-		stampMos(w, r, m, &ev, gmin*(vd-vb), gmin*(vs-vb))
-	}
+	s.loadMos(s.cbase, r, sys.frozen)
 	for k := range sys.isrc {
-		if t := &sys.isrc[k]; !sys.iSweeps[k] {
+		if t := &sys.isrc[k]; !t.drive.sweeps() {
 			cur := t.drive.At(0, 0)
 			r[t.ra] += cur
 			r[t.rb] -= cur
@@ -663,10 +640,10 @@ func (s *Solver) probeSlope(p int) float64 {
 	d := 0.0
 	qs := s.sys.probeQ[p]
 	for i := range qs {
-		d += qs[i].coef * s.slope[qs[i].q]
+		d += qs[i].coef * s.slope[qs[i].at]
 	}
 	for _, t := range s.sys.probeV[p] {
-		d += t.coef * s.rhs[t.v]
+		d += t.coef * s.rhs[t.at]
 	}
 	return d
 }
@@ -676,10 +653,10 @@ func (s *Solver) probeValue(p int) float64 {
 	val := 0.0
 	qs := s.sys.probeQ[p]
 	for i := range qs {
-		val += qs[i].coef * s.deliv[qs[i].q]
+		val += qs[i].coef * s.deliv[qs[i].at]
 	}
 	for _, t := range s.sys.probeV[p] {
-		val += t.coef * s.v[t.v]
+		val += t.coef * s.v[t.at]
 	}
 	return val
 }
