@@ -69,6 +69,8 @@ func TestSaturationFindingMatchesNgspice(t *testing.T) {
 	if d.Process.Kind != "level1" {
 		t.Fatalf("process %s is %s, want a level-1 process", d.Process.Name, d.Process.Kind)
 	}
+	// The narrowed PMOS tail of the doc above (40 µm: our own choice, no
+	// source).
 	d.Params["wtp"] = 40e-6
 	ev, err := objectives.Evaluate(d)
 	if err != nil {
@@ -110,14 +112,15 @@ func TestSaturationFindingMatchesNgspice(t *testing.T) {
 	// fails and a point outside passes.
 	inSpan := 0
 	for _, v := range vcm {
-		if v >= f.From-1e-9 && v <= f.To+1e-9 {
+		if v >= f.From-1e-9 && v <= f.To+1e-9 { // 1 nV slack on sweep points (common practice, no source)
 			inSpan++
 		}
 	}
 	if inSpan != f.Points {
 		t.Fatalf("finding %v: %d sweep points from %g to %g V, %d failing: not one run", f, inSpan, f.From, f.To, f.Points)
 	}
-	// The design must leave room below the span for a point well outside.
+	// The design must leave room below the span for a point well outside
+	// (0.3 V: our own choice, no source).
 	if f.From < d.Sweep.Low+0.3 || f.From > d.Sweep.High-0.3 {
 		t.Fatalf("finding %v: span starts at %g V, want it at least 0.3 V inside the range for a point well outside and one well inside", f, f.From)
 	}

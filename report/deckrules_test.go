@@ -106,6 +106,8 @@ func TestParseSpiceNumber(t *testing.T) {
 			}
 			continue
 		}
+		// 1e-12 relative: a few rounding errors of a decimal number's
+		// conversion (common practice, no source).
 		if err != nil || math.Abs(got-tt.want) > 1e-12*math.Abs(tt.want) {
 			t.Errorf("parseSpiceNumber(%q) = %g, %v; want %g", tt.in, got, err, tt.want)
 		}
@@ -183,7 +185,9 @@ func parseDeckMosfets(deck string) ([]deckDevice, error) {
 }
 
 // onGrid reports whether x is a multiple of grid within 1e-9 of x
-// (docs/buildable.md: every drawn size is a grid multiple).
+// (docs/buildable.md: every drawn size is a grid multiple; the 1e-9 is
+// floating-point slack for sizes written in metres, common practice, no
+// source).
 func onGrid(x, grid float64) bool {
 	if !(grid > 0) {
 		return true
@@ -201,6 +205,8 @@ func ruleBreaks(r device.Rules, w, l float64) []string {
 		v        float64
 		min, max float64
 	}{{"w", w, r.WMin, r.WMax}, {"l", l, r.LMin, r.LMax}} {
+		// 1e-9 relative: floating-point slack, as onGrid (common practice,
+		// no source).
 		if (c.min > 0 && c.v < c.min*(1-1e-9)) || (c.max > 0 && c.v > c.max*(1+1e-9)) {
 			out = append(out, c.field)
 		}
@@ -298,7 +304,7 @@ func checkDeckRules(t *testing.T, c checkedDesign, strict bool) int {
 		if !onGrid(x, r.Grid) {
 			t.Errorf("%s: parameter %s = %g m is not a multiple of the grid %g m (process rules: docs/buildable.md)", d.Topology, q.Name, x, r.Grid)
 		}
-		if x < q.Min*(1-1e-9) || x > q.Max*(1+1e-9) {
+		if x < q.Min*(1-1e-9) || x > q.Max*(1+1e-9) { // slack as in ruleBreaks (common practice, no source)
 			t.Errorf("%s: parameter %s = %g m outside the process's bounds %g … %g m (process rules: docs/buildable.md)", d.Topology, q.Name, x, q.Min, q.Max)
 		}
 	}
@@ -446,6 +452,7 @@ func TestRandomLegalDecksObeyRules(t *testing.T) {
 		if !ok {
 			t.Fatalf("no built-in process %s", pname)
 		}
+		// The demo processes' nominal supplies (demo data of our own).
 		supply := map[string]float64{"demo18": 1.8, "demo33": 3.3}[pname]
 		for fi, f := range topologies.All() {
 			t.Run(pname+"/"+f.Name(), func(t *testing.T) {

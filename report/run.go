@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
+	"math"
 	"os"
 	"path"
 	"path/filepath"
@@ -222,7 +223,7 @@ func CandidateFile(spec *objectives.Spec, c *sizing.Candidate, processRef, runID
 	case c.Feasible:
 		fmt.Fprintf(&b, "# %s; meets every target of the spec.\n", c.Topology)
 	default:
-		fmt.Fprintf(&b, "# %s; misses %s.\n", c.Topology, strings.Join(MissTexts(spec, c.Violations), "; "))
+		fmt.Fprintf(&b, "# %s; misses %s.\n", c.Topology, strings.Join(CandidateMisses(spec, c), "; "))
 	}
 	b.WriteString("# Evaluate it with `pairsmith eval` (the process is a built-in name or the run's copy, relative to this file).\n")
 	fmt.Fprintf(&b, "# %s\n", objectives.Caution)
@@ -460,6 +461,57 @@ func MissTexts(spec *objectives.Spec, vs []objectives.Violation) []string {
 		out = append(out, missText(spec, v))
 	}
 	return out
+}
+
+// CandidateMisses is MissTexts for a reported candidate: a failed
+// always-on check also names the device its value is taken from (the
+// worst of the check's findings, as objectives.CheckViolations picks it),
+// with its role, the common mode of its worst point where the check is
+// swept, and how many findings the check has when there are more: "…,
+// want ≥ 50 mV (worst of 3: M11, zener bias, at vcm 1.8 V)". Without an
+// evaluation it is MissTexts.
+func CandidateMisses(spec *objectives.Spec, c *sizing.Candidate) []string {
+	var out []string
+	for _, v := range Misses(c.Violations) {
+		s := missText(spec, v)
+		if c.Eval != nil {
+			s += findingWhere(v, c.Eval.Findings)
+		}
+		out = append(out, s)
+	}
+	return out
+}
+
+// findingWhere says which finding a check's violation v comes from, " (M6,
+// pmos tail, at vcm 1.8 V)", or "" when v is not an always-on check's or
+// no finding gives its value.
+func findingWhere(v objectives.Violation, fs []objectives.Finding) string {
+	var worst *objectives.Finding
+	n := 0
+	for i := range fs {
+		f := &fs[i]
+		if f.Check != v.Target || f.Amount <= 0 {
+			continue
+		}
+		n++
+		if worst == nil || f.Amount > worst.Amount {
+			worst = f
+		}
+	}
+	if worst == nil || worst.Value != v.Value {
+		return ""
+	}
+	s := worst.Device
+	if worst.Role != "" {
+		s += ", " + worst.Role
+	}
+	if !math.IsNaN(worst.VCM) {
+		s += ", at vcm " + SI(worst.VCM, "V", tableDigits)
+	}
+	if n > 1 {
+		s = fmt.Sprintf("worst of %d: %s", n, s)
+	}
+	return " (" + s + ")"
 }
 
 // missText is one phrase of MissTexts, in the words of the target's or

@@ -226,14 +226,7 @@ func TestParetoCSV(t *testing.T) {
 		{[]string{"gm_min", "transition_width"}, []string{"axis_neg_gm_min_S", "axis_transition_width_V"}, []string{"-0.000125", "1.8"}},
 	} {
 		res := handResult(t, tc.pareto)
-		data, err := ParetoCSV(res)
-		if err != nil {
-			t.Fatal(err)
-		}
-		rows, err := csv.NewReader(bytes.NewReader(data)).ReadAll()
-		if err != nil {
-			t.Fatal(err)
-		}
+		rows := paretoRows(t, res)
 		wantHead := append(append([]string{"id", "topology", "gm_min_S", "gm_max_S", "gm_ripple", "power_W", "area_m2",
 			"switchover_V", "transition_width_V", "gm_id_min_per_V"}, tc.axes...), "score")
 		if strings.Join(rows[0], ",") != strings.Join(wantHead, ",") {
@@ -247,6 +240,21 @@ func TestParetoCSV(t *testing.T) {
 			t.Errorf("row %v, want %v", rows[1], wantRow)
 		}
 	}
+}
+
+// paretoRows returns a result's pareto.csv (ParetoCSV) read back as rows,
+// the header first.
+func paretoRows(t *testing.T, res *sizing.Result) [][]string {
+	t.Helper()
+	data, err := ParetoCSV(res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, err := csv.NewReader(bytes.NewReader(data)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return rows
 }
 
 // TestMissTexts: each missed target is said with its value and limit;
@@ -275,6 +283,47 @@ func TestMissTexts(t *testing.T) {
 		got := MissTexts(spec, spec.Targets.Check(tc.m))
 		if strings.Join(got, "|") != strings.Join(tc.want, "|") {
 			t.Errorf("MissTexts = %q, want %q", got, tc.want)
+		}
+	}
+}
+
+// TestCandidateMisses: a failed always-on check names the device its
+// value comes from (the worst finding), its role, the worst common mode
+// where the check is swept, and how many findings there are; targets
+// read as MissTexts writes them. Hand-made findings: the expected words
+// are the report's own, no outside source.
+func TestCandidateMisses(t *testing.T) {
+	spec, err := objectives.ReadSpec("s.yaml", []byte("process: demo18\nsupply: 1.8V\ntargets:\n  gm_min: 150uS\n"), ".")
+	if err != nil {
+		t.Fatal(err)
+	}
+	nan := math.NaN()
+	m := objectives.Metrics{GMMin: 9.52e-5, GMMax: 1e-4, GMRipple: 0.05, Power: 1e-4, Area: 1e-9, Switchover: 0.9, TransitionWidth: 0.1}
+	tests := []struct {
+		name string
+		fs   []objectives.Finding
+		want []string
+	}{
+		{"one swept finding", []objectives.Finding{
+			{Check: objectives.CheckSaturation, Device: "M11", Role: "zener bias", Points: 25, From: 1.56, To: 1.8, VCM: 1.8, Value: -0.1724, Limit: 0.05, Amount: 0.79},
+		}, []string{"gm_min 95.2 µS < 150 µS", "saturation: |V_DS| − |V_DSAT| -172.4 mV, want ≥ 50 mV (M11, zener bias, at vcm 1.8 V)"}},
+		{"the worst of three, geometry without a common mode", []objectives.Finding{
+			{Check: objectives.CheckGeometry, Device: "M3", Role: "pmos input", From: nan, To: nan, VCM: nan, Value: 1e-7, Limit: 1.8e-7, Amount: 0.44},
+			{Check: objectives.CheckSaturation, Device: "M6", Role: "pmos tail", Points: 3, From: 0, To: 0.02, VCM: 0, Value: 0.02, Limit: 0.05, Amount: 0.1},
+			{Check: objectives.CheckSaturation, Device: "summing stage", Role: "folding sources and mirror", From: nan, To: nan, VCM: nan, Value: 0.018, Limit: 0.05, Amount: 0.2},
+			{Check: objectives.CheckSaturation, Device: "M8", Role: "mirror input", Points: 1, From: 1.8, To: 1.8, VCM: 1.8, Value: 0.03, Limit: 0.05, Amount: 0.05},
+		}, []string{"gm_min 95.2 µS < 150 µS", "geometry: a drawn size 100 nm against the rule 180 nm (M3, pmos input)",
+			"saturation: |V_DS| − |V_DSAT| 18 mV, want ≥ 50 mV (worst of 3: summing stage, folding sources and mirror)"}},
+	}
+	for _, tc := range tests {
+		c := &sizing.Candidate{Violations: append(spec.Targets.Check(m), objectives.CheckViolations(tc.fs)...),
+			Eval: &objectives.Evaluation{Findings: tc.fs}}
+		if got := CandidateMisses(spec, c); strings.Join(got, "|") != strings.Join(tc.want, "|") {
+			t.Errorf("%s: CandidateMisses = %q, want %q", tc.name, got, tc.want)
+		}
+		c.Eval = nil
+		if got, want := CandidateMisses(spec, c), MissTexts(spec, c.Violations); strings.Join(got, "|") != strings.Join(want, "|") {
+			t.Errorf("%s, not evaluated: CandidateMisses = %q, want MissTexts' %q", tc.name, got, want)
 		}
 	}
 }

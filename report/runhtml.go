@@ -23,9 +23,12 @@ type pageRow struct{ Key, Value string }
 // sets.
 type pageParam struct{ Name, Value, Doc string }
 
-// pageDevice is one transistor of a candidate at the middle of the sweep.
+// pageDevice is one transistor of a candidate at the middle of the sweep:
+// its inversion level, whether it is saturated, its |V_DS| − |V_DSAT| and
+// the duty the saturation check holds it to (objectives.DeviceReport).
 type pageDevice struct {
-	Name, Role, W, L, ID, GM, GMID, Region string
+	Name, Role, W, L, ID, GM, GMID      string
+	Inversion, Saturation, Margin, Duty string
 }
 
 // pageCandidate is one candidate as the report page lists it.
@@ -128,7 +131,7 @@ func candidateView(spec *objectives.Spec, c *sizing.Candidate) *pageCandidate {
 	v := &pageCandidate{
 		ID: c.ID, Topology: c.Topology, Design: CandidateDesign(c.ID), Netlist: CandidateNetlist(c.ID),
 		Status: candidateStatus(c), Score: ScoreText(c.Score),
-		Misses: MissTexts(spec, c.Violations), Feasible: c.Feasible, Pareto: c.Pareto,
+		Misses: CandidateMisses(spec, c), Feasible: c.Feasible, Pareto: c.Pareto,
 	}
 	v.Brief, v.Rest = figuresProse(figuresUpTo(objectives.InEvery), m), figuresProse(figuresBeyond(objectives.InEvery), m)
 	v.Ranked, v.Full = figuresProse(ranked, m), figuresProse(all, m)
@@ -149,7 +152,8 @@ func candidateView(spec *objectives.Spec, c *sizing.Candidate) *pageCandidate {
 			}
 			v.Devices = append(v.Devices, pageDevice{
 				Name: d.Name, Role: d.Role, W: w, L: SI(d.L, "m", tableDigits),
-				ID: SIFixed(d.ID, "A", tableDigits), GM: SIFixed(d.GM, "S", tableDigits), GMID: gmid, Region: d.Region,
+				ID: SIFixed(d.ID, "A", tableDigits), GM: SIFixed(d.GM, "S", tableDigits), GMID: gmid,
+				Inversion: d.Inversion, Saturation: d.Saturation, Margin: volts(d.VDSMargin), Duty: d.Duty,
 			})
 		}
 	}
@@ -507,10 +511,10 @@ Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}
 {{end}}</table></div>
 {{end}}{{if .Devices}}<div><h3>Transistors at vcm = {{.MidVCM}}</h3>
 <table>
-<tr><th>name</th><th>role</th><th>W</th><th>L</th><th>I_D</th><th>g_m</th><th>g_m/I_D</th><th>region</th></tr>
-{{range .Devices}}<tr><td>{{.Name}}</td><td class="nowrap">{{.Role}}</td><td class="num">{{.W}}</td><td class="num">{{.L}}</td><td class="num">{{.ID}}</td><td class="num">{{.GM}}</td><td class="num">{{.GMID}}</td><td class="nowrap">{{.Region}}</td></tr>
+<tr><th>name</th><th>role</th><th>W</th><th>L</th><th>I_D</th><th>g_m</th><th>g_m/I_D</th><th>inversion</th><th>saturation</th><th>|V_DS| − |V_DSAT|</th><th>duty</th></tr>
+{{range .Devices}}<tr><td>{{.Name}}</td><td class="nowrap">{{.Role}}</td><td class="num">{{.W}}</td><td class="num">{{.L}}</td><td class="num">{{.ID}}</td><td class="num">{{.GM}}</td><td class="num">{{.GMID}}</td><td class="nowrap">{{.Inversion}}</td><td class="nowrap">{{.Saturation}}</td><td class="num">{{.Margin}}</td><td class="nowrap">{{.Duty}}</td></tr>
 {{end}}</table>
-<p class="note">I_D with SPICE's sign: negative for a conducting PMOS.</p></div>
+<p class="note">I_D with SPICE's sign: negative for a conducting PMOS. The saturation check holds a device whose duty is saturated to |V_DS| − |V_DSAT| ≥ the margin over the whole sweep, not only here; a diode is saturated by its connection, and an exempt device is not held to it.</p></div>
 {{else}}<p class="note">No transistor data: the candidate was not evaluated.</p>
 {{end}}</div>{{end}}`
 

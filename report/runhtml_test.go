@@ -102,7 +102,7 @@ func TestRunPageContents(t *testing.T) {
 		misses++
 		row := regexp.MustCompile(`(?s)<td><a href="#` + f.Best.ID + `">` + f.Best.ID + `</a></td>.*?</tr>\s*<tr class="misses"><td></td><td colspan="10">misses ([^<]*)</td></tr>`)
 		m := row.FindStringSubmatch(fam)
-		want := strings.Join(MissTexts(res.Spec, f.Best.Violations), "; ")
+		want := strings.Join(CandidateMisses(res.Spec, f.Best), "; ")
 		if m == nil || htmlText(m[1]) != want {
 			t.Errorf("%s (%s): no misses row %q below its row", f.Topology, f.Best.ID, want)
 		}
@@ -131,9 +131,9 @@ func TestRunPageContents(t *testing.T) {
 		t.Fatal("the best candidate has no transistors to show")
 	}
 	for _, d := range best.Eval.Devices {
-		want := fmt.Sprintf("<tr><td>%s</td><td class=\"nowrap\">%s</td><td class=\"num\">%s</td><td class=\"num\">%s</td><td class=\"num\">%s</td><td class=\"num\">%s</td><td class=\"num\">%s</td><td class=\"nowrap\">%s</td></tr>",
+		want := fmt.Sprintf("<tr><td>%s</td><td class=\"nowrap\">%s</td><td class=\"num\">%s</td><td class=\"num\">%s</td><td class=\"num\">%s</td><td class=\"num\">%s</td><td class=\"num\">%s</td><td class=\"nowrap\">%s</td><td class=\"nowrap\">%s</td><td class=\"num\">%s</td><td class=\"nowrap\">%s</td></tr>",
 			d.Name, d.Role, widthText(d.W, d.M), SI(d.L, "m", 4), SIFixed(d.ID, "A", 4),
-			SIFixed(d.GM, "S", 4), gmIDText(d.GM/math.Abs(d.ID)), d.Region)
+			SIFixed(d.GM, "S", 4), gmIDText(d.GM/math.Abs(d.ID)), d.Inversion, d.Saturation, volts(d.VDSMargin), d.Duty)
 		if !strings.Contains(sec, want) {
 			t.Errorf("best candidate: no transistor row %q", want)
 		}

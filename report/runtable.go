@@ -61,7 +61,7 @@ func RunTable(w io.Writer, res *sizing.Result, dir string) error {
 		}
 		t.add(append(append([]string{rank, f.Topology, status}, figureCells(figs, c.Metrics)...), c.ID)...)
 		if !c.Feasible {
-			notes = append(notes, note{len(t.rows) - 1, "misses " + strings.Join(MissTexts(spec, c.Violations), "; ")})
+			notes = append(notes, note{len(t.rows) - 1, "misses " + strings.Join(CandidateMisses(spec, c), "; ")})
 		}
 	}
 	// Write the table with each note on a line of its own below its row,
@@ -83,7 +83,7 @@ func RunTable(w io.Writer, res *sizing.Result, dir string) error {
 	} else {
 		e.printf("no candidate meets the spec; the targets that bind: %s\n", strings.Join(res.Binding, ", "))
 		if near := nearest(res); near != nil {
-			e.printf("nearest: %s (%s) misses %s\n", near.ID, near.Topology, strings.Join(MissTexts(spec, near.Violations), "; "))
+			e.printf("nearest: %s (%s) misses %s\n", near.ID, near.Topology, strings.Join(CandidateMisses(spec, near), "; "))
 		}
 		e.printf("%d candidates written (the nearest misses and each family's best)\n", len(res.Candidates))
 	}
