@@ -205,33 +205,35 @@ func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 		return side == topologies.NoSide || !(tot > 0) || mine <= 0.5*tot
 	}
 	want := Checked(st, kind)
-	// Devices are checked in parallel, each worker with its own column and
-	// flags; the findings keep the devices' order.
+	var volts sim.Voltages
+	s.Voltages(res, &volts)
 	per := make([][]Finding, len(st.Devices))
-	next := make(chan int)
-	var wg sync.WaitGroup
-	workers := 1
-	if n >= parallelPoints {
-		workers = min(runtime.GOMAXPROCS(0), len(st.Devices))
+	check := func(ks <-chan int) {
+		var col sim.OpColumn
+		work, low := make([]bool, n), make([]bool, n)
+		for k := range ks {
+			per[k] = assessDevice(st.Devices[k], k, s, &volts, res, &col, work, low, minor, kind, margin, ut)
+		}
 	}
-	for w := 0; w < workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			var col sim.OpColumn
-			work, low := make([]bool, n), make([]bool, n)
-			for k := range next {
-				per[k] = assessDevice(st.Devices[k], k, s, res, &col, work, low, minor, kind, margin, ut)
-			}
-		}()
-	}
+	next := make(chan int, len(st.Devices))
 	for k := range st.Devices {
 		if want[k] {
 			next <- k
 		}
 	}
 	close(next)
-	wg.Wait()
+	// A long sweep's devices are checked in parallel, each worker with its
+	// own column and flags; a search's short sweeps on the goroutine that
+	// swept them. The findings keep the devices' order either way.
+	if n < parallelPoints {
+		check(next)
+	} else {
+		var wg sync.WaitGroup
+		for range min(runtime.GOMAXPROCS(0), len(st.Devices)) {
+			wg.Go(func() { check(next) })
+		}
+		wg.Wait()
+	}
 	for _, fs := range per {
 		out = append(out, fs...)
 	}
@@ -245,11 +247,11 @@ const parallelPoints = 1000
 
 // assessDevice makes the saturation and validity checks of device k of a
 // stage over a sweep, with col, work and low as its scratch space.
-func assessDevice(dev topologies.Device, k int, s *sim.Solver, res *sim.Result, col *sim.OpColumn, work, low []bool,
+func assessDevice(dev topologies.Device, k int, s *sim.Solver, volts *sim.Voltages, res *sim.Result, col *sim.OpColumn, work, low []bool,
 	minor func(topologies.Side, int) bool, kind string, margin, ut float64) []Finding {
 	var out []Finding
 	n := res.Len()
-	s.DeviceColumn(res, k, col)
+	s.DeviceColumn(volts, k, col)
 	imax := 0.0
 	for _, id := range col.ID {
 		if a := math.Abs(id); a > imax {

@@ -102,6 +102,11 @@ type Instance interface {
 	Eval(vd, vg, vs, vb float64) Eval
 	// Op returns the operating-point details at the given voltages.
 	Op(vd, vg, vs, vb float64) OpPoint
+	// Bias returns Op's large-signal fields (ID, VGS, VDS, VBS, VTH,
+	// VDSAT, IC, Region), bitwise equal to Op's, and may leave the
+	// small-signal ones zero: what the operating-region checks read at
+	// every point of a sweep. It must not allocate.
+	Bias(vd, vg, vs, vb float64) OpPoint
 }
 
 // Model is a model card for one device type.

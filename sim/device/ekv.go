@@ -194,11 +194,24 @@ func (m *ekvInst) Eval(vd, vg, vs, vb float64) Eval {
 	}
 	vds := xd - xs
 	u := vds * m.inv2UT
-	// tanh(u) and 1 − tanh²(u) from e^(−|u|), which is the ratio of ef
-	// and er (smaller over larger) when hf and hr have the same sign and
-	// their product otherwise (hf − hr = u): a division instead of the
-	// exponential inside tanh. Swapping source and drain swaps ef and er
-	// and negates u, so the symmetry stays exact.
+	th, sech2 := m.tanhHalf(u, hf, hr, ef, er)
+	clm := 1 + m.lambda*vds*th
+	dclm := m.lambda * (th + u*sech2) // ∂clm/∂VDS
+	q := iF - iR
+	a := is * clm * m.invUT
+	b := is * q * dclm
+	gg := dis*q*clm + a*(dF-dR)*dvp
+	gs := -a*dF - b
+	gd := a*dR + b
+	return Eval{ID: s * is * q * clm, GD: gd, GG: gg, GS: gs, GB: -(gg + gs + gd)}
+}
+
+// tanhHalf returns tanh(u) and 1 − tanh²(u) for u = VDS/(2·U_T), from
+// e^(−|u|), which is the ratio of ef and er (smaller over larger) when hf
+// and hr have the same sign and their product otherwise (hf − hr = u): a
+// division instead of the exponential inside tanh. Swapping source and
+// drain swaps ef and er and negates u, so the symmetry stays exact.
+func (m *ekvInst) tanhHalf(u, hf, hr, ef, er float64) (th, sech2 float64) {
 	var e1 float64
 	if (hf > 0) == (hr > 0) {
 		lo, hi := ef, er
@@ -215,20 +228,78 @@ func (m *ekvInst) Eval(vd, vg, vs, vb float64) Eval {
 	}
 	e2 := e1 * e1 // e^(−2|u|)
 	inv := 1 / (1 + e2)
-	th := (1 - e2) * inv
+	th = (1 - e2) * inv
 	if u < 0 {
 		th = -th
 	}
-	sech2 := 4 * e2 * inv * inv
+	return th, 4 * e2 * inv * inv
+}
+
+// ekvRegion names the region of an inversion coefficient ic with the
+// reverse term rev beside it (Op's rules).
+func ekvRegion(ic, rev float64) Region {
+	switch {
+	case ic < 0.1:
+		return Weak
+	case rev > 0.1*ic:
+		return Triode
+	case ic > 10:
+		return Strong
+	}
+	return Moderate
+}
+
+// Bias returns Op's large-signal fields — ID, VGS, VDS, VBS, VTH, VDSAT,
+// IC and Region, bitwise as Op gives them — without the small-signal
+// ones, for a fraction of Op's cost: one pinch-off voltage and the two
+// exponentials Eval needs, no derivatives. The saturation and validity
+// checks read it at every point of a sweep.
+func (m *ekvInst) Bias(vd, vg, vs, vb float64) OpPoint {
+	s := m.sign
+	xg, xs, xd := s*(vg-vb), s*(vs-vb), s*(vd-vb)
+	vp, _, n, _ := m.pinch(xg)
+	is := m.isn * n
+	// iF and iR as Eval computes them, the smaller dropped where Eval
+	// drops it; the larger is the conducting direction's, which is IC.
+	hf := 0.5 * (vp - xs) * m.invUT
+	hr := 0.5 * (vp - xd) * m.invUT
+	ef := math.Exp(-math.Abs(hf))
+	er := math.Exp(-math.Abs(hr))
+	hb, eb, hs, es := hf, ef, hr, er
+	if hr > hf {
+		hb, eb, hs, es = hr, er, hf, ef
+	}
+	spb := math.Log1p(eb)
+	if hb > 0 {
+		spb += hb
+	}
+	fb := spb * spb
+	var fs float64
+	if !(hs < 0 && es*es < minorTerm*fb) {
+		sps := math.Log1p(es)
+		if hs > 0 {
+			sps += hs
+		}
+		fs = sps * sps
+	}
+	iF, iR := fb, fs
+	if hr > hf {
+		iF, iR = fs, fb
+	}
+	vds := xd - xs
+	th, _ := m.tanhHalf(vds*m.inv2UT, hf, hr, ef, er)
 	clm := 1 + m.lambda*vds*th
-	dclm := m.lambda * (th + u*sech2) // ∂clm/∂VDS
-	q := iF - iR
-	a := is * clm * m.invUT
-	b := is * q * dclm
-	gg := dis*q*clm + a*(dF-dR)*dvp
-	gs := -a*dF - b
-	gd := a*dR + b
-	return Eval{ID: s * is * q * clm, GD: gd, GG: gg, GS: gs, GB: -(gg + gs + gd)}
+	xsrc := math.Min(xs, xd)
+	vth := m.vto + m.gamma*(math.Sqrt(math.Max(xsrc+m.phi, 0))-m.sqrtPhi)
+	ic, rev := fb, fs
+	op := OpPoint{
+		ID: s * is * (iF - iR) * clm, VGS: vg - vs, VDS: vd - vs, VBS: vb - vs,
+		VTH:   s * vth,
+		VDSAT: s * (2*m.ut*math.Sqrt(ic+0.25) + 3*m.ut),
+		IC:    ic,
+	}
+	op.Region = ekvRegion(ic, rev)
+	return op
 }
 
 // Op returns the operating point at the given terminal voltages. The
@@ -265,15 +336,6 @@ func (m *ekvInst) Op(vd, vg, vs, vb float64) OpPoint {
 		GM:    gm, GDS: gds, GMB: gmb,
 		IC: ic,
 	}
-	switch {
-	case ic < 0.1:
-		op.Region = Weak
-	case rev > 0.1*ic:
-		op.Region = Triode
-	case ic > 10:
-		op.Region = Strong
-	default:
-		op.Region = Moderate
-	}
+	op.Region = ekvRegion(ic, rev)
 	return op
 }

@@ -272,6 +272,10 @@ func (m *level1Inst) Op(vd, vg, vs, vb float64) OpPoint {
 	return op
 }
 
+// Bias returns Op's large-signal fields (ID, VGS, VDS, VBS, VTH, VDSAT,
+// Region). The square law gives its derivatives for nothing, so it is Op.
+func (m *level1Inst) Bias(vd, vg, vs, vb float64) OpPoint { return m.Op(vd, vg, vs, vb) }
+
 // SpiceCard returns a `.model NAME nmos (level=1 ...)` line that reproduces
 // the card in a SPICE simulator whose deck sets `.temp` to tempK − 273.15.
 // With the SPICE temperature law it is the card itself with its tnom; with
