@@ -144,6 +144,52 @@ func (sc *SolverCache) put(family string, s *sim.Solver) {
 	p.(*sync.Pool).Put(s)
 }
 
+// MeasureStaged is MeasureCached in two looks, as a search judges a
+// candidate: a sweep at the coarse step first (d's own step when that is
+// finer), whose metrics reject(m) may turn the candidate down; then, for
+// a candidate kept, the sweep at d's step on the same built stage and
+// solver, its first point started from the coarse sweep's. The checks
+// are made on the look whose metrics are returned only (fine reports
+// which). The fine look's metrics agree with MeasureCached's within the
+// solver's tolerance, not bitwise: `eval` and a search's reported
+// candidates use Evaluate.
+func MeasureStaged(d *Design, cache *SolverCache, coarse float64, reject func(Metrics) bool) (m Metrics, fs []Finding, fine bool, err error) {
+	st, err := Build(d)
+	if err != nil {
+		return Metrics{}, nil, false, err
+	}
+	s, err := cache.get(d.Topology, st.Circuit)
+	if err != nil {
+		return Metrics{}, nil, false, err
+	}
+	defer cache.put(d.Topology, s)
+	look := d.Sweep
+	look.Step = math.Max(coarse, d.Sweep.Step)
+	res := &sim.Result{}
+	if err := s.Sweep(look, res); err != nil {
+		return Metrics{}, nil, false, err
+	}
+	if err := CheckPhysical(st, res); err != nil {
+		return Metrics{}, nil, false, err
+	}
+	m = Measure(st, res)
+	if look.Step == d.Sweep.Step || reject(m) {
+		return m, Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK), false, nil
+	}
+	if n, _ := d.Sweep.Points(); n > sim.SegmentPoints {
+		err = s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0))
+	} else {
+		err = s.SweepFrom(d.Sweep, res, append([]float64(nil), res.X[:res.Unknowns]...))
+	}
+	if err != nil {
+		return Metrics{}, nil, true, err
+	}
+	if err := CheckPhysical(st, res); err != nil {
+		return Metrics{}, nil, true, err
+	}
+	return Measure(st, res), Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK), true, nil
+}
+
 // MeasureDesign builds, sweeps and measures a design without the rest of
 // an Evaluation. Its metrics are those Evaluate reports, bit for bit.
 func MeasureDesign(d *Design) (Metrics, error) {

@@ -83,6 +83,23 @@ func (s *Solver) Sweep(sp SweepSpec, res *Result) error {
 	return s.sweepRange(sp, npts, 0, npts, res, nil)
 }
 
+// SweepFrom is Sweep with its first point started from start, the
+// unknowns (Result.X's first row) of a solution at that point or near it
+// — another sweep of the same circuit at another step, say — instead of
+// from scratch; a start it cannot converge from is dropped for a fresh
+// solve. The points agree with Sweep's within the convergence tolerance,
+// not bitwise.
+func (s *Solver) SweepFrom(sp SweepSpec, res *Result, start []float64) error {
+	npts, err := s.prepare(sp, res)
+	if err != nil {
+		return err
+	}
+	if len(start) != s.sys.n {
+		return fmt.Errorf("sweep of %s: a start of %d unknowns, want %d", s.sys.c.Title, len(start), s.sys.n)
+	}
+	return s.sweepRange(sp, npts, 0, npts, res, start)
+}
+
 // prepare sizes res for the sweep.
 func (s *Solver) prepare(sp SweepSpec, res *Result) (int, error) {
 	npts, err := sp.Points()
@@ -139,7 +156,18 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 				// solutions (Lagrange form, uneven steps allowed).
 				x0, x1 := res.VCM[i-1], res.VCM[i-2]
 				p1 := res.X[(i-2)*n : (i-1)*n]
-				if i-lo >= 3 {
+				if i-lo >= 4 {
+					x2, x3 := res.VCM[i-3], res.VCM[i-4]
+					p2 := res.X[(i-3)*n : (i-2)*n]
+					p3 := res.X[(i-4)*n : (i-3)*n]
+					l0 := (vcm - x1) * (vcm - x2) * (vcm - x3) / ((x0 - x1) * (x0 - x2) * (x0 - x3))
+					l1 := (vcm - x0) * (vcm - x2) * (vcm - x3) / ((x1 - x0) * (x1 - x2) * (x1 - x3))
+					l2 := (vcm - x0) * (vcm - x1) * (vcm - x3) / ((x2 - x0) * (x2 - x1) * (x2 - x3))
+					l3 := (vcm - x0) * (vcm - x1) * (vcm - x2) / ((x3 - x0) * (x3 - x1) * (x3 - x2))
+					for j := 0; j < m; j++ {
+						s.v[j] = l0*prev[j] + l1*p1[j] + l2*p2[j] + l3*p3[j]
+					}
+				} else if i-lo >= 3 {
 					x2 := res.VCM[i-3]
 					p2 := res.X[(i-3)*n : (i-2)*n]
 					l0 := (vcm - x1) * (vcm - x2) / ((x0 - x1) * (x0 - x2))

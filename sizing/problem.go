@@ -171,29 +171,20 @@ type Outcome struct {
 
 // Evaluate implements optimize.Problem: a coarse sweep first; a candidate
 // missing a target by CoarseReject or more is judged on it, the others
-// are swept at the spec's step.
+// are swept at the spec's step (objectives.MeasureStaged).
 func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 	d := p.Design(pt)
-	coarse := *d
-	coarse.Sweep.Step = math.Max(CoarseStep, d.Sweep.Step)
-	out, ok := p.measure(&coarse, true)
-	if !ok || coarse.Sweep.Step == d.Sweep.Step {
-		return out
-	}
-	for _, v := range out.Payload.(*Outcome).Violations {
-		if v.Amount >= CoarseReject {
-			return out
+	m, fs, fine, err := objectives.MeasureStaged(d, &p.solvers, CoarseStep, func(m objectives.Metrics) bool {
+		for _, v := range p.targets.Check(m) {
+			if v.Amount >= CoarseReject {
+				return true
+			}
 		}
-	}
-	out, _ = p.measure(d, false)
-	return out
-}
-
-// measure sweeps a design and turns its metrics into an outcome.
-func (p *Problem) measure(d *objectives.Design, coarse bool) (optimize.Outcome, bool) {
-	m, fs, err := objectives.MeasureCached(d, &p.solvers)
+		return false
+	})
+	coarse := !fine && d.Sweep.Step < CoarseStep
 	if err != nil {
-		return optimize.Outcome{Failed: true, Payload: &Outcome{Coarse: coarse, Err: err.Error()}}, false
+		return optimize.Outcome{Failed: true, Payload: &Outcome{Coarse: coarse, Err: err.Error()}}
 	}
 	vs := p.Checks(m, fs, p.targets)
 	amounts := make([]float64, len(vs))
@@ -207,7 +198,7 @@ func (p *Problem) measure(d *objectives.Design, coarse bool) (optimize.Outcome, 
 		Objectives: p.Spec.Axes(m),
 		Violations: amounts,
 		Payload:    &Outcome{Metrics: m, Violations: vs, Coarse: coarse},
-	}, true
+	}
 }
 
 // Checks returns the violations of a stage against targets, followed by

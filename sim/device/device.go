@@ -102,11 +102,18 @@ type Instance interface {
 	Eval(vd, vg, vs, vb float64) Eval
 	// Op returns the operating-point details at the given voltages.
 	Op(vd, vg, vs, vb float64) OpPoint
-	// Bias returns Op's large-signal fields (ID, VGS, VDS, VBS, VTH,
-	// VDSAT, IC, Region), bitwise equal to Op's, and may leave the
-	// small-signal ones zero: what the operating-region checks read at
-	// every point of a sweep. It must not allocate.
-	Bias(vd, vg, vs, vb float64) OpPoint
+	// LargeSignal returns Op's ID, VTH, VDSAT, IC and Region, bitwise
+	// equal to Op's, for less than Op costs: what the operating-region
+	// checks read at every point of a sweep. It must not allocate.
+	LargeSignal(vd, vg, vs, vb float64) LargeSignal
+}
+
+// LargeSignal is the part of an OpPoint that needs no derivative: the
+// current, the threshold and saturation voltages, the inversion
+// coefficient and the region (SPICE signs, as OpPoint).
+type LargeSignal struct {
+	ID, VTH, VDSAT, IC float64
+	Region             Region
 }
 
 // Model is a model card for one device type.

@@ -249,12 +249,11 @@ func ekvRegion(ic, rev float64) Region {
 	return Moderate
 }
 
-// Bias returns Op's large-signal fields — ID, VGS, VDS, VBS, VTH, VDSAT,
-// IC and Region, bitwise as Op gives them — without the small-signal
-// ones, for a fraction of Op's cost: one pinch-off voltage and the two
-// exponentials Eval needs, no derivatives. The saturation and validity
-// checks read it at every point of a sweep.
-func (m *ekvInst) Bias(vd, vg, vs, vb float64) OpPoint {
+// LargeSignal returns Op's ID, VTH, VDSAT, IC and Region bitwise as Op
+// gives them, for a fraction of Op's cost: one pinch-off voltage and the
+// two exponentials Eval needs, no derivatives. The saturation and
+// validity checks read it at every point of a sweep.
+func (m *ekvInst) LargeSignal(vd, vg, vs, vb float64) LargeSignal {
 	s := m.sign
 	xg, xs, xd := s*(vg-vb), s*(vs-vb), s*(vd-vb)
 	vp, _, n, _ := m.pinch(xg)
@@ -292,14 +291,13 @@ func (m *ekvInst) Bias(vd, vg, vs, vb float64) OpPoint {
 	xsrc := math.Min(xs, xd)
 	vth := m.vto + m.gamma*(math.Sqrt(math.Max(xsrc+m.phi, 0))-m.sqrtPhi)
 	ic, rev := fb, fs
-	op := OpPoint{
-		ID: s * is * (iF - iR) * clm, VGS: vg - vs, VDS: vd - vs, VBS: vb - vs,
-		VTH:   s * vth,
-		VDSAT: s * (2*m.ut*math.Sqrt(ic+0.25) + 3*m.ut),
-		IC:    ic,
+	return LargeSignal{
+		ID:     s * is * (iF - iR) * clm,
+		VTH:    s * vth,
+		VDSAT:  s * (2*m.ut*math.Sqrt(ic+0.25) + 3*m.ut),
+		IC:     ic,
+		Region: ekvRegion(ic, rev),
 	}
-	op.Region = ekvRegion(ic, rev)
-	return op
 }
 
 // Op returns the operating point at the given terminal voltages. The

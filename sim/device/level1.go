@@ -185,23 +185,34 @@ func effectiveLength(g Geometry, ld float64) (float64, error) {
 
 func isFiniteNum(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
 
+// body returns √(PHI − vbs) and −∂/∂vbs of it. For a forward-biased
+// source junction SPICE continues the square root by its tangent at
+// vbs = 0, floored at zero.
+func (m *level1Inst) body(vbs float64) (sarg, dsarg float64) {
+	if vbs <= 0 {
+		sarg = math.Sqrt(m.phi - vbs)
+		return sarg, 0.5 / sarg
+	}
+	sarg = m.sqrtPhi - vbs*m.invSqrt2
+	if sarg < 0 {
+		return 0, 0
+	}
+	return sarg, m.invSqrt2
+}
+
+// threshold returns the threshold von and the overdrive vgs − von in the
+// NMOS frame, source and drain ordered, as channel computes them.
+func (m *level1Inst) threshold(vgs, vbs float64) (von, vgst float64) {
+	sarg, _ := m.body(vbs)
+	von = m.vbi + m.gamma*sarg
+	return von, vgs - von
+}
+
 // channel evaluates the Shichman–Hodges channel current in the NMOS frame
 // with the source and drain already ordered (vds ≥ 0). It returns the current,
 // ∂/∂vgs, ∂/∂vds, ∂/∂vbs and the threshold and overdrive.
 func (m *level1Inst) channel(vgs, vds, vbs float64) (cd, gm, gds, gmbs, von, vgst float64) {
-	// Body effect; for a forward-biased source junction SPICE continues the
-	// square root by its tangent at vbs = 0, floored at zero.
-	var sarg, dsarg float64 // dsarg = −∂sarg/∂vbs
-	if vbs <= 0 {
-		sarg = math.Sqrt(m.phi - vbs)
-		dsarg = 0.5 / sarg
-	} else {
-		sarg = m.sqrtPhi - vbs*m.invSqrt2
-		dsarg = m.invSqrt2
-		if sarg < 0 {
-			sarg, dsarg = 0, 0
-		}
-	}
+	sarg, dsarg := m.body(vbs)
 	von = m.vbi + m.gamma*sarg
 	vgst = vgs - von
 	if vgst <= 0 {
@@ -272,9 +283,30 @@ func (m *level1Inst) Op(vd, vg, vs, vb float64) OpPoint {
 	return op
 }
 
-// Bias returns Op's large-signal fields (ID, VGS, VDS, VBS, VTH, VDSAT,
-// Region). The square law gives its derivatives for nothing, so it is Op.
-func (m *level1Inst) Bias(vd, vg, vs, vb float64) OpPoint { return m.Op(vd, vg, vs, vb) }
+// LargeSignal returns Op's ID, VTH, VDSAT and Region bitwise as Op gives
+// them (IC is 0: the square law has none), without the derivatives.
+func (m *level1Inst) LargeSignal(vd, vg, vs, vb float64) LargeSignal {
+	s := m.sign
+	vds := s * (vd - vs)
+	vgs := s * (vg - vs)
+	vbs := s * (vb - vs)
+	sign := s
+	if vds < 0 { // inverse mode: the drain acts as the source
+		vgs, vbs, vds, sign = vgs-vds, vbs-vds, -vds, -s
+	}
+	von, vgst := m.threshold(vgs, vbs)
+	out := LargeSignal{VTH: s * von, VDSAT: s * math.Max(vgst, 0), Region: Off}
+	if vgst <= 0 {
+		return out
+	}
+	betap := m.beta * (1 + m.lambda*vds)
+	if vgst <= vds {
+		out.ID, out.Region = sign*(0.5*betap*vgst*vgst), Saturation
+	} else {
+		out.ID, out.Region = sign*(betap*vds*(vgst-0.5*vds)), Triode
+	}
+	return out
+}
 
 // SpiceCard returns a `.model NAME nmos (level=1 ...)` line that reproduces
 // the card in a SPICE simulator whose deck sets `.temp` to tempK − 273.15.
