@@ -99,11 +99,12 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 	if err != nil {
 		return nil, err
 	}
-	s, err := cache.get(d.Topology, st.Circuit)
+	b, err := cache.get(d.Topology, st.Circuit)
 	if err != nil {
 		return nil, err
 	}
-	defer cache.put(d.Topology, s)
+	defer cache.put(d.Topology, b)
+	s := b.s
 	res := &sim.Result{}
 	if err := s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0)); err != nil {
 		return nil, err
@@ -115,66 +116,79 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 	return &swept{st: st, s: s, res: res, findings: fs}, nil
 }
 
-// SolverCache keeps compiled solvers by family, for reuse across
-// evaluations by any number of goroutines. The zero value is ready; a nil
-// cache compiles afresh every time.
+// SolverCache keeps compiled solvers by family, each with the buffers
+// its sweeps and checks fill, for reuse across evaluations by any number
+// of goroutines. The zero value is ready; a nil cache compiles afresh
+// every time.
 type SolverCache struct {
-	pools sync.Map // family name → *sync.Pool of *sim.Solver
+	pools sync.Map // family name → *sync.Pool of *bench
 }
 
-// get returns a solver for c: a cached one of the family rebound to c,
-// or a new one.
-func (sc *SolverCache) get(family string, c *sim.Circuit) (*sim.Solver, error) {
+// bench is a compiled solver with the result and check buffers of the
+// evaluation that holds it.
+type bench struct {
+	s   *sim.Solver
+	res sim.Result
+	scr assessScratch
+}
+
+// get returns a bench for c: a cached one of the family, its solver
+// rebound to c, or a new one.
+func (sc *SolverCache) get(family string, c *sim.Circuit) (*bench, error) {
 	if sc != nil {
 		if p, ok := sc.pools.Load(family); ok {
-			if s, ok := p.(*sync.Pool).Get().(*sim.Solver); ok && s.Rebind(c) == nil {
-				return s, nil
+			if b, ok := p.(*sync.Pool).Get().(*bench); ok && b.s.Rebind(c) == nil {
+				return b, nil
 			}
 		}
 	}
-	return sim.NewSolver(c, sim.Options{})
+	s, err := sim.NewSolver(c, sim.Options{})
+	if err != nil {
+		return nil, err
+	}
+	return &bench{s: s}, nil
 }
 
-// put returns a solver to the cache once its results have been read.
-func (sc *SolverCache) put(family string, s *sim.Solver) {
-	if sc == nil || s == nil {
+// put returns a bench to the cache once its results have been read.
+func (sc *SolverCache) put(family string, b *bench) {
+	if sc == nil || b == nil {
 		return
 	}
 	p, _ := sc.pools.LoadOrStore(family, &sync.Pool{})
-	p.(*sync.Pool).Put(s)
+	p.(*sync.Pool).Put(b)
 }
 
 // MeasureStaged is MeasureCached in two looks, as a search judges a
 // candidate: a sweep at the coarse step first (d's own step when that is
-// finer), whose metrics reject(m) may turn the candidate down; then, for
-// a candidate kept, the sweep at d's step on the same built stage and
-// solver, its first point started from the coarse sweep's. The checks
-// are made on the look whose metrics are returned only (fine reports
-// which). The fine look's metrics agree with MeasureCached's within the
-// solver's tolerance, not bitwise: `eval` and a search's reported
+// finer), whose metrics and findings reject(m, fs) may turn the
+// candidate down; then, for a candidate kept, the sweep at d's step on
+// the same built stage and solver, its first point started from the
+// coarse sweep's, checked again (fine reports which look the results
+// are from). The fine look's metrics agree with MeasureCached's within
+// the solver's tolerance, not bitwise: `eval` and a search's reported
 // candidates use Evaluate.
-func MeasureStaged(d *Design, cache *SolverCache, coarse float64, reject func(Metrics) bool) (m Metrics, fs []Finding, fine bool, err error) {
+func MeasureStaged(d *Design, cache *SolverCache, coarse float64, reject func(Metrics, []Finding) bool) (m Metrics, fs []Finding, fine bool, err error) {
 	st, err := Build(d)
 	if err != nil {
 		return Metrics{}, nil, false, err
 	}
-	s, err := cache.get(d.Topology, st.Circuit)
+	b, err := cache.get(d.Topology, st.Circuit)
 	if err != nil {
 		return Metrics{}, nil, false, err
 	}
-	defer cache.put(d.Topology, s)
+	defer cache.put(d.Topology, b)
+	s, res := b.s, &b.res
 	look := d.Sweep
 	look.Step = math.Max(coarse, d.Sweep.Step)
-	res := &sim.Result{}
 	if err := s.Sweep(look, res); err != nil {
 		return Metrics{}, nil, false, err
 	}
 	if err := CheckPhysical(st, res); err != nil {
 		return Metrics{}, nil, false, err
 	}
-	m = Measure(st, res)
-	if look.Step == d.Sweep.Step || reject(m) {
-		return m, Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK), false, nil
+	m, fs = Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr)
+	if look.Step == d.Sweep.Step || reject(m, fs) {
+		return m, fs, false, nil
 	}
 	if n, _ := d.Sweep.Points(); n > sim.SegmentPoints {
 		err = s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0))
@@ -187,7 +201,7 @@ func MeasureStaged(d *Design, cache *SolverCache, coarse float64, reject func(Me
 	if err := CheckPhysical(st, res); err != nil {
 		return Metrics{}, nil, true, err
 	}
-	return Measure(st, res), Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK), true, nil
+	return Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr), true, nil
 }
 
 // MeasureDesign builds, sweeps and measures a design without the rest of

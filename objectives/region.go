@@ -174,6 +174,28 @@ func (f Finding) String() string {
 // parallel; a search's short sweeps on the calling goroutine, whose
 // caller already keeps the cores busy.
 func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, margin, tempK float64) []Finding {
+	return assess(st, res, s, kind, margin, tempK, &assessScratch{})
+}
+
+// assessScratch holds the buffers Assess fills, kept by a search's
+// solvers (SolverCache) from one evaluation to the next.
+type assessScratch struct {
+	volts     sim.Voltages
+	col       sim.OpColumn
+	work, low []bool
+}
+
+// flags returns scr's work and low flags for n points.
+func (scr *assessScratch) flags(n int) (work, low []bool) {
+	if cap(scr.work) < n {
+		scr.work, scr.low = make([]bool, n), make([]bool, n)
+	}
+	return scr.work[:n], scr.low[:n]
+}
+
+// assess is Assess with its buffers in scr; a long sweep's parallel
+// workers take buffers of their own.
+func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, margin, tempK float64, scr *assessScratch) []Finding {
 	var out []Finding
 	for _, g := range st.Geometry {
 		out = append(out, Finding{Check: CheckGeometry, Device: g.Device, Role: g.Role,
@@ -205,14 +227,13 @@ func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 		return side == topologies.NoSide || !(tot > 0) || mine <= 0.5*tot
 	}
 	want := Checked(st, kind)
-	var volts sim.Voltages
-	s.Voltages(res, &volts)
+	volts := &scr.volts
+	s.Voltages(res, volts)
 	per := make([][]Finding, len(st.Devices))
-	check := func(ks <-chan int) {
-		var col sim.OpColumn
-		work, low := make([]bool, n), make([]bool, n)
+	check := func(ks <-chan int, scr *assessScratch) {
+		work, low := scr.flags(n)
 		for k := range ks {
-			per[k] = assessDevice(st.Devices[k], k, s, &volts, res, &col, work, low, minor, kind, margin, ut)
+			per[k] = assessDevice(st.Devices[k], k, s, volts, res, &scr.col, work, low, minor, kind, margin, ut)
 		}
 	}
 	next := make(chan int, len(st.Devices))
@@ -226,11 +247,11 @@ func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 	// own column and flags; a search's short sweeps on the goroutine that
 	// swept them. The findings keep the devices' order either way.
 	if n < parallelPoints {
-		check(next)
+		check(next, scr)
 	} else {
 		var wg sync.WaitGroup
 		for range min(runtime.GOMAXPROCS(0), len(st.Devices)) {
-			wg.Go(func() { check(next) })
+			wg.Go(func() { check(next, &assessScratch{}) })
 		}
 		wg.Wait()
 	}

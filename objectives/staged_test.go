@@ -37,14 +37,15 @@ func TestMeasureStaged(t *testing.T) {
 			}
 			var cache objectives.SolverCache
 			var seen objectives.Metrics
-			m, fs, fine, err := objectives.MeasureStaged(d, &cache, coarse, func(m objectives.Metrics) bool { seen = m; return true })
+			var seenF []objectives.Finding
+			m, fs, fine, err := objectives.MeasureStaged(d, &cache, coarse, func(m objectives.Metrics, fs []objectives.Finding) bool { seen, seenF = m, fs; return true })
 			if err != nil || fine {
 				t.Fatalf("rejected: fine %v, err %v", fine, err)
 			}
-			if !same(m, wantC) || !same(seen, wantC) || !same(fs, wantCF) {
+			if !same(m, wantC) || !same(seen, wantC) || !same(fs, wantCF) || !same(seenF, wantCF) {
 				t.Errorf("rejected on the coarse look: %+v %v, want MeasureCached's at %g V: %+v %v", m, fs, coarse, wantC, wantCF)
 			}
-			m, fs, fine, err = objectives.MeasureStaged(d, &cache, coarse, func(objectives.Metrics) bool { return false })
+			m, fs, fine, err = objectives.MeasureStaged(d, &cache, coarse, func(objectives.Metrics, []objectives.Finding) bool { return false })
 			if err != nil || !fine {
 				t.Fatalf("kept: fine %v, err %v", fine, err)
 			}
@@ -69,7 +70,7 @@ func TestMeasureStaged(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			if m, _, fine, err := objectives.MeasureStaged(d, &cache, coarse, func(objectives.Metrics) bool { return false }); err != nil || fine || !same(m, wantOne) {
+			if m, _, fine, err := objectives.MeasureStaged(d, &cache, coarse, func(objectives.Metrics, []objectives.Finding) bool { return false }); err != nil || fine || !same(m, wantOne) {
 				t.Errorf("step 0.1 V: fine %v, err %v, %+v; want one look, %+v", fine, err, m, wantOne)
 			}
 		})

@@ -17,7 +17,7 @@ import (
 // CoarseStep is the sweep step of the first, cheap look at a candidate.
 const CoarseStep = 50e-3
 
-// CoarseReject is the violation, on any one target, beyond which a coarse
+// CoarseReject is the violation, on any one target or check, beyond which a coarse
 // look rejects a candidate without the fine sweep. The coarse sweep can
 // miss a narrow gm peak or dip by up to a few per cent of the ripple, so
 // only a candidate missing a target by half its limit or more is judged
@@ -170,12 +170,13 @@ type Outcome struct {
 }
 
 // Evaluate implements optimize.Problem: a coarse sweep first; a candidate
-// missing a target by CoarseReject or more is judged on it, the others
+// missing a target or failing a check by CoarseReject or more is judged
+// on it (a candidate that cannot be built costs no fine sweep), the others
 // are swept at the spec's step (objectives.MeasureStaged).
 func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 	d := p.Design(pt)
-	m, fs, fine, err := objectives.MeasureStaged(d, &p.solvers, CoarseStep, func(m objectives.Metrics) bool {
-		for _, v := range p.targets.Check(m) {
+	m, fs, fine, err := objectives.MeasureStaged(d, &p.solvers, CoarseStep, func(m objectives.Metrics, fs []objectives.Finding) bool {
+		for _, v := range p.Checks(m, fs, p.targets) {
 			if v.Amount >= CoarseReject {
 				return true
 			}
