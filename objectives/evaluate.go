@@ -127,9 +127,9 @@ type SolverCache struct {
 // bench is a compiled solver with the result and check buffers of the
 // evaluation that holds it.
 type bench struct {
-	s   *sim.Solver
-	res sim.Result
-	scr assessScratch
+	s            *sim.Solver
+	coarse, fine sim.Result
+	scr          assessScratch
 }
 
 // get returns a bench for c: a cached one of the family, its solver
@@ -162,8 +162,8 @@ func (sc *SolverCache) put(family string, b *bench) {
 // candidate: a sweep at the coarse step first (d's own step when that is
 // finer), whose metrics and findings reject(m, fs) may turn the
 // candidate down; then, for a candidate kept, the sweep at d's step on
-// the same built stage and solver, its first point started from the
-// coarse sweep's, checked again (fine reports which look the results
+// the same built stage and solver, guided by the coarse sweep's
+// solutions (sim.Solver.SweepFrom), checked again (fine reports which look the results
 // are from). The fine look's metrics agree with MeasureCached's within
 // the solver's tolerance, not bitwise: `eval` and a search's reported
 // candidates use Evaluate.
@@ -177,7 +177,7 @@ func MeasureStaged(d *Design, cache *SolverCache, coarse float64, reject func(Me
 		return Metrics{}, nil, false, err
 	}
 	defer cache.put(d.Topology, b)
-	s, res := b.s, &b.res
+	s, res := b.s, &b.coarse
 	look := d.Sweep
 	look.Step = math.Max(coarse, d.Sweep.Step)
 	if err := s.Sweep(look, res); err != nil {
@@ -190,10 +190,12 @@ func MeasureStaged(d *Design, cache *SolverCache, coarse float64, reject func(Me
 	if look.Step == d.Sweep.Step || reject(m, fs) {
 		return m, fs, false, nil
 	}
+	coarseRes := res
+	res = &b.fine
 	if n, _ := d.Sweep.Points(); n > sim.SegmentPoints {
 		err = s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0))
 	} else {
-		err = s.SweepFrom(d.Sweep, res, append([]float64(nil), res.X[:res.Unknowns]...))
+		err = s.SweepFrom(d.Sweep, res, coarseRes)
 	}
 	if err != nil {
 		return Metrics{}, nil, true, err

@@ -80,24 +80,27 @@ func (s *Solver) Sweep(sp SweepSpec, res *Result) error {
 	if err != nil {
 		return err
 	}
-	return s.sweepRange(sp, npts, 0, npts, res, nil)
+	return s.sweepRange(sp, npts, 0, npts, res, nil, nil)
 }
 
-// SweepFrom is Sweep with its first point started from start, the
-// unknowns (Result.X's first row) of a solution at that point or near it
-// — another sweep of the same circuit at another step, say — instead of
-// from scratch; a start it cannot converge from is dropped for a fresh
-// solve. The points agree with Sweep's within the convergence tolerance,
-// not bitwise.
-func (s *Solver) SweepFrom(sp SweepSpec, res *Result, start []float64) error {
+// SweepFrom is Sweep guided by guide, a result of the same circuit over
+// the same range at another step (a coarser look at the same candidate):
+// the first point starts from the guide's first solution instead of from
+// scratch, and every later one from the polynomial through the last two
+// solutions and the guide's next two, an interpolation where Sweep
+// extrapolates — the guide's own solution where the points coincide. A
+// start it cannot converge from falls back as Sweep's do. The points
+// agree with Sweep's within the convergence tolerance, not bitwise. res
+// and guide must not share storage.
+func (s *Solver) SweepFrom(sp SweepSpec, res *Result, guide *Result) error {
+	if guide.Unknowns != s.sys.n || guide.Len() == 0 || len(guide.X) != guide.Len()*guide.Unknowns {
+		return fmt.Errorf("sweep of %s: a guide of %d points of %d unknowns, want at least one point of %d", s.sys.c.Title, guide.Len(), guide.Unknowns, s.sys.n)
+	}
 	npts, err := s.prepare(sp, res)
 	if err != nil {
 		return err
 	}
-	if len(start) != s.sys.n {
-		return fmt.Errorf("sweep of %s: a start of %d unknowns, want %d", s.sys.c.Title, len(start), s.sys.n)
-	}
-	return s.sweepRange(sp, npts, 0, npts, res, start)
+	return s.sweepRange(sp, npts, 0, npts, res, guide.X[:guide.Unknowns], guide)
 }
 
 // prepare sizes res for the sweep.
@@ -127,11 +130,13 @@ func (s *Solver) prepare(sp SweepSpec, res *Result) (int, error) {
 
 // sweepRange solves points [lo, hi) of a sweep of npts points. The first
 // starts from start, the unknowns of a solution near it, or from scratch
-// when start is nil.
-func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start []float64) error {
+// when start is nil; a guide (nil for none) lends its solutions to the
+// predictor (SweepFrom).
+func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start []float64, guide *Result) error {
 	sys := s.sys
 	n := sys.n
 	wantGM := sys.output >= 0
+	gj := 0 // the guide's first point at or beyond the current one
 	for i := lo; i < hi; i++ {
 		vcm := sp.At(i, npts)
 		switch {
@@ -151,7 +156,41 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 			// predictor moves only the unknowns that move with the sweep.
 			prev := res.X[(i-1)*n : i*n]
 			m := sys.nD
-			if i-lo >= 2 {
+			if guide != nil {
+				for gj < guide.Len() && guide.VCM[gj] < vcm {
+					gj++
+				}
+			}
+			switch {
+			case guide != nil && gj < guide.Len() && guide.VCM[gj] == vcm:
+				copy(s.v[:m], guide.X[gj*n:gj*n+m])
+			case guide != nil && gj < guide.Len() && i-lo >= 2:
+				// Interpolate: the last two solutions behind, the guide's
+				// next one or two ahead (Lagrange form).
+				xs := [4]float64{res.VCM[i-1], res.VCM[i-2], guide.VCM[gj]}
+				ps := [4][]float64{prev, res.X[(i-2)*n : (i-1)*n], guide.X[gj*n : (gj+1)*n]}
+				k := 3
+				if i-lo >= 3 {
+					xs[3], ps[3] = res.VCM[i-3], res.X[(i-3)*n:(i-2)*n]
+					k = 4
+				}
+				var l [4]float64
+				for a := range k {
+					l[a] = 1
+					for b := range k {
+						if b != a {
+							l[a] *= (vcm - xs[b]) / (xs[a] - xs[b])
+						}
+					}
+				}
+				for j := 0; j < m; j++ {
+					x := 0.0
+					for a := range k {
+						x += l[a] * ps[a][j]
+					}
+					s.v[j] = x
+				}
+			case i-lo >= 2:
 				// Predict by the polynomial through the last two or three
 				// solutions (Lagrange form, uneven steps allowed).
 				x0, x1 := res.VCM[i-1], res.VCM[i-2]
@@ -221,7 +260,7 @@ func (s *Solver) SweepParallel(sp SweepSpec, res *Result, workers int) error {
 	}
 	segs := npts / SegmentPoints
 	if segs <= 1 {
-		return s.sweepRange(sp, npts, 0, npts, res, nil)
+		return s.sweepRange(sp, npts, 0, npts, res, nil, nil)
 	}
 	workers = max(workers, 1)
 	n := s.sys.n
@@ -259,7 +298,7 @@ func (s *Solver) SweepParallel(sp SweepSpec, res *Result, workers int) error {
 			defer wg.Done()
 			c := s.clone()
 			for k := wk; k < segs; k += workers {
-				errs[k] = c.sweepRange(sp, npts, bounds[k], bounds[k+1], res, starts[k])
+				errs[k] = c.sweepRange(sp, npts, bounds[k], bounds[k+1], res, starts[k], nil)
 			}
 			iters[wk] = c.iterations
 		}(wk)
