@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"strings"
 	"sync"
 
@@ -219,12 +220,16 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
 	// minor reports whether a side's pair carries at most half of the two
 	// pairs' current at point i: the other pair has taken over.
+	// A stage with one pair only (n-pair, p-pair) has no other pair to
+	// take over: where its pair turns off at the rail the gm targets
+	// judge it, and its devices are exempt as a device of neither pair.
+	lone := map[topologies.Side]bool{topologies.NSide: !(slices.Max(ip) > 0), topologies.PSide: !(slices.Max(in) > 0)}
 	minor := func(side topologies.Side, i int) bool {
 		mine, tot := in[i], in[i]+ip[i]
 		if side == topologies.PSide {
 			mine = ip[i]
 		}
-		return side == topologies.NoSide || !(tot > 0) || mine <= 0.5*tot
+		return side == topologies.NoSide || lone[side] || !(tot > 0) || mine <= 0.5*tot
 	}
 	want := Checked(st, kind)
 	volts := &scr.volts

@@ -122,3 +122,44 @@ func evalDesign(t *testing.T, d *objectives.Design) *objectives.Evaluation {
 	}
 	return ev
 }
+
+// TestLonePairAtItsRail: a stage of one pair (n-pair, p-pair) at its
+// defaults on demo18, swept rail to rail, turns off at one rail with its
+// tail leaving saturation on the way — the gm targets judge that, not the
+// saturation check, since no other pair is there to take over
+// (docs/buildable.md, "A pair turning off at its rail"). The same tail
+// short of the margin at the end of a range that stops before the pair
+// turns off is a finding. Swept by pairsmith's own solver; the check's
+// V_DS and V_DSAT against ngspice: TestSaturationFindingMatchesNgspice.
+func TestLonePairAtItsRail(t *testing.T) {
+	for _, tc := range []struct {
+		family, short string // short: the range's end kept where the tail is short of the margin
+	}{
+		{"n-pair", "sweep: {low: 700mV, high: 1.8V, step: 10mV}\n"},
+		{"p-pair", "sweep: {low: 0V, high: 1.1V, step: 10mV}\n"},
+	} {
+		text := "topology: " + tc.family + "\nprocess: demo18\nsupply: 1.8V\n"
+		full, err := objectives.ReadDesign("d.yaml", []byte(text), ".")
+		if err != nil {
+			t.Fatal(err)
+		}
+		ev := evalDesign(t, full)
+		if gm := ev.Metrics.GMMin; !(gm < 1e-6) {
+			t.Fatalf("%s rail to rail: gm_min %g S, want the pair off at a rail", tc.family, gm)
+		}
+		for _, f := range ev.Findings {
+			t.Errorf("%s rail to rail: finding %v, want none (the lone pair's turn-off is exempt)", tc.family, f)
+		}
+		cut, err := objectives.ReadDesign("d.yaml", []byte(text+tc.short), ".")
+		if err != nil {
+			t.Fatal(err)
+		}
+		found := false
+		for _, f := range evalDesign(t, cut).Findings {
+			found = found || (f.Check == objectives.CheckSaturation && strings.Contains(f.Role, "tail"))
+		}
+		if !found {
+			t.Errorf("%s over %q: no saturation finding on the tail, want one (it is short of the margin at full current)", tc.family, tc.short)
+		}
+	}
+}
