@@ -127,7 +127,7 @@ func evalDesign(t *testing.T, d *objectives.Design) *objectives.Evaluation {
 // defaults on demo18, swept rail to rail, turns off at one rail with its
 // tail leaving saturation on the way — the gm targets judge that, not the
 // saturation check, since no other pair is there to take over
-// (docs/buildable.md, "A pair turning off at its rail"). The same tail
+// (docs/buildable.md, "Saturation"). The same tail
 // short of the margin at the end of a range that stops before the pair
 // turns off is a finding. Swept by pairsmith's own solver; the check's
 // V_DS and V_DSAT against ngspice: TestSaturationFindingMatchesNgspice.

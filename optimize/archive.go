@@ -19,8 +19,8 @@ type archive struct {
 	// dominates, one per objective vector (the smallest Key of those
 	// with the same vector, bit for bit), in no particular order.
 	front []Candidate
-	// nearest holds the NearestKept least-violating evaluated infeasible
-	// candidates, by (violation, Key).
+	// nearest holds the NearestKept nearest evaluated infeasible
+	// candidates, by (nearer, Key): those without a hard violation first.
 	nearest []Candidate
 	// best holds each family's best candidate under better, ties to the
 	// smaller Key.
@@ -63,10 +63,8 @@ func (a *archive) add(c Candidate) {
 
 // addNearest keeps c if it is among the NearestKept least violating.
 func (a *archive) addNearest(c Candidate) {
-	v := c.Outcome.Violation()
 	before := func(x Candidate) bool {
-		xv := x.Outcome.Violation()
-		return v < xv || (v == xv && c.Key.less(x.Key))
+		return nearer(c.Outcome, x.Outcome) || (!nearer(x.Outcome, c.Outcome) && c.Key.less(x.Key))
 	}
 	i := len(a.nearest)
 	for i > 0 && before(a.nearest[i-1]) {

@@ -49,7 +49,15 @@ func batchResult(all []Candidate, nfam int, scales []float64) (front, nearest []
 			return 0
 		})
 	}
+	// Nearest misses: without a hard violation first, then by violation.
 	slices.SortStableFunc(infeas, func(a, b Candidate) int {
+		ha, hb := a.Outcome.Hard > 0, b.Outcome.Hard > 0
+		if ha != hb {
+			if hb {
+				return -1
+			}
+			return 1
+		}
 		va, vb := a.Outcome.Violation(), b.Outcome.Violation()
 		switch {
 		case va < vb:
@@ -83,7 +91,8 @@ func keysOf(cs []Candidate) []Key {
 
 // randomEvaluations makes n evaluations of nfam families with objectives
 // on a coarse grid (so that duplicate trade-offs and ties occur), some
-// infeasible with grid violations and some failed, in Key order.
+// infeasible with grid violations (some of them hard: Outcome.Hard) and
+// some failed, in Key order.
 func randomEvaluations(rng *rand.Rand, n, nfam, nobj int) []Candidate {
 	all := make([]Candidate, n)
 	for i := range all {
@@ -94,8 +103,11 @@ func randomEvaluations(rng *rand.Rand, n, nfam, nobj int) []Candidate {
 		switch r := rng.Float64(); {
 		case r < 0.1:
 			o = Outcome{Failed: true}
-		case r < 0.5:
+		case r < 0.3:
 			o.Violations = []float64{float64(rng.Intn(6)) / 2}
+		case r < 0.5: // a hard violation beside a soft one
+			o.Violations = []float64{float64(rng.Intn(3)) / 2, float64(1+rng.Intn(3)) / 4}
+			o.Hard = o.Violations[1]
 		}
 		all[i] = Candidate{Key: Key{Phase: i / 97, Gen: i / 7 % 5, Island: i % 3, Slot: i}, Point: Point{Family: rng.Intn(nfam)}, Outcome: o}
 	}

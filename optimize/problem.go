@@ -38,6 +38,13 @@ type Outcome struct {
 	// compare (K. Deb, "An efficient constraint handling method for
 	// genetic algorithms", Comput. Methods Appl. Mech. Engrg. 186, 2000).
 	Violations []float64
+	// Hard is the part of the total violation owed to hard constraints:
+	// those a reported candidate must meet even while it misses the rest
+	// (a circuit that cannot be built). Among infeasible outcomes, one
+	// without a hard violation is preferred to one with, whatever their
+	// totals, by each family's best and the nearest misses (better);
+	// Deb's rules in the search's selection use the total alone.
+	Hard float64
 	// Failed marks a point the problem could not evaluate (a circuit with
 	// no DC solution); it ranks below every evaluated point.
 	Failed bool

@@ -106,8 +106,9 @@ type Result struct {
 	// Front is the non-dominated set of the feasible candidates, sorted
 	// by Score.
 	Front []Candidate
-	// Nearest are the least-violating infeasible candidates (at most
-	// NearestKept), least violation first.
+	// Nearest are the nearest infeasible candidates (at most
+	// NearestKept), nearest first: those without a hard violation
+	// (Outcome.Hard) before the others, each by least violation.
 	Nearest []Candidate
 	// BestOf holds, for every family, its best feasible candidate by
 	// Score or, if none is feasible, its least-violating one; a family

@@ -30,7 +30,8 @@ func Score(obj, scales, weights []float64) float64 {
 }
 
 // better reports whether a is preferable to b under Deb's feasibility
-// rules, feasible ones compared by Score.
+// rules, feasible ones compared by Score, infeasible ones without a hard
+// violation (Outcome.Hard) before those with one, then by violation.
 func better(a, b Outcome, scales []float64) bool {
 	af, bf := a.Feasible(), b.Feasible()
 	switch {
@@ -39,7 +40,16 @@ func better(a, b Outcome, scales []float64) bool {
 	case !af && bf:
 		return false
 	case !af:
-		return a.Violation() < b.Violation()
+		return nearer(a, b)
 	}
 	return Score(a.Objectives, scales, nil) < Score(b.Objectives, scales, nil)
+}
+
+// nearer reports whether infeasible a is a nearer miss than b: without a
+// hard violation where b has one, or else of smaller total violation.
+func nearer(a, b Outcome) bool {
+	if ah, bh := a.Hard > 0, b.Hard > 0; ah != bh {
+		return !ah
+	}
+	return a.Violation() < b.Violation()
 }

@@ -112,7 +112,7 @@ func inlineSVG(svg []byte) template.HTML {
 }
 
 // candidateStatus says where a candidate stands: "meets the spec, on the
-// front", "meets the spec" or "nearest miss".
+// front", "meets the spec" or missStatus's words.
 func candidateStatus(c *sizing.Candidate) string {
 	switch {
 	case c.Feasible && c.Pareto:
@@ -120,7 +120,18 @@ func candidateStatus(c *sizing.Candidate) string {
 	case c.Feasible:
 		return "meets the spec"
 	}
-	return "nearest miss"
+	return missStatus(c)
+}
+
+// missStatus names an infeasible candidate: "nearest miss" when it can be
+// built and misses targets only, "not buildable" when it fails an
+// always-on check (its family's search found no buildable sizing nearer
+// the spec: the nearest misses prefer buildable ones).
+func missStatus(c *sizing.Candidate) string {
+	if c.Buildable() {
+		return "nearest miss"
+	}
+	return "not buildable"
 }
 
 // candidateView writes a candidate for the page, with its parameters
@@ -345,7 +356,7 @@ func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG []byte) ([
 			pf.Cand = view(f.Best)
 			pf.Status = "feasible"
 			if !f.Best.Feasible {
-				pf.Status = "nearest miss"
+				pf.Status = missStatus(f.Best)
 			}
 		}
 		d.Families = append(d.Families, pf)

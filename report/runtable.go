@@ -57,7 +57,7 @@ func RunTable(w io.Writer, res *sizing.Result, dir string) error {
 		}
 		status := "feasible"
 		if !c.Feasible {
-			status = "nearest miss"
+			status = missStatus(c)
 		}
 		t.add(append(append([]string{rank, f.Topology, status}, figureCells(figs, c.Metrics)...), c.ID)...)
 		if !c.Feasible {

@@ -189,15 +189,18 @@ func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 	}
 	vs := p.Checks(m, fs, p.targets)
 	amounts := make([]float64, len(vs))
+	hard := 0.0
 	for i, v := range vs {
 		amounts[i] = v.Amount
 		if e, ok := objectives.Lookup(v.Target); ok && e.Kind == objectives.Constraint {
 			amounts[i] *= CheckWeight
+			hard += amounts[i]
 		}
 	}
 	return optimize.Outcome{
 		Objectives: p.Spec.Axes(m),
 		Violations: amounts,
+		Hard:       hard,
 		Payload:    &Outcome{Metrics: m, Violations: vs, Coarse: coarse},
 	}
 }

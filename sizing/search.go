@@ -29,6 +29,18 @@ type Candidate struct {
 	Key        optimize.Key // which evaluation of the search found it
 }
 
+// Buildable reports whether the candidate passes every always-on check
+// (geometry rules, saturation margins, level-1 validity), whatever
+// targets it misses.
+func (c *Candidate) Buildable() bool {
+	for _, v := range c.Violations {
+		if e, ok := objectives.Lookup(v.Target); ok && e.Kind == objectives.Constraint && v.Amount > 0 {
+			return false
+		}
+	}
+	return true
+}
+
 // FamilyRank is one family's place in a search.
 type FamilyRank struct {
 	Topology    string
