@@ -358,9 +358,9 @@ func CheckPhysical(st *topologies.Stage, res *sim.Result) error {
 	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
 	var iMax, gMax float64
 	for i := range res.VCM {
-		iMax = math.Max(iMax, math.Abs(in[i])+math.Abs(ip[i]))
+		iMax = max(iMax, math.Abs(in[i])+math.Abs(ip[i]))
 		if res.GM != nil {
-			gMax = math.Max(gMax, math.Abs(res.GM[i]))
+			gMax = max(gMax, math.Abs(res.GM[i]))
 		}
 	}
 	series := []struct {

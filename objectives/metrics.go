@@ -120,11 +120,11 @@ func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 	for i, g := range res.GM {
 		// A gm below zero here lies within the solver's tolerance of it
 		// (CheckPhysical refuses a sweep with one beyond): it is zero.
-		g = math.Max(g, 0)
-		m.GMMin = math.Min(m.GMMin, g)
-		m.GMMax = math.Max(m.GMMax, g)
+		g = max(g, 0)
+		m.GMMin = min(m.GMMin, g)
+		m.GMMax = max(m.GMMax, g)
 		if tot := in[i] + ip[i]; tot > 0 {
-			m.GMOverIDMin = math.Min(m.GMOverIDMin, 2*g/tot)
+			m.GMOverIDMin = min(m.GMOverIDMin, 2*g/tot)
 		}
 	}
 	if math.IsInf(m.GMOverIDMin, 1) {
@@ -134,7 +134,7 @@ func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 	// Power: the stage's own supply current at its worst point, plus the
 	// summing stage's constant bias.
 	for _, p := range res.Probe[c.ProbeIndex(topologies.ProbePower)] {
-		m.Power = math.Max(m.Power, p)
+		m.Power = max(m.Power, p)
 	}
 	m.Power += st.Supply * summingCurrent(st, res)
 	for _, t := range c.Mosfets {
@@ -264,7 +264,7 @@ func summingCurrent(st *topologies.Stage, res *sim.Result) float64 {
 	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
 	var inMax, ipMax float64
 	for i := range in {
-		inMax, ipMax = math.Max(inMax, in[i]), math.Max(ipMax, ip[i])
+		inMax, ipMax = max(inMax, in[i]), max(ipMax, ip[i])
 	}
 	return topologies.SummingCurrent(inMax, ipMax)
 }

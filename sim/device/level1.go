@@ -269,7 +269,7 @@ func (m *level1Inst) Op(vd, vg, vs, vb float64) OpPoint {
 	}
 	op := OpPoint{
 		ID: id, VGS: vg - vs, VDS: vd - vs, VBS: vb - vs,
-		VTH: s * von, VDSAT: s * math.Max(vgst, 0),
+		VTH: s * von, VDSAT: s * max(vgst, 0),
 		GM: gm, GDS: gds, GMB: gmbs,
 	}
 	switch {
@@ -295,7 +295,7 @@ func (m *level1Inst) LargeSignal(vd, vg, vs, vb float64) LargeSignal {
 		vgs, vbs, vds, sign = vgs-vds, vbs-vds, -vds, -s
 	}
 	von, vgst := m.threshold(vgs, vbs)
-	out := LargeSignal{VTH: s * von, VDSAT: s * math.Max(vgst, 0), Region: Off}
+	out := LargeSignal{VTH: s * von, VDSAT: s * max(vgst, 0), Region: Off}
 	if vgst <= 0 {
 		return out
 	}
