@@ -81,11 +81,12 @@ func Build(d *Design) (*topologies.Stage, error) {
 	return st, nil
 }
 
-// swept is a design built, swept and checked.
+// swept is a design built, swept, measured and checked.
 type swept struct {
 	st       *topologies.Stage
 	s        *sim.Solver
 	res      *sim.Result
+	metrics  Metrics
 	findings []Finding
 }
 
@@ -112,8 +113,20 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 	if err := CheckPhysical(st, res); err != nil {
 		return nil, err
 	}
-	fs := Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK)
-	return &swept{st: st, s: s, res: res, findings: fs}, nil
+	sw := &swept{st: st, s: s, res: res}
+	if res.Len() < parallelPoints {
+		sw.metrics = Measure(st, res)
+		sw.findings = Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK)
+		return sw, nil
+	}
+	// A long sweep is measured while its devices are checked: Measure
+	// reads the result only, and takes a core the checks leave idle at
+	// their end.
+	var wg sync.WaitGroup
+	wg.Go(func() { sw.metrics = Measure(st, res) })
+	sw.findings = Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK)
+	wg.Wait()
+	return sw, nil
 }
 
 // SolverCache keeps compiled solvers by family, each with the buffers
@@ -228,7 +241,7 @@ func MeasureCached(d *Design, cache *SolverCache) (Metrics, []Finding, error) {
 	if err != nil {
 		return Metrics{}, nil, err
 	}
-	return Measure(sw.st, sw.res), sw.findings, nil
+	return sw.metrics, sw.findings, nil
 }
 
 // Evaluate builds, sweeps, measures and checks a design.
@@ -238,7 +251,7 @@ func Evaluate(d *Design) (*Evaluation, error) {
 		return nil, err
 	}
 	st, s, res := sw.st, sw.s, sw.res
-	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: Measure(st, res), Findings: sw.findings}
+	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: sw.metrics, Findings: sw.findings}
 	ev.SummingCurrent = summingCurrent(st, res)
 	mid := res.Len() / 2
 	ev.MidVCM = res.VCM[mid]

@@ -223,13 +223,13 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 	// A stage with one pair only (n-pair, p-pair) has no other pair to
 	// take over: where its pair turns off at the rail the gm targets
 	// judge it, and its devices are exempt as a device of neither pair.
-	lone := map[topologies.Side]bool{topologies.NSide: !(slices.Max(ip) > 0), topologies.PSide: !(slices.Max(in) > 0)}
+	loneN, loneP := !(slices.Max(ip) > 0), !(slices.Max(in) > 0)
 	minor := func(side topologies.Side, i int) bool {
-		mine, tot := in[i], in[i]+ip[i]
+		mine, tot, lone := in[i], in[i]+ip[i], loneN
 		if side == topologies.PSide {
-			mine = ip[i]
+			mine, lone = ip[i], loneP
 		}
-		return side == topologies.NoSide || lone[side] || !(tot > 0) || mine <= 0.5*tot
+		return side == topologies.NoSide || lone || !(tot > 0) || mine <= 0.5*tot
 	}
 	want := Checked(st, kind)
 	volts := &scr.volts
@@ -238,13 +238,18 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 	check := func(ks <-chan int, scr *assessScratch) {
 		work, low := scr.flags(n)
 		for k := range ks {
-			per[k] = assessDevice(st.Devices[k], k, s, volts, res, &scr.col, work, low, minor, kind, margin, ut)
+			s.DeviceColumn(volts, k, &scr.col)
+			per[k] = assessDevice(st.Devices[k], &scr.col, res, work, low, minor, kind, margin, ut)
 		}
 	}
+	// The devices that move first, the frozen ones (one model evaluation
+	// each) after them: parallel workers then end together.
 	next := make(chan int, len(st.Devices))
-	for k := range st.Devices {
-		if want[k] {
-			next <- k
+	for _, frozen := range []bool{false, true} {
+		for k := range st.Devices {
+			if want[k] && s.Frozen(k) == frozen {
+				next <- k
+			}
 		}
 	}
 	close(next)
@@ -271,13 +276,13 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 // worker that swept them, an eval's long sweep on every core.
 const parallelPoints = 1000
 
-// assessDevice makes the saturation and validity checks of device k of a
-// stage over a sweep, with col, work and low as its scratch space.
-func assessDevice(dev topologies.Device, k int, s *sim.Solver, volts *sim.Voltages, res *sim.Result, col *sim.OpColumn, work, low []bool,
+// assessDevice makes the saturation and validity checks of one device
+// over a sweep from its operating points col, with work and low as its
+// scratch space.
+func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, work, low []bool,
 	minor func(topologies.Side, int) bool, kind string, margin, ut float64) []Finding {
 	var out []Finding
 	n := res.Len()
-	s.DeviceColumn(volts, k, col)
 	imax := 0.0
 	for _, id := range col.ID {
 		if a := math.Abs(id); a > imax {

@@ -24,34 +24,80 @@ func (c *OpColumn) At(i int) device.OpPoint {
 	return op
 }
 
-// Voltages holds every variable of a swept result at every point — the
-// unknowns the result stores and the fixed nodes (rails, inputs)
-// computed from the point's common mode — variable by variable, so that
-// any number of transistors' operating points are read from it without
-// working the fixed nodes out again for each, each transistor reading
-// four contiguous columns.
+// Voltages gives every variable of a swept result at every point — the
+// unknowns the result stores, read in place, and the fixed nodes (rails,
+// inputs) worked out from the point's common mode once for all
+// transistors: a fixed node that the sweep does not move is one value,
+// one that it moves a column of its own.
 type Voltages struct {
 	points int
-	v      []float64 // variable j at point i is v[j*points+i]
-	row    []float64
+	x      []float64 // the result's unknowns, point by point (Result.X)
+	static []float64 // every variable's value at the first point
+	moving []float64 // the moving fixed nodes, column after column
+	at     []int     // variable → its column in moving, or −1
+}
+
+// column is where one variable's values are: data[off+i·stride] is its
+// value at point i.
+type column struct {
+	data        []float64
+	off, stride int
+}
+
+// column returns variable j's values, u being the solver's unknowns.
+func (v *Voltages) column(j, u int) column {
+	switch {
+	case j < u:
+		return column{v.x, j, u}
+	case v.at[j] >= 0:
+		return column{v.moving, v.at[j] * v.points, 1}
+	}
+	return column{v.static, j, 0}
 }
 
 // Voltages fills into with the variables of res, a result of this
 // solver's last sweep (before the solver is rebound to another circuit).
+// into reads res's unknowns in place: res must not change while into is
+// in use.
 func (s *Solver) Voltages(res *Result, into *Voltages) {
-	n, u, N := res.Len(), res.Unknowns, s.sys.N
-	into.points = n
-	into.v = grow(into.v, n*N)
-	into.row = grow(into.row, N)
-	row := into.row
-	for i := 0; i < n; i++ {
-		copy(row[:u], res.X[i*u:(i+1)*u])
-		s.setFixed(row, res.VCM[i], res.VID, 1)
-		for j, x := range row {
-			into.v[j*n+i] = x
+	n, N := res.Len(), s.sys.N
+	into.points, into.x = n, res.X
+	into.static = grow(into.static, N)
+	if cap(into.at) < N {
+		into.at = make([]int, N)
+	}
+	into.at = into.at[:N]
+	for j := range into.at {
+		into.at[j] = -1
+	}
+	fx := s.sys.fixed
+	for c, k := range s.sys.fixedMoving {
+		into.at[fx[k].idx] = c
+	}
+	into.moving = grow(into.moving, n*len(s.sys.fixedMoving))
+	if n == 0 {
+		return
+	}
+	row := into.static
+	s.setFixed(row, res.VCM[0], res.VID, 1)
+	for i, vcm := range res.VCM {
+		// The moving nodes in order, each after its parent, as setMoving
+		// sets them: bitwise the values setFixed gives at this point.
+		for c, k := range s.sys.fixedMoving {
+			f := &fx[k]
+			parent := row[fx[f.parent].idx]
+			if p := into.at[fx[f.parent].idx]; p >= 0 {
+				parent = into.moving[p*n+i]
+			}
+			into.moving[c*n+i] = parent + f.sign*f.drive.At(vcm, res.VID)
 		}
 	}
 }
+
+// Frozen reports whether transistor k's four terminals hold still during
+// a sweep's continuation (a bias branch): its column costs one model
+// evaluation, however long the sweep.
+func (s *Solver) Frozen(k int) bool { return s.sys.mos[k].frozen }
 
 // DeviceColumn fills col with transistor k's operating point (in the
 // circuit's order of transistors) at every point of the sweep whose
@@ -68,18 +114,23 @@ func (s *Solver) DeviceColumn(v *Voltages, k int, col *OpColumn) {
 	}
 	col.Off = col.Off[:n]
 	m := s.sys.mos[k]
-	vd, vg, vs, vb := v.v[m.d*n:(m.d+1)*n], v.v[m.g*n:(m.g+1)*n], v.v[m.s*n:(m.s+1)*n], v.v[m.b*n:(m.b+1)*n]
+	u := s.sys.n
+	d, g, src, b := v.column(m.d, u), v.column(m.g, u), v.column(m.s, u), v.column(m.b, u)
+	id, vgs, vds, vth, vdsat, off := col.ID, col.VGS, col.VDS, col.VTH, col.VDSAT, col.Off
 	var ls device.LargeSignal
-	last := [4]float64{math.NaN()}
+	ld, lg, lsrc, lb := math.NaN(), 0.0, 0.0, 0.0
+	jd, jg, js, jb := d.off, g.off, src.off, b.off
 	for i := range n {
+		vd, vg, vs, vb := d.data[jd], g.data[jg], src.data[js], b.data[jb]
+		jd, jg, js, jb = jd+d.stride, jg+g.stride, js+src.stride, jb+b.stride
 		// A transistor whose terminals did not move since the last point
 		// (a bias branch, frozen during the continuation) has the same
 		// operating point: LargeSignal is a function of the four voltages.
-		at := [4]float64{vd[i], vg[i], vs[i], vb[i]}
-		if at != last {
-			ls, last = m.inst.LargeSignal(at[0], at[1], at[2], at[3]), at
+		if vd != ld || vg != lg || vs != lsrc || vb != lb {
+			ls = m.inst.LargeSignal(vd, vg, vs, vb)
+			ld, lg, lsrc, lb = vd, vg, vs, vb
 		}
-		col.ID[i], col.VGS[i], col.VDS[i], col.VTH[i], col.VDSAT[i] = ls.ID, at[1]-at[2], at[0]-at[2], ls.VTH, ls.VDSAT
-		col.Off[i] = ls.Region == device.Off
+		id[i], vgs[i], vds[i], vth[i], vdsat[i] = ls.ID, vg-vs, vd-vs, ls.VTH, ls.VDSAT
+		off[i] = ls.Region == device.Off
 	}
 }

@@ -245,6 +245,11 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 // a sweep into segments, and roughly their length.
 const SegmentPoints = 8192
 
+// segmentLength is the length of the segments SweepParallel solves,
+// shorter than SegmentPoints so that the workers, taking the next
+// segment as they finish one, end together whatever the segments cost.
+const segmentLength = 2048
+
 // SweepParallel solves the same sweep as Sweep, split into segments of
 // about SegmentPoints points solved concurrently on up to workers
 // goroutines (at least one). Every segment starts from the continuation
@@ -258,10 +263,10 @@ func (s *Solver) SweepParallel(sp SweepSpec, res *Result, workers int) error {
 	if err != nil {
 		return err
 	}
-	segs := npts / SegmentPoints
-	if segs <= 1 {
+	if npts/SegmentPoints <= 1 {
 		return s.sweepRange(sp, npts, 0, npts, res, nil, nil)
 	}
+	segs := npts / segmentLength
 	workers = max(workers, 1)
 	n := s.sys.n
 	bounds := make([]int, segs+1)
@@ -291,17 +296,20 @@ func (s *Solver) SweepParallel(sp SweepSpec, res *Result, workers int) error {
 	}
 	errs := make([]error, segs)
 	iters := make([]int, workers)
+	next := make(chan int, segs)
+	for k := range segs {
+		next <- k
+	}
+	close(next)
 	var wg sync.WaitGroup
-	for wk := 0; wk < workers; wk++ {
-		wg.Add(1)
-		go func(wk int) {
-			defer wg.Done()
+	for wk := range workers {
+		wg.Go(func() {
 			c := s.clone()
-			for k := wk; k < segs; k += workers {
+			for k := range next {
 				errs[k] = c.sweepRange(sp, npts, bounds[k], bounds[k+1], res, starts[k], nil)
 			}
 			iters[wk] = c.iterations
-		}(wk)
+		})
 	}
 	wg.Wait()
 	for _, it := range iters {
