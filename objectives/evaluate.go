@@ -205,7 +205,7 @@ func MeasureStaged(d *Design, cache *SolverCache, coarse float64, reject func(Me
 	}
 	coarseRes := res
 	res = &b.fine
-	if n, _ := d.Sweep.Points(); n > sim.SegmentPoints {
+	if n, _ := d.Sweep.Points(); n >= 2*sim.SegmentPoints { // SweepParallel splits it
 		err = s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0))
 	} else {
 		err = s.SweepFrom(d.Sweep, res, coarseRes)

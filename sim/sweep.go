@@ -241,8 +241,8 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 	return nil
 }
 
-// SegmentPoints is the number of points above which SweepParallel splits
-// a sweep into segments, and roughly their length.
+// SegmentPoints is half the number of points from which SweepParallel
+// splits a sweep into segments.
 const SegmentPoints = 8192
 
 // segmentLength is the length of the segments SweepParallel solves,
@@ -250,10 +250,11 @@ const SegmentPoints = 8192
 // segment as they finish one, end together whatever the segments cost.
 const segmentLength = 2048
 
-// SweepParallel solves the same sweep as Sweep, split into segments of
-// about SegmentPoints points solved concurrently on up to workers
-// goroutines (at least one). Every segment starts from the continuation
-// solution at its first point, found by stepping sequentially from the
+// SweepParallel solves the same sweep as Sweep; one of at least
+// 2·SegmentPoints points it splits into segments of about segmentLength
+// points, solved concurrently on up to workers goroutines (at least one),
+// each taking the next segment as it finishes one. Every segment starts
+// from the continuation solution at its first point, found by stepping sequentially from the
 // start of the sweep from one segment start to the next, so each follows
 // the same branch of solutions a single sweep would. The number of
 // segments depends only on the number of points: the result is the same
