@@ -296,38 +296,39 @@ func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, wor
 		work[i] = !col.Off[i] && math.Abs(col.ID[i]) >= WorkingFraction*imax
 		low[i] = math.Abs(col.VDS[i])-math.Abs(col.VDSAT[i]) < margin
 	}
+	vcm := res.VCM[:n]
 	if dev.Duty == topologies.Saturated {
 		exempt := railTurnOff(n, func(i int) bool { return low[i] }, func(i int) bool { return work[i] },
 			func(i int) bool { return minor(dev.Side, i) })
-		f := spanFinding(CheckSaturation, dev, res.VCM, func(i int) (bool, float64, float64, float64) {
+		f := span{Finding: Finding{Check: CheckSaturation, Device: dev.Name, Role: dev.Role}}
+		for i, x := range vcm {
 			if !work[i] || !low[i] || exempt[i] {
-				return false, 0, 0, 0
+				continue
 			}
 			vds, vdsat := math.Abs(col.VDS[i]), math.Abs(col.VDSAT[i])
 			need := vdsat + margin
-			return true, vds - vdsat, margin, (need - vds) / need
-		})
-		if f != nil {
+			f.add(x, vds-vdsat, margin, (need-vds)/need)
+		}
+		if f.Points > 0 {
 			f.What = fmt.Sprintf("|V_DS| − |V_DSAT| = %s, want at least the margin %s", short(f.Value, units.Volt), short(f.Limit, units.Volt))
-			out = append(out, *f)
+			out = append(out, f.Finding)
 		}
 	}
 	if kind == "level1" {
 		lim := 4 * ut
-		f := spanFinding(CheckValidity, dev, res.VCM, func(i int) (bool, float64, float64, float64) {
+		f := span{Finding: Finding{Check: CheckValidity, Device: dev.Name, Role: dev.Role}}
+		for i, x := range vcm {
 			if !work[i] {
-				return false, 0, 0, 0
+				continue
 			}
-			ov := overdrive(device.OpPoint{VGS: col.VGS[i], VTH: col.VTH[i]})
-			if ov >= lim {
-				return false, 0, 0, 0
+			if ov := overdrive(device.OpPoint{VGS: col.VGS[i], VTH: col.VTH[i]}); ov < lim {
+				f.add(x, ov, lim, math.Min((lim-ov)/lim, MissingAmount))
 			}
-			return true, ov, lim, math.Min((lim-ov)/lim, MissingAmount)
-		})
-		if f != nil {
+		}
+		if f.Points > 0 {
 			f.What = fmt.Sprintf("overdrive %s below 4·U_T = %s (gm/I_D above 1/(2·U_T)): the square law does not describe it",
 				short(f.Value, units.Volt), short(f.Limit, units.Volt))
-			out = append(out, *f)
+			out = append(out, f.Finding)
 		}
 	}
 	return out
@@ -377,26 +378,22 @@ func railTurnOff(n int, short, working, minor func(int) bool) []bool {
 	return exempt
 }
 
-// spanFinding gathers the failing points of one device and one check:
-// fail(i) reports whether point i fails, with the value, limit and amount
-// there. It returns nil when no point fails.
-func spanFinding(check string, dev topologies.Device, vcm []float64, fail func(i int) (bool, float64, float64, float64)) *Finding {
-	var f *Finding
-	for i := range vcm {
-		bad, val, lim, amt := fail(i)
-		if !bad {
-			continue
-		}
-		if f == nil {
-			f = &Finding{Check: check, Device: dev.Name, Role: dev.Role, From: vcm[i]}
-		}
-		f.Points++
-		f.To = vcm[i]
-		if amt > f.Amount {
-			f.Amount, f.Value, f.Limit, f.VCM = amt, val, lim, vcm[i]
-		}
+// span gathers the failing points of one device and one check into its
+// Finding, point by point in the order of the sweep.
+type span struct{ Finding }
+
+// add counts a failing point at common mode vcm with the value, limit
+// and amount there; the worst amount gives the Finding's VCM, Value and
+// Limit.
+func (f *span) add(vcm, val, lim, amt float64) {
+	if f.Points == 0 {
+		f.From = vcm
 	}
-	return f
+	f.Points++
+	f.To = vcm
+	if amt > f.Amount {
+		f.Amount, f.Value, f.Limit, f.VCM = amt, val, lim, vcm
+	}
 }
 
 // CheckViolations sums findings into one violation per always-on check,

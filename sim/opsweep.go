@@ -116,21 +116,25 @@ func (s *Solver) DeviceColumn(v *Voltages, k int, col *OpColumn) {
 	m := s.sys.mos[k]
 	u := s.sys.n
 	d, g, src, b := v.column(m.d, u), v.column(m.g, u), v.column(m.s, u), v.column(m.b, u)
-	id, vgs, vds, vth, vdsat, off := col.ID, col.VGS, col.VDS, col.VTH, col.VDSAT, col.Off
-	var ls device.LargeSignal
+	id := col.ID[:n]
+	vgs, vds, vth, vdsat, off := col.VGS[:len(id)], col.VDS[:len(id)], col.VTH[:len(id)], col.VDSAT[:len(id)], col.Off[:len(id)]
+	// The last operating point, as scalars (a LargeSignal kept across
+	// iterations costs a store-to-load stall at every point).
+	var lid, lvth, lvdsat float64
+	var loff bool
 	ld, lg, lsrc, lb := math.NaN(), 0.0, 0.0, 0.0
 	jd, jg, js, jb := d.off, g.off, src.off, b.off
-	for i := range n {
+	for i := range id {
 		vd, vg, vs, vb := d.data[jd], g.data[jg], src.data[js], b.data[jb]
 		jd, jg, js, jb = jd+d.stride, jg+g.stride, js+src.stride, jb+b.stride
 		// A transistor whose terminals did not move since the last point
 		// (a bias branch, frozen during the continuation) has the same
 		// operating point: LargeSignal is a function of the four voltages.
 		if vd != ld || vg != lg || vs != lsrc || vb != lb {
-			ls = m.inst.LargeSignal(vd, vg, vs, vb)
+			ls := m.inst.LargeSignal(vd, vg, vs, vb)
+			lid, lvth, lvdsat, loff = ls.ID, ls.VTH, ls.VDSAT, ls.Region == device.Off
 			ld, lg, lsrc, lb = vd, vg, vs, vb
 		}
-		id[i], vgs[i], vds[i], vth[i], vdsat[i] = ls.ID, vg-vs, vd-vs, ls.VTH, ls.VDSAT
-		off[i] = ls.Region == device.Off
+		id[i], vgs[i], vds[i], vth[i], vdsat[i], off[i] = lid, vg-vs, vd-vs, lvth, lvdsat, loff
 	}
 }
