@@ -45,6 +45,23 @@ func better(a, b Outcome, scales []float64) bool {
 	return Score(a.Objectives, scales, nil) < Score(b.Objectives, scales, nil)
 }
 
+// Prefer reports whether candidate a goes before b in the order that
+// chooses a family's best (Result.BestOf): a failed evaluation last, then
+// Deb's rules as the archive applies them (feasible by Score, infeasible
+// ones without a hard violation first, then by violation), ties to the
+// smaller key.
+func Prefer(a, b Candidate, scales []float64) bool {
+	switch {
+	case a.Outcome.Failed != b.Outcome.Failed:
+		return !a.Outcome.Failed
+	case better(a.Outcome, b.Outcome, scales):
+		return true
+	case better(b.Outcome, a.Outcome, scales):
+		return false
+	}
+	return a.Key.less(b.Key)
+}
+
 // nearer reports whether infeasible a is a nearer miss than b: without a
 // hard violation where b has one, or else of smaller total violation.
 func nearer(a, b Outcome) bool {

@@ -258,6 +258,10 @@ type familyJSON struct {
 	Feasible    bool    `json:"feasible"`
 	Best        *string `json:"best"`
 	Evaluations int     `json:"evaluations"`
+	// Blocked lists, for a family of which no buildable sizing was found,
+	// the always-on checks' findings of its least violating candidate
+	// (null otherwise).
+	Blocked []objectives.Finding `json:"blocked"`
 }
 
 type candidateJSON struct {
@@ -350,6 +354,9 @@ func Summary(res *sizing.Result, opt RunOptions) ([]byte, error) {
 		if f.Best != nil {
 			id := f.Best.ID
 			fj.Best = &id
+		}
+		if f.Blocked != nil && f.Blocked.Eval != nil {
+			fj.Blocked = append([]objectives.Finding{}, f.Blocked.Eval.Findings...)
 		}
 		s.Families = append(s.Families, fj)
 	}
@@ -480,6 +487,26 @@ func CandidateMisses(spec *objectives.Spec, c *sizing.Candidate) []string {
 		out = append(out, s)
 	}
 	return out
+}
+
+// BlockedText says why a family has no reported candidate although it
+// evaluated: "no buildable sizing in 2871 evaluations; the nearest fails
+// saturation: |V_DS| − |V_DSAT| 18 mV, want ≥ 50 mV (M6, nmos tail, at
+// vcm 860 mV)", the always-on checks its least violating candidate fails
+// (CandidateMisses' words).
+func BlockedText(spec *objectives.Spec, f sizing.FamilyRank) string {
+	var checks []string
+	c := f.Blocked
+	for _, v := range Misses(c.Violations) {
+		if e, ok := objectives.Lookup(v.Target); ok && e.Kind == objectives.Constraint {
+			s := missText(spec, v)
+			if c.Eval != nil {
+				s += findingWhere(v, c.Eval.Findings)
+			}
+			checks = append(checks, s)
+		}
+	}
+	return fmt.Sprintf("no buildable sizing in %d evaluations; the nearest fails %s", f.Evaluations, strings.Join(checks, "; "))
 }
 
 // findingWhere says which finding a check's violation v comes from, " (M6,

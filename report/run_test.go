@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/csv"
 	"encoding/json"
+	"html/template"
 	"math"
 	"os"
 	"path/filepath"
@@ -486,5 +487,71 @@ func TestParetoFigureFarMiss(t *testing.T) {
 	}
 	if !strings.HasSuffix(fig.Subtitle, "; 1 off the chart") {
 		t.Errorf("subtitle %q does not count the candidate off the chart", fig.Subtitle)
+	}
+}
+
+// TestBlockedFamily: a family of which no buildable sizing was found
+// (sizing.FamilyRank.Blocked) has no candidate in the results table, the
+// page or summary.json: its row says "not buildable" with the check its
+// nearest fails, the device and the common mode, and summary.json lists
+// the findings under "blocked" (issue 8: no reported candidate breaks a
+// check).
+func TestBlockedFamily(t *testing.T) {
+	res := handResult(t, nil)
+	f := objectives.Finding{Check: objectives.CheckSaturation, Device: "M6", Role: "nmos tail", Points: 4,
+		From: 0.86, To: 0.89, VCM: 0.86, Value: 0.02, Limit: 0.05, Amount: 0.6, What: "short"}
+	blocked := &sizing.Candidate{Topology: "complementary", Eval: &objectives.Evaluation{Findings: []objectives.Finding{f}},
+		Violations: append(res.Spec.Targets.Check(res.Candidates[1].Metrics), objectives.CheckViolations([]objectives.Finding{f})...)}
+	res.Families = append(res.Families, sizing.FamilyRank{Topology: "complementary", Rank: 3, Blocked: blocked, Evaluations: 321})
+	var b bytes.Buffer
+	if err := RunTable(&b, res, "out"); err != nil {
+		t.Fatal(err)
+	}
+	want := "no buildable sizing in 321 evaluations; the nearest fails saturation: |V_DS| − |V_DSAT| 20 mV, want ≥ 50 mV (M6, nmos tail, at vcm 860 mV)"
+	lines := strings.Split(b.String(), "\n")
+	row := -1
+	for i, l := range lines {
+		if strings.Contains(l, " complementary ") {
+			row = i
+		}
+	}
+	if row < 0 || !strings.Contains(lines[row], "not buildable") || strings.Contains(lines[row], "c0") ||
+		strings.TrimSpace(lines[row+1]) != want {
+		t.Errorf("table:\n%s\nwant a complementary row 'not buildable' without an id, then %q", b.String(), want)
+	}
+	page, err := RunPage(res, RunOptions{}, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !strings.Contains(string(page), template.HTMLEscapeString(want)) {
+		t.Errorf("the page lacks %q", want)
+	}
+	for _, c := range res.Candidates { // hand-made: give them designs to write
+		c.Design = &objectives.Design{Topology: c.Topology, Conditions: res.Spec.Conditions}
+	}
+	data, err := Summary(res, RunOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc struct {
+		Families []struct {
+			Topology string `json:"topology"`
+			Best     *string
+			Blocked  []struct {
+				Check, Device string
+				VCM           float64
+			} `json:"blocked"`
+		} `json:"families"`
+	}
+	if err := json.Unmarshal(data, &doc); err != nil {
+		t.Fatal(err)
+	}
+	last := doc.Families[len(doc.Families)-1]
+	if last.Topology != "complementary" || last.Best != nil || len(last.Blocked) != 1 ||
+		last.Blocked[0].Check != "saturation" || last.Blocked[0].Device != "M6" || last.Blocked[0].VCM != 0.86 {
+		t.Errorf("summary's complementary entry %+v, want best null and the one finding", last)
+	}
+	if first := doc.Families[0]; first.Blocked != nil {
+		t.Errorf("a family with a best lists blocked findings %+v, want null", first.Blocked)
 	}
 }

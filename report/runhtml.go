@@ -56,7 +56,8 @@ type pageFamily struct {
 	Topology    string
 	Evaluations int
 	Status      string
-	Cand        *pageCandidate // nil: every evaluation failed
+	Cand        *pageCandidate // nil: not buildable (Blocked) or every evaluation failed
+	Blocked     string         // BlockedText, for a family of which no buildable sizing was found
 }
 
 // pageTerm is one entry of the glossary.
@@ -120,19 +121,13 @@ func candidateStatus(c *sizing.Candidate) string {
 	case c.Feasible:
 		return "meets the spec"
 	}
-	return missStatus(c)
+	return missStatus
 }
 
-// missStatus names an infeasible candidate: "nearest miss" when it can be
-// built and misses targets only, "not buildable" when it fails an
-// always-on check (its family's search found no buildable sizing nearer
-// the spec: the nearest misses prefer buildable ones).
-func missStatus(c *sizing.Candidate) string {
-	if c.Buildable() {
-		return "nearest miss"
-	}
-	return "not buildable"
-}
+// missStatus names an infeasible reported candidate: every one can be
+// built (a family of which no buildable sizing was found reports none,
+// sizing.FamilyRank.Blocked), so it misses targets only.
+const missStatus = "nearest miss"
 
 // candidateView writes a candidate for the page, with its parameters
 // and, when it was evaluated, its transistors at the middle of the sweep.
@@ -356,8 +351,10 @@ func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG []byte) ([
 			pf.Cand = view(f.Best)
 			pf.Status = "feasible"
 			if !f.Best.Feasible {
-				pf.Status = missStatus(f.Best)
+				pf.Status = missStatus
 			}
+		} else if f.Blocked != nil {
+			pf.Status, pf.Blocked = "not buildable", BlockedText(spec, f)
 		}
 		d.Families = append(d.Families, pf)
 	}
@@ -462,7 +459,8 @@ Files: <a href="{{.Best.Design}}"><code>{{.Best.Design}}</code></a>, <a href="{{
 <td><a href="#{{.Cand.ID}}">{{.Cand.ID}}</a></td><td class="nowrap">{{.Status}}</td>
 {{range .Cand.FamilyCells}}<td class="num">{{.}}</td>{{end}}<td class="num">{{.Evaluations}}</td></tr>
 {{if .Cand.Misses}}<tr class="misses"><td></td><td colspan="{{$.FamilySpan}}">misses {{range $i, $m := .Cand.Misses}}{{if $i}}; {{end}}{{$m}}{{end}}</td></tr>
-{{end}}{{else}}<tr class="infeasible"><td class="num">{{.Rank}}</td><td class="nowrap">{{.Topology}}</td><td>—</td><td class="nowrap">no result</td><td colspan="{{len $.FamilyHeads}}">every evaluation failed (no DC solution or an invalid sizing)</td><td class="num">{{.Evaluations}}</td></tr>
+{{end}}{{else if .Blocked}}<tr class="infeasible"><td class="num">{{.Rank}}</td><td class="nowrap">{{.Topology}}</td><td>—</td><td class="nowrap">{{.Status}}</td><td colspan="{{len $.FamilyHeads}}">{{.Blocked}}</td><td class="num">{{.Evaluations}}</td></tr>
+{{else}}<tr class="infeasible"><td class="num">{{.Rank}}</td><td class="nowrap">{{.Topology}}</td><td>—</td><td class="nowrap">no result</td><td colspan="{{len $.FamilyHeads}}">every evaluation failed (no DC solution or an invalid sizing)</td><td class="num">{{.Evaluations}}</td></tr>
 {{end}}{{end}}</table></div>
 
 {{with or .Best .Nearest}}<h2>{{if $.Feasible}}Best candidate{{else}}Nearest candidate{{end}}: {{.ID}} ({{.Topology}})</h2>

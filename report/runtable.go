@@ -50,6 +50,11 @@ func RunTable(w io.Writer, res *sizing.Result, dir string) error {
 	for _, f := range res.Families {
 		rank := strconv.Itoa(f.Rank)
 		c := f.Best
+		if c == nil && f.Blocked != nil {
+			t.add(append(append([]string{rank, f.Topology, "not buildable"}, none[1:]...), "—")...)
+			notes = append(notes, note{len(t.rows) - 1, BlockedText(spec, f)})
+			continue
+		}
 		if c == nil {
 			t.add(append(append([]string{rank, f.Topology}, none...), "—")...)
 			notes = append(notes, note{len(t.rows) - 1, "every evaluation failed (no DC solution or an invalid sizing)"})
@@ -57,7 +62,7 @@ func RunTable(w io.Writer, res *sizing.Result, dir string) error {
 		}
 		status := "feasible"
 		if !c.Feasible {
-			status = missStatus(c)
+			status = missStatus
 		}
 		t.add(append(append([]string{rank, f.Topology, status}, figureCells(figs, c.Metrics)...), c.ID)...)
 		if !c.Feasible {

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"runtime"
+	"slices"
 	"sort"
 	"sync"
 	"time"
@@ -43,19 +44,28 @@ func (c *Candidate) Buildable() bool {
 
 // FamilyRank is one family's place in a search.
 type FamilyRank struct {
-	Topology    string
-	Rank        int // 1 best
-	Feasible    bool
-	Best        *Candidate // nil when every candidate of the family failed
+	Topology string
+	Rank     int // 1 best
+	Feasible bool
+	// Best is nil when every candidate of the family failed, or when
+	// none could be built (Blocked).
+	Best *Candidate
+	// Blocked, when the search found no buildable sizing of the family,
+	// is its least violating candidate as evaluated again: not reported
+	// (no id, no files), only what stands in its way, its failing checks
+	// (Eval.Findings).
+	Blocked     *Candidate
 	Evaluations int
 }
 
 // Result is the outcome of a spec's search.
 type Result struct {
-	Spec       *objectives.Spec
-	Search     *optimize.Result
-	Families   []FamilyRank
-	Candidates []*Candidate // the front, then each family's best, then the nearest misses
+	Spec     *objectives.Spec
+	Search   *optimize.Result
+	Families []FamilyRank
+	// Candidates are the front, then each family's best, then the
+	// nearest misses: every one buildable (Buildable), as evaluated again.
+	Candidates []*Candidate
 	// Best is the candidate of lowest Score among those that meet every
 	// target with the guard band (Margin) to spare; nil when none does.
 	Best *Candidate
@@ -75,6 +85,56 @@ type Result struct {
 	// solution, or an unphysical one between the coarse sweep's samples),
 	// in report order.
 	Unreported []error
+	// Unbuildable counts the candidates worth reporting that were left
+	// out because, evaluated again, they fail an always-on check (a
+	// family's blocked best among them).
+	Unbuildable int
+}
+
+// reevaluate evaluates a candidate of the search again at the spec's step
+// through objectives.Evaluate, the path `eval` takes. An error leaves it
+// out, and is not fatal: a candidate judged on the coarse sweep can fail
+// the fine one (no DC solution, or an unphysical point between the coarse
+// samples), and one bad candidate must not lose the whole run.
+func reevaluate(prob *Problem, c optimize.Candidate, scales []float64) (*Candidate, error) {
+	d := prob.Design(c.Point)
+	ev, err := objectives.Evaluate(d)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", d.Topology, err)
+	}
+	vs := prob.Checks(ev.Metrics, ev.Findings, prob.Spec.Targets)
+	return &Candidate{
+		Topology: d.Topology, Design: d, Eval: ev, Metrics: ev.Metrics, Violations: vs,
+		Feasible: objectives.TotalViolation(vs) == 0,
+		Score:    optimize.Score(prob.Spec.Axes(ev.Metrics), scales, nil), Key: c.Key,
+	}, nil
+}
+
+// BestTries is how many more of a family's candidates, in the search's
+// order (optimize.Prefer), are evaluated again at the spec's step when
+// its best fails an always-on check there: our choice, a few
+// milliseconds each.
+const BestTries = 16
+
+// nextBuildable returns the first of family f's evaluated candidates
+// after the one of key tried, in the search's order, that passes every
+// always-on check when evaluated again at the spec's step, trying at
+// most BestTries of them that did not fail; a nil *Candidate when none
+// does.
+func nextBuildable(prob *Problem, res *optimize.Result, f int, tried optimize.Key, scales []float64) (optimize.Candidate, *Candidate) {
+	var cs []optimize.Candidate
+	for _, c := range res.All {
+		if c.Point.Family == f && !c.Outcome.Failed && c.Key != tried {
+			cs = append(cs, c)
+		}
+	}
+	sort.Slice(cs, func(i, j int) bool { return optimize.Prefer(cs[i], cs[j], scales) })
+	for _, c := range cs[:min(len(cs), BestTries)] {
+		if sc, err := reevaluate(prob, c, scales); err == nil && sc.Buildable() {
+			return c, sc
+		}
+	}
+	return optimize.Candidate{}, nil
 }
 
 // Options tune Search beyond the spec, whose search settings (budget,
@@ -211,25 +271,10 @@ func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimi
 		go func(it *item) {
 			defer wg.Done()
 			defer func() { <-sem }()
-			d := prob.Design(it.c.Point)
-			ev, err := objectives.Evaluate(d)
+			sc, err := reevaluate(prob, it.c, scales)
 			mu.Lock()
 			defer mu.Unlock()
-			if err != nil {
-				// Left out, not fatal: a candidate judged on the coarse
-				// sweep can fail the fine one (no DC solution, or an
-				// unphysical point between the coarse samples), and one
-				// bad candidate must not lose the whole run.
-				it.err = fmt.Errorf("%s: %w", d.Topology, err)
-				done++
-				return
-			}
-			vs := prob.Checks(ev.Metrics, ev.Findings, prob.Spec.Targets)
-			it.sc = &Candidate{
-				Topology: d.Topology, Design: d, Eval: ev, Metrics: ev.Metrics, Violations: vs,
-				Feasible: objectives.TotalViolation(vs) == 0,
-				Score:    optimize.Score(prob.Spec.Axes(ev.Metrics), scales, nil), Key: it.c.Key,
-			}
+			it.sc, it.err = sc, err
 			done++
 			if set.Progress != nil {
 				set.Progress(optimize.Progress{Evaluations: res.Evaluations, Budget: set.Evaluations,
@@ -239,11 +284,37 @@ func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimi
 		}(it)
 	}
 	wg.Wait()
-	for _, it := range items {
-		if it.err != nil {
-			out.Unreported = append(out.Unreported, it.err)
+	// A family's best judged on the coarse sweep may fail a check between
+	// its samples: the next of the family's candidates in the search's
+	// order take its place, the first buildable one at the spec's step.
+	for i, fb := range res.BestOf {
+		it := famItem[i]
+		if ctx.Err() != nil || it == nil || (it.sc != nil && it.sc.Buildable()) {
+			continue
 		}
-		if it.sc != nil {
+		c, sc := nextBuildable(prob, res, fb.Family, it.c.Key, scales)
+		if sc == nil {
+			continue
+		}
+		if old, ok := byKey[c.Key]; ok { // reported already, as a nearest miss
+			old.sc, famItem[i] = sc, old
+			continue
+		}
+		// In report order where the family's best stood.
+		nit := &item{c: c, sc: sc}
+		byKey[c.Key], famItem[i] = nit, nit
+		at := slices.Index(items, it) + 1
+		items = slices.Insert(items, at, nit)
+	}
+	// A candidate that cannot be built is no result, whatever it meets:
+	// left out, with a family's blocked best kept for what blocks it.
+	for _, it := range items {
+		switch {
+		case it.err != nil:
+			out.Unreported = append(out.Unreported, it.err)
+		case it.sc != nil && !it.sc.Buildable():
+			out.Unbuildable++
+		case it.sc != nil:
 			it.sc.Pareto = it.pareto
 			out.Candidates = append(out.Candidates, it.sc)
 		}
@@ -255,7 +326,11 @@ func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimi
 	for i, fb := range res.BestOf {
 		fr := FamilyRank{Topology: prob.Family(fb.Family).Name(), Evaluations: counts[fb.Family]}
 		if it := famItem[i]; it != nil && it.sc != nil {
-			fr.Best, fr.Feasible = it.sc, it.sc.Feasible
+			if it.sc.Buildable() {
+				fr.Best, fr.Feasible = it.sc, it.sc.Feasible
+			} else {
+				fr.Blocked = it.sc
+			}
 		}
 		out.Families = append(out.Families, fr)
 	}
@@ -265,12 +340,17 @@ func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimi
 		sc.ID = fmt.Sprintf("c%0*d", width, i+1)
 	}
 	// Families: feasible ones by their best score, then the others by
-	// their least violation, then those that never evaluated.
+	// their least violation, then those that could not be built by their
+	// least violation, then those that never evaluated.
 	sort.SliceStable(out.Families, func(i, j int) bool {
 		a, b := out.Families[i], out.Families[j]
 		switch {
 		case (a.Best != nil) != (b.Best != nil):
 			return a.Best != nil
+		case a.Best == nil && (a.Blocked != nil) != (b.Blocked != nil):
+			return a.Blocked != nil
+		case a.Best == nil && a.Blocked != nil:
+			return objectives.TotalViolation(a.Blocked.Violations) < objectives.TotalViolation(b.Blocked.Violations)
 		case a.Best == nil:
 			return false
 		case a.Feasible != b.Feasible:
@@ -290,8 +370,18 @@ func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimi
 		}
 	}
 	if out.Best == nil {
+		// The targets that bind: those the nearest reported candidate
+		// misses or, when none could be built, the nearest blocked one.
 		var nearest *Candidate
-		for _, sc := range out.Candidates {
+		pool := out.Candidates
+		if len(pool) == 0 {
+			for _, f := range out.Families {
+				if f.Blocked != nil {
+					pool = append(pool, f.Blocked)
+				}
+			}
+		}
+		for _, sc := range pool {
 			if nearest == nil || objectives.TotalViolation(sc.Violations) < objectives.TotalViolation(nearest.Violations) {
 				nearest = sc
 			}

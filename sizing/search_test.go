@@ -3,6 +3,7 @@ package sizing
 import (
 	"context"
 	"errors"
+	"math/rand/v2"
 	"path/filepath"
 	"sync"
 	"testing"
@@ -42,14 +43,90 @@ func TestSearchInterrupted(t *testing.T) {
 	if len(res.Candidates) == 0 {
 		t.Fatal("an interrupted search reports no candidate")
 	}
+	// Every evaluated family reports its best or, when none of its
+	// sizings could be built, the failing checks of the nearest; no
+	// reported candidate fails a check (issue 8).
 	for _, f := range res.Families {
-		if f.Evaluations > 0 && f.Best == nil {
-			t.Errorf("family %s was evaluated %d times but reports no best", f.Topology, f.Evaluations)
+		switch {
+		case f.Evaluations > 0 && f.Best == nil && f.Blocked == nil:
+			t.Errorf("family %s was evaluated %d times but reports no best and no blocked candidate", f.Topology, f.Evaluations)
+		case f.Blocked != nil && (f.Best != nil || f.Blocked.Buildable() || f.Blocked.Eval == nil || len(f.Blocked.Eval.Findings) == 0):
+			t.Errorf("family %s: blocked candidate %+v, best %v: want no best and a candidate with failing checks", f.Topology, f.Blocked, f.Best)
+		case f.Best != nil && !f.Best.Buildable():
+			t.Errorf("family %s: its best fails a check: %v", f.Topology, f.Best.Eval.Findings)
 		}
 	}
 	for _, c := range res.Candidates {
 		if c.Eval == nil || c.ID == "" {
 			t.Errorf("candidate %+v was not re-evaluated", c)
+		}
+		if !c.Buildable() || len(c.Eval.Findings) > 0 {
+			t.Errorf("reported candidate %s (%s) fails a check: %v", c.ID, c.Topology, c.Eval.Findings)
+		}
+	}
+}
+
+// TestGatherBlockedFamily: a family's best that fails an always-on check
+// when evaluated again at the spec's step is not reported: the next of
+// the family's candidates in the search's order that passes every check
+// takes its place and, when there is none, the family reports no
+// candidate, only the blocked one's findings (issue 8). The two sizings
+// are the first of a fixed-seed scan of current-switch's box on the
+// strain-gauge spec to fail a check and to pass them all.
+func TestGatherBlockedFamily(t *testing.T) {
+	spec, err := objectives.LoadSpec(filepath.Join("..", "testdata", "specs", "strain-gauge.yaml"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	spec.Topologies = []string{"current-switch"}
+	prob, err := NewProblem(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	scales := prob.Scales()
+	var bad, good []float64
+	r := rand.New(rand.NewPCG(8, 8))
+	for range 400 {
+		x := make([]float64, len(prob.ParamNames(0)))
+		for i := range x {
+			x[i] = r.Float64()
+		}
+		c, err := reevaluate(prob, optimize.Candidate{Point: optimize.Point{X: x}}, scales)
+		switch {
+		case err != nil:
+		case c.Buildable() && good == nil:
+			good = x
+		case !c.Buildable() && bad == nil:
+			bad = x
+		}
+	}
+	if bad == nil || good == nil {
+		t.Fatalf("400 random sizings: none fails a check (%v) or none passes them all (%v)", bad == nil, good == nil)
+	}
+	// The failing one looks better to the search (a feasible outcome),
+	// the other worse.
+	first := optimize.Candidate{Key: optimize.Key{Slot: 0}, Point: optimize.Point{X: bad}, Outcome: optimize.Outcome{Objectives: []float64{0, 0, 0}}}
+	second := optimize.Candidate{Key: optimize.Key{Slot: 1}, Point: optimize.Point{X: good}, Outcome: optimize.Outcome{Objectives: []float64{0, 0, 0}, Violations: []float64{1}}}
+	for _, tc := range []struct {
+		name    string
+		all     []optimize.Candidate
+		blocked bool
+	}{{"another candidate passes", []optimize.Candidate{first, second}, false}, {"none passes", []optimize.Candidate{first}, true}} {
+		res := &optimize.Result{All: tc.all, Nearest: []optimize.Candidate{first},
+			BestOf: []optimize.FamilyBest{{Candidate: first, OK: true}}}
+		out, err := gather(context.Background(), prob, res, optimize.Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		f := out.Families[0]
+		if tc.blocked {
+			if f.Best != nil || f.Blocked == nil || f.Blocked.Buildable() || len(out.Candidates) != 0 || out.Unbuildable != 1 {
+				t.Errorf("%s: best %v, blocked %v, %d candidates, %d unbuildable: want only the blocked candidate", tc.name, f.Best, f.Blocked, len(out.Candidates), out.Unbuildable)
+			}
+			continue
+		}
+		if f.Best == nil || f.Best.Key != second.Key || f.Blocked != nil || len(out.Candidates) != 1 || out.Candidates[0] != f.Best {
+			t.Errorf("%s: best %v, blocked %v, %d candidates: want the buildable one as the family's best, alone", tc.name, f.Best, f.Blocked, len(out.Candidates))
 		}
 	}
 }
