@@ -283,20 +283,23 @@ func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, wor
 	minor func(topologies.Side, int) bool, kind string, margin, ut float64) []Finding {
 	var out []Finding
 	n := res.Len()
+	// One length for every column, so that the loops below check no
+	// bound.
+	vcm := res.VCM[:n]
+	id, off, vds, vdsat := col.ID[:len(vcm)], col.Off[:len(vcm)], col.VDS[:len(vcm)], col.VDSAT[:len(vcm)]
+	vgs, vth := col.VGS[:len(vcm)], col.VTH[:len(vcm)]
+	work, low = work[:len(vcm)], low[:len(vcm)]
 	imax := 0.0
-	for _, id := range col.ID {
-		if a := math.Abs(id); a > imax {
-			imax = a
-		}
+	for _, x := range id {
+		imax = max(imax, math.Abs(x))
 	}
 	if !(imax > 0) {
 		return nil
 	}
-	for i := range work {
-		work[i] = !col.Off[i] && math.Abs(col.ID[i]) >= WorkingFraction*imax
-		low[i] = math.Abs(col.VDS[i])-math.Abs(col.VDSAT[i]) < margin
+	for i := range vcm {
+		work[i] = !off[i] && math.Abs(id[i]) >= WorkingFraction*imax
+		low[i] = math.Abs(vds[i])-math.Abs(vdsat[i]) < margin
 	}
-	vcm := res.VCM[:n]
 	if dev.Duty == topologies.Saturated {
 		exempt := railTurnOff(n, func(i int) bool { return low[i] }, func(i int) bool { return work[i] },
 			func(i int) bool { return minor(dev.Side, i) })
@@ -305,9 +308,9 @@ func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, wor
 			if !work[i] || !low[i] || exempt[i] {
 				continue
 			}
-			vds, vdsat := math.Abs(col.VDS[i]), math.Abs(col.VDSAT[i])
-			need := vdsat + margin
-			f.add(x, vds-vdsat, margin, (need-vds)/need)
+			ds, dsat := math.Abs(vds[i]), math.Abs(vdsat[i])
+			need := dsat + margin
+			f.add(x, ds-dsat, margin, (need-ds)/need)
 		}
 		if f.Points > 0 {
 			f.What = fmt.Sprintf("|V_DS| − |V_DSAT| = %s, want at least the margin %s", short(f.Value, units.Volt), short(f.Limit, units.Volt))
@@ -321,7 +324,7 @@ func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, wor
 			if !work[i] {
 				continue
 			}
-			if ov := overdrive(device.OpPoint{VGS: col.VGS[i], VTH: col.VTH[i]}); ov < lim {
+			if ov := overdrive(device.OpPoint{VGS: vgs[i], VTH: vth[i]}); ov < lim {
 				f.add(x, ov, lim, math.Min((lim-ov)/lim, MissingAmount))
 			}
 		}
