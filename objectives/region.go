@@ -291,7 +291,9 @@ func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, wor
 	work, low = work[:len(vcm)], low[:len(vcm)]
 	imax := 0.0
 	for _, x := range id {
-		imax = max(imax, math.Abs(x))
+		if a := math.Abs(x); a > imax {
+			imax = a
+		}
 	}
 	if !(imax > 0) {
 		return nil
