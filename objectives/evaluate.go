@@ -113,17 +113,17 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 	if err := CheckPhysical(st, res); err != nil {
 		return nil, err
 	}
-	sw := &swept{st: st, s: s, res: res}
-	if res.Len() < parallelPoints {
-		sw.metrics = Measure(st, res)
-		sw.findings = Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK)
-		return sw, nil
-	}
 	// A long sweep is measured while its devices are checked: Measure
 	// reads the result only, and takes a core the checks leave idle at
 	// their end.
+	sw := &swept{st: st, s: s, res: res}
+	measure := func() { sw.metrics = Measure(st, res) }
 	var wg sync.WaitGroup
-	wg.Go(func() { sw.metrics = Measure(st, res) })
+	if res.Len() >= parallelPoints {
+		wg.Go(measure)
+	} else {
+		measure()
+	}
 	sw.findings = Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK)
 	wg.Wait()
 	return sw, nil
@@ -205,7 +205,7 @@ func MeasureStaged(d *Design, cache *SolverCache, coarse float64, reject func(Me
 	}
 	coarseRes := res
 	res = &b.fine
-	if n, _ := d.Sweep.Points(); n >= 2*sim.SegmentPoints { // SweepParallel splits it
+	if n, _ := d.Sweep.Points(); n >= sim.SplitPoints { // SweepParallel splits it
 		err = s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0))
 	} else {
 		err = s.SweepFrom(d.Sweep, res, coarseRes)

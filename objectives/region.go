@@ -305,7 +305,7 @@ func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, wor
 	if dev.Duty == topologies.Saturated {
 		exempt := railTurnOff(n, func(i int) bool { return low[i] }, func(i int) bool { return work[i] },
 			func(i int) bool { return minor(dev.Side, i) })
-		f := span{Finding: Finding{Check: CheckSaturation, Device: dev.Name, Role: dev.Role}}
+		f := Finding{Check: CheckSaturation, Device: dev.Name, Role: dev.Role}
 		for i, x := range vcm {
 			if !work[i] || !low[i] || exempt[i] {
 				continue
@@ -316,12 +316,12 @@ func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, wor
 		}
 		if f.Points > 0 {
 			f.What = fmt.Sprintf("|V_DS| − |V_DSAT| = %s, want at least the margin %s", short(f.Value, units.Volt), short(f.Limit, units.Volt))
-			out = append(out, f.Finding)
+			out = append(out, f)
 		}
 	}
 	if kind == "level1" {
 		lim := 4 * ut
-		f := span{Finding: Finding{Check: CheckValidity, Device: dev.Name, Role: dev.Role}}
+		f := Finding{Check: CheckValidity, Device: dev.Name, Role: dev.Role}
 		for i, x := range vcm {
 			if !work[i] {
 				continue
@@ -333,7 +333,7 @@ func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, wor
 		if f.Points > 0 {
 			f.What = fmt.Sprintf("overdrive %s below 4·U_T = %s (gm/I_D above 1/(2·U_T)): the square law does not describe it",
 				short(f.Value, units.Volt), short(f.Limit, units.Volt))
-			out = append(out, f.Finding)
+			out = append(out, f)
 		}
 	}
 	return out
@@ -383,14 +383,10 @@ func railTurnOff(n int, short, working, minor func(int) bool) []bool {
 	return exempt
 }
 
-// span gathers the failing points of one device and one check into its
-// Finding, point by point in the order of the sweep.
-type span struct{ Finding }
-
-// add counts a failing point at common mode vcm with the value, limit
-// and amount there; the worst amount gives the Finding's VCM, Value and
-// Limit.
-func (f *span) add(vcm, val, lim, amt float64) {
+// add counts a failing point of a swept check at common mode vcm, with
+// the value, limit and amount there, points taken in the order of the
+// sweep; the worst amount gives VCM, Value and Limit.
+func (f *Finding) add(vcm, val, lim, amt float64) {
 	if f.Points == 0 {
 		f.From = vcm
 	}

@@ -47,8 +47,7 @@ func (a *archive) add(c Candidate) {
 		return
 	}
 	fb := &a.best[c.Point.Family]
-	if !fb.OK || better(o, fb.Candidate.Outcome, a.scales) ||
-		(!better(fb.Candidate.Outcome, o, a.scales) && c.Key.less(fb.Candidate.Key)) {
+	if !fb.OK || Prefer(c, fb.Candidate, a.scales) {
 		fb.Candidate, fb.OK = c, true
 	}
 	if !o.Feasible() {

@@ -478,8 +478,16 @@ func MissTexts(spec *objectives.Spec, vs []objectives.Violation) []string {
 // want ≥ 50 mV (worst of 3: M11, zener bias, at vcm 1.8 V)". Without an
 // evaluation it is MissTexts.
 func CandidateMisses(spec *objectives.Spec, c *sizing.Candidate) []string {
+	return candidateMisses(spec, c, func(objectives.Violation) bool { return true })
+}
+
+// candidateMisses is CandidateMisses for the violations keep accepts.
+func candidateMisses(spec *objectives.Spec, c *sizing.Candidate, keep func(objectives.Violation) bool) []string {
 	var out []string
 	for _, v := range Misses(c.Violations) {
+		if !keep(v) {
+			continue
+		}
 		s := missText(spec, v)
 		if c.Eval != nil {
 			s += findingWhere(v, c.Eval.Findings)
@@ -493,20 +501,17 @@ func CandidateMisses(spec *objectives.Spec, c *sizing.Candidate) []string {
 // evaluated: "no buildable sizing in 2871 evaluations; the nearest fails
 // saturation: |V_DS| − |V_DSAT| 18 mV, want ≥ 50 mV (M6, nmos tail, at
 // vcm 860 mV)", the always-on checks its least violating candidate fails
-// (CandidateMisses' words).
+// in CandidateMisses' words.
 func BlockedText(spec *objectives.Spec, f sizing.FamilyRank) string {
-	var checks []string
-	c := f.Blocked
-	for _, v := range Misses(c.Violations) {
-		if e, ok := objectives.Lookup(v.Target); ok && e.Kind == objectives.Constraint {
-			s := missText(spec, v)
-			if c.Eval != nil {
-				s += findingWhere(v, c.Eval.Findings)
-			}
-			checks = append(checks, s)
-		}
+	checks := candidateMisses(spec, f.Blocked, func(v objectives.Violation) bool {
+		e, ok := objectives.Lookup(v.Target)
+		return ok && e.Kind == objectives.Constraint
+	})
+	evals := "evaluations"
+	if f.Evaluations == 1 {
+		evals = "evaluation"
 	}
-	return fmt.Sprintf("no buildable sizing in %d evaluations; the nearest fails %s", f.Evaluations, strings.Join(checks, "; "))
+	return fmt.Sprintf("no buildable sizing in %d %s; the nearest fails %s", f.Evaluations, evals, strings.Join(checks, "; "))
 }
 
 // findingWhere says which finding a check's violation v comes from, " (M6,

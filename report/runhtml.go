@@ -129,6 +129,9 @@ func candidateStatus(c *sizing.Candidate) string {
 // sizing.FamilyRank.Blocked), so it misses targets only.
 const missStatus = "nearest miss"
 
+// blockedStatus names a family of which no buildable sizing was found.
+const blockedStatus = "not buildable"
+
 // candidateView writes a candidate for the page, with its parameters
 // and, when it was evaluated, its transistors at the middle of the sweep.
 func candidateView(spec *objectives.Spec, c *sizing.Candidate) *pageCandidate {
@@ -354,7 +357,7 @@ func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG []byte) ([
 				pf.Status = missStatus
 			}
 		} else if f.Blocked != nil {
-			pf.Status, pf.Blocked = "not buildable", BlockedText(spec, f)
+			pf.Status, pf.Blocked = blockedStatus, BlockedText(spec, f)
 		}
 		d.Families = append(d.Families, pf)
 	}

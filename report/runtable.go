@@ -51,7 +51,7 @@ func RunTable(w io.Writer, res *sizing.Result, dir string) error {
 		rank := strconv.Itoa(f.Rank)
 		c := f.Best
 		if c == nil && f.Blocked != nil {
-			t.add(append(append([]string{rank, f.Topology, "not buildable"}, none[1:]...), "—")...)
+			t.add(append(append([]string{rank, f.Topology, blockedStatus}, none[1:]...), "—")...)
 			notes = append(notes, note{len(t.rows) - 1, BlockedText(spec, f)})
 			continue
 		}

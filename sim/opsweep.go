@@ -32,7 +32,7 @@ func (c *OpColumn) At(i int) device.OpPoint {
 type Voltages struct {
 	points int
 	x      []float64 // the result's unknowns, point by point (Result.X)
-	static []float64 // every variable's value at the first point
+	static []float64 // the fixed nodes that do not move, by variable
 	moving []float64 // the moving fixed nodes, column after column
 	at     []int     // variable → its column in moving, or −1
 }
@@ -78,18 +78,15 @@ func (s *Solver) Voltages(res *Result, into *Voltages) {
 	if n == 0 {
 		return
 	}
+	// Every fixed node once, then at each point the moving ones as a
+	// sweep sets them (setMoving: bitwise what setFixed gives), copied
+	// out column by column.
 	row := into.static
 	s.setFixed(row, res.VCM[0], res.VID, 1)
 	for i, vcm := range res.VCM {
-		// The moving nodes in order, each after its parent, as setMoving
-		// sets them: bitwise the values setFixed gives at this point.
+		s.moveFixed(row, vcm, res.VID)
 		for c, k := range s.sys.fixedMoving {
-			f := &fx[k]
-			parent := row[fx[f.parent].idx]
-			if p := into.at[fx[f.parent].idx]; p >= 0 {
-				parent = into.moving[p*n+i]
-			}
-			into.moving[c*n+i] = parent + f.sign*f.drive.At(vcm, res.VID)
+			into.moving[c*n+i] = row[fx[k].idx]
 		}
 	}
 }

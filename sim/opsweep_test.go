@@ -19,7 +19,7 @@ func TestDeviceColumn(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		sp := SweepSpec{Low: 0, High: 1.8, Step: 1.8 / (3*SegmentPoints - 1)}
+		sp := SweepSpec{Low: 0, High: 1.8, Step: 1.8 / (3*SplitPoints/2 - 1)}
 		var res Result
 		if err := s.SweepParallel(sp, &res, 2); err != nil {
 			t.Fatal(err)

@@ -98,7 +98,7 @@ func TestRebindBitIdentical(t *testing.T) {
 			t.Errorf("circuit %d (%s): rebound and fresh sweeps differ in %s", k, c.Title, d)
 		}
 		par, wantPar := &Result{}, &Result{}
-		long := SweepSpec{Low: 0, High: 1.8, Step: 1.8 / (2*SegmentPoints + 5)}
+		long := SweepSpec{Low: 0, High: 1.8, Step: 1.8 / (SplitPoints + 5)}
 		if err := s.SweepParallel(long, par, 2); err != nil {
 			t.Fatal(err)
 		}

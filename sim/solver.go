@@ -229,8 +229,11 @@ func (s *Solver) setFixed(v []float64, vcm, vid, scale float64) {
 // setMoving is setFixed at scale 1 for the fixed nodes that move with the
 // sweep only, the others keeping their values: bitwise what setFixed
 // would give when they were set at scale 1.
-func (s *Solver) setMoving(vcm, vid float64) {
-	fx, v := s.sys.fixed, s.v
+func (s *Solver) setMoving(vcm, vid float64) { s.moveFixed(s.v, vcm, vid) }
+
+// moveFixed is setMoving into v.
+func (s *Solver) moveFixed(v []float64, vcm, vid float64) {
+	fx := s.sys.fixed
 	for _, k := range s.sys.fixedMoving {
 		f := &fx[k]
 		v[f.idx] = v[fx[f.parent].idx] + f.sign*f.drive.At(vcm, vid)

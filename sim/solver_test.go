@@ -339,7 +339,7 @@ func TestSweepAllocations(t *testing.T) {
 // whatever the number of workers.
 func TestSweepParallel(t *testing.T) {
 	c := diffPair(40e-6, 20e-6, 1e-6)
-	sp := SweepSpec{Low: 1.2, High: 2.0, Step: 0.8 / (3*SegmentPoints + 17)}
+	sp := SweepSpec{Low: 1.2, High: 2.0, Step: 0.8 / (3*SplitPoints/2 + 17)}
 	solve := func(workers int) *Result {
 		s, err := NewSolver(c, Options{})
 		if err != nil {

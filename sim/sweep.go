@@ -241,30 +241,30 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 	return nil
 }
 
-// SegmentPoints is half the number of points from which SweepParallel
-// splits a sweep into segments.
-const SegmentPoints = 8192
+// SplitPoints is the sweep length from which SweepParallel splits a
+// sweep into segments.
+const SplitPoints = 16384
 
-// segmentLength is the length of the segments SweepParallel solves,
-// shorter than SegmentPoints so that the workers, taking the next
-// segment as they finish one, end together whatever the segments cost.
+// segmentLength is the length of the segments SweepParallel solves, short
+// against SplitPoints so that the workers, taking the next segment as
+// they finish one, end together whatever the segments cost.
 const segmentLength = 2048
 
 // SweepParallel solves the same sweep as Sweep; one of at least
-// 2·SegmentPoints points it splits into segments of about segmentLength
+// SplitPoints points it splits into segments of about segmentLength
 // points, solved concurrently on up to workers goroutines (at least one),
 // each taking the next segment as it finishes one. Every segment starts
-// from the continuation solution at its first point, found by stepping sequentially from the
-// start of the sweep from one segment start to the next, so each follows
-// the same branch of solutions a single sweep would. The number of
-// segments depends only on the number of points: the result is the same
-// whatever the number of workers.
+// from the continuation solution at its first point, found by stepping
+// sequentially from the start of the sweep from one segment start to the
+// next, so each follows the same branch of solutions a single sweep
+// would. The number of segments depends only on the number of points: the
+// result is the same whatever the number of workers.
 func (s *Solver) SweepParallel(sp SweepSpec, res *Result, workers int) error {
 	npts, err := s.prepare(sp, res)
 	if err != nil {
 		return err
 	}
-	if npts/SegmentPoints <= 1 {
+	if npts < SplitPoints {
 		return s.sweepRange(sp, npts, 0, npts, res, nil, nil)
 	}
 	segs := npts / segmentLength
