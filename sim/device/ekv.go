@@ -134,9 +134,9 @@ func (m *ekvInst) pinch(vg float64) (vp, dvp, n, dn float64) {
 // with σ the logistic function, without overflow or underflow for any x.
 func ekvF(x float64) (f, df float64) {
 	h := 0.5 * x
-	e := math.Exp(-math.Abs(h)) // in [0, 1]
-	sp := math.Log1p(e)         // ln(1 + e^h) = max(h, 0) + ln(1 + e^−|h|)
-	sig := 1 / (1 + e)          // σ(|h|)
+	e := expNeg(-math.Abs(h)) // in [0, 1]
+	sp := log1pUnit(e)        // ln(1 + e^h) = max(h, 0) + ln(1 + e^−|h|)
+	sig := 1 / (1 + e)        // σ(|h|)
 	if h > 0 {
 		sp += h
 	} else {
@@ -165,13 +165,13 @@ func (m *ekvInst) Eval(vd, vg, vs, vb float64) Eval {
 	// logarithm (ln(1 + x) ≤ x; the derivative obeys the same bound).
 	hf := 0.5 * (vp - xs) * m.invUT
 	hr := 0.5 * (vp - xd) * m.invUT
-	ef := math.Exp(-math.Abs(hf))
-	er := math.Exp(-math.Abs(hr))
+	ef := expNeg(-math.Abs(hf))
+	er := expNeg(-math.Abs(hr))
 	hb, eb, hs, es := hf, ef, hr, er
 	if hr > hf {
 		hb, eb, hs, es = hr, er, hf, ef
 	}
-	spb, sb := math.Log1p(eb), 1/(1+eb)
+	spb, sb := log1pUnit(eb), 1/(1+eb)
 	if hb > 0 {
 		spb += hb
 	} else {
@@ -180,7 +180,7 @@ func (m *ekvInst) Eval(vd, vg, vs, vb float64) Eval {
 	fb, db := spb*spb, spb*sb
 	var fs, ds float64
 	if !(hs < 0 && es*es < minorTerm*fb) {
-		sps, ss := math.Log1p(es), 1/(1+es)
+		sps, ss := log1pUnit(es), 1/(1+es)
 		if hs > 0 {
 			sps += hs
 		} else {
@@ -221,7 +221,7 @@ func (m *ekvInst) tanhHalf(u, hf, hr, ef, er float64) (th, sech2 float64) {
 		if hi > 0x1p-500 {
 			e1 = lo / hi
 		} else { // both near underflow: VP over 17 V from both terminals
-			e1 = math.Exp(-math.Abs(u))
+			e1 = expNeg(-math.Abs(u))
 		}
 	} else {
 		e1 = ef * er
@@ -262,20 +262,20 @@ func (m *ekvInst) LargeSignal(vd, vg, vs, vb float64) LargeSignal {
 	// drops it; the larger is the conducting direction's, which is IC.
 	hf := 0.5 * (vp - xs) * m.invUT
 	hr := 0.5 * (vp - xd) * m.invUT
-	ef := math.Exp(-math.Abs(hf))
-	er := math.Exp(-math.Abs(hr))
+	ef := expNeg(-math.Abs(hf))
+	er := expNeg(-math.Abs(hr))
 	hb, eb, hs, es := hf, ef, hr, er
 	if hr > hf {
 		hb, eb, hs, es = hr, er, hf, ef
 	}
-	spb := math.Log1p(eb)
+	spb := log1pUnit(eb)
 	if hb > 0 {
 		spb += hb
 	}
 	fb := spb * spb
 	var fs float64
 	if !(hs < 0 && es*es < minorTerm*fb) {
-		sps := math.Log1p(es)
+		sps := log1pUnit(es)
 		if hs > 0 {
 			sps += hs
 		}
