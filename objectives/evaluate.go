@@ -266,7 +266,7 @@ func report(op sim.DeviceOp, dev topologies.Device, tempK float64) DeviceReport 
 		Name: op.Name, Type: op.Type.String(), Role: dev.Role,
 		W: op.Geom.W, L: op.Geom.L, M: op.Geom.Mult(),
 		ID: op.ID, VGS: op.VGS, VDS: op.VDS, VBS: op.VBS, VTH: op.VTH, VDSAT: op.VDSAT,
-		GM: op.GM, GDS: op.GDS, GMB: op.GMB, IC: op.IC, Region: string(op.Region),
+		GM: op.GM, GDS: op.GDS, GMB: op.GMB, IC: op.IC, Region: op.Region.String(),
 		Inversion: Inversion(op.OpPoint, tempK), Saturation: Saturation(op.OpPoint),
 		VDSMargin: SatHeadroom(op.OpPoint), Duty: dev.Duty.String(),
 	}

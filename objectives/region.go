@@ -232,14 +232,24 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 		return side == topologies.NoSide || lone || !(tot > 0) || mine <= 0.5*tot
 	}
 	want := Checked(st, kind)
+	// The sweep recorded the operating points (a short sweep: a
+	// search's), or they are worked out from the solution here.
+	recorded := len(res.Ops) == len(st.Devices)
 	volts := &scr.volts
-	s.Voltages(res, volts)
+	if !recorded {
+		s.Voltages(res, volts)
+	}
 	per := make([][]Finding, len(st.Devices))
 	check := func(ks <-chan int, scr *assessScratch) {
 		work, low := scr.flags(n)
 		for k := range ks {
-			s.DeviceColumn(volts, k, &scr.col)
-			per[k] = assessDevice(st.Devices[k], &scr.col, res, work, low, minor, kind, margin, ut)
+			col := &scr.col
+			if recorded {
+				col = &res.Ops[k]
+			} else {
+				s.DeviceColumn(volts, k, col)
+			}
+			per[k] = assessDevice(st.Devices[k], col, res, work, low, minor, kind, margin, ut)
 		}
 	}
 	// The devices that move first, the frozen ones (one model evaluation

@@ -15,6 +15,50 @@ type OpColumn struct {
 	Off                      []bool // the model calls the device off (level 1 below threshold)
 }
 
+// size makes the column n points long.
+func (c *OpColumn) size(n int) {
+	c.ID, c.VGS, c.VDS = grow(c.ID, n), grow(c.VGS, n), grow(c.VDS, n)
+	c.VTH, c.VDSAT = grow(c.VTH, n), grow(c.VDSAT, n)
+	if cap(c.Off) < n {
+		c.Off = make([]bool, n)
+	}
+	c.Off = c.Off[:n]
+}
+
+// recordOps writes, after point i of a sweep converged, every
+// transistor's operating point at the solution into res.Ops: VGS and VDS
+// from the solution, the rest from the transistor's last evaluation
+// (s.ops) where the final Newton step moved none of its terminals by more
+// than opTolerance, from LargeSignal at the solution elsewhere. The final
+// step is most often far smaller (Newton's convergence is quadratic), so
+// that few transistors are evaluated again.
+func (s *Solver) recordOps(res *Result, i int) {
+	v, dx := s.v, s.dx[:s.active]
+	moved := func(j int) bool { return j < len(dx) && (dx[j] > opTolerance || dx[j] < -opTolerance) }
+	for k := range res.Ops {
+		m := &s.sys.mos[k]
+		vd, vg, vs := v[m.d], v[m.g], v[m.s]
+		ls := &s.ops[k]
+		var fresh device.LargeSignal
+		if moved(m.d) || moved(m.g) || moved(m.s) || moved(m.b) {
+			fresh = m.inst.LargeSignal(vd, vg, vs, v[m.b])
+			ls = &fresh
+		}
+		c := &res.Ops[k]
+		c.ID[i], c.VGS[i], c.VDS[i], c.VTH[i], c.VDSAT[i] = ls.ID, vg-vs, vd-vs, ls.VTH, ls.VDSAT
+		c.Off[i] = ls.Region == device.Off
+	}
+}
+
+// opTolerance is how far (V) the final Newton step may have moved a
+// transistor's terminals for its last evaluation to stand for its
+// operating point at the solution: V_TH and V_DSAT move by at most about
+// twice that with the terminals (1 + the body effect's slope), so the
+// checks read them within a few 1e-8 V of their values at the solution,
+// far inside any margin. In a search's sweeps one transistor-point in
+// nine is evaluated again.
+const opTolerance = 1e-8
+
 // At returns the column's point i as an OpPoint (the fields it holds).
 func (c *OpColumn) At(i int) device.OpPoint {
 	op := device.OpPoint{ID: c.ID[i], VGS: c.VGS[i], VDS: c.VDS[i], VTH: c.VTH[i], VDSAT: c.VDSAT[i]}
@@ -104,12 +148,7 @@ func (s *Solver) Frozen(k int) bool { return s.sys.mos[k].frozen }
 // column of its own.
 func (s *Solver) DeviceColumn(v *Voltages, k int, col *OpColumn) {
 	n := v.points
-	col.ID, col.VGS, col.VDS = grow(col.ID, n), grow(col.VGS, n), grow(col.VDS, n)
-	col.VTH, col.VDSAT = grow(col.VTH, n), grow(col.VDSAT, n)
-	if cap(col.Off) < n {
-		col.Off = make([]bool, n)
-	}
-	col.Off = col.Off[:n]
+	col.size(n)
 	m := s.sys.mos[k]
 	u := s.sys.n
 	d, g, src, b := v.column(m.d, u), v.column(m.g, u), v.column(m.s, u), v.column(m.b, u)

@@ -1,6 +1,7 @@
 package sim
 
 import (
+	"math"
 	"testing"
 
 	"pairsmith/sim/device"
@@ -47,6 +48,77 @@ func TestDeviceColumn(t *testing.T) {
 						ekv, op.Name, res.VCM[i], got, c.Off[i], want, op.Region)
 				}
 			}
+		}
+	}
+}
+
+// TestRecordedOps: the operating points a short sweep records from its
+// Newton loads (Result.Ops) agree with each transistor's operating point
+// at the solution (DeviceColumn, itself bitwise Solver.Devices by
+// TestDeviceColumn): VGS and VDS bit for bit, V_TH and V_DSAT within
+// 1e-7 V, the current within 1e-6 of the device's largest, the off flag
+// exactly (our own bounds, no source: opTolerance's 1e-8 V with a margin
+// for the body effect's slope) — for both models, a plain sweep at two
+// steps and a guided one, every transistor at every point. Some points
+// must come from the loads themselves, not from LargeSignal again, or the
+// recording saves nothing; a long sweep records none.
+func TestRecordedOps(t *testing.T) {
+	for _, ekv := range []bool{false, true} {
+		s, err := NewSolver(railStage(ekv, 1, 1), Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		var coarse, fine, guided Result
+		runs := []struct {
+			name string
+			res  *Result
+			run  func() error
+		}{
+			{"50 mV", &coarse, func() error { return s.Sweep(SweepSpec{Low: 0, High: 1.8, Step: 0.05}, &coarse) }},
+			{"1 mV", &fine, func() error { return s.Sweep(SweepSpec{Low: 0, High: 1.8, Step: 1e-3}, &fine) }},
+			{"10 mV guided", &guided, func() error { return s.SweepFrom(SweepSpec{Low: 0, High: 1.8, Step: 0.01}, &guided, &coarse) }},
+		}
+		for _, r := range runs {
+			if err := r.run(); err != nil {
+				t.Fatal(err)
+			}
+			res := r.res
+			if len(res.Ops) != len(s.sys.mos) {
+				t.Fatalf("ekv %v, %s: %d recorded columns, want one per transistor (%d)", ekv, r.name, len(res.Ops), len(s.sys.mos))
+			}
+			var v Voltages
+			s.Voltages(res, &v)
+			fromLoads := 0
+			for k := range res.Ops {
+				var want OpColumn
+				s.DeviceColumn(&v, k, &want)
+				got := &res.Ops[k]
+				imax := 0.0
+				for _, x := range want.ID {
+					imax = math.Max(imax, math.Abs(x))
+				}
+				name := s.sys.c.Mosfets[k].Name
+				for i := range res.Len() {
+					if got.VGS[i] != want.VGS[i] || got.VDS[i] != want.VDS[i] || got.Off[i] != want.Off[i] ||
+						math.Abs(got.VTH[i]-want.VTH[i]) > 1e-7 || math.Abs(got.VDSAT[i]-want.VDSAT[i]) > 1e-7 ||
+						math.Abs(got.ID[i]-want.ID[i]) > 1e-6*imax {
+						t.Fatalf("ekv %v, %s, %s at vcm %g: recorded %v, at the solution %v", ekv, r.name, name, res.VCM[i], got.At(i), want.At(i))
+					}
+					if got.ID[i] != want.ID[i] || got.VTH[i] != want.VTH[i] || got.VDSAT[i] != want.VDSAT[i] {
+						fromLoads++
+					}
+				}
+			}
+			if fromLoads == 0 {
+				t.Errorf("ekv %v, %s: every recorded point is LargeSignal's at the solution: none from the Newton loads", ekv, r.name)
+			}
+		}
+		var long Result
+		if err := s.Sweep(SweepSpec{Low: 0, High: 1.8, Step: 1.8 / SplitPoints}, &long); err != nil {
+			t.Fatal(err)
+		}
+		if len(long.Ops) != 0 {
+			t.Errorf("ekv %v: a sweep of %d points recorded %d columns, want none", ekv, long.Len(), len(long.Ops))
 		}
 	}
 }

@@ -98,6 +98,9 @@ type Solver struct {
 	active int
 	// memo holds each transistor's last inputs and evaluation.
 	memo []mosMemo
+	// ops holds each transistor's large-signal operating point at its
+	// last evaluation, which a sweep records at every point (Result.Ops).
+	ops []device.LargeSignal
 
 	save []float64 // scratch copy of v
 
@@ -176,6 +179,7 @@ func (s *Solver) newBuffers() {
 	s.deliv, s.slope = cut(nF), cut(nF)
 	s.piv = make([]int, n)
 	s.memo = make([]mosMemo, len(sys.mos))
+	s.ops = make([]device.LargeSignal, len(sys.mos))
 	s.cvalid = false
 }
 
@@ -309,11 +313,12 @@ func (s *Solver) load(vcm, vid, scale, gshunt float64, reduced bool) {
 }
 
 // frozenEval returns the evaluation of frozen transistor i, from its
-// memo when the inputs are bitwise those of its last one.
+// memo when the inputs are bitwise those of its last one (and its ops
+// entry, written with the memo, then still holds them).
 func (s *Solver) frozenEval(i int, vd, vg, vs, vb float64) device.Eval {
 	me := &s.memo[i]
 	if !me.ok || vd != me.vd || vg != me.vg || vs != me.vs || vb != me.vb {
-		me.ev = s.sys.mos[i].inst.Eval(vd, vg, vs, vb)
+		me.ev = s.sys.mos[i].inst.EvalLarge(vd, vg, vs, vb, &s.ops[i])
 		me.vd, me.vg, me.vs, me.vb, me.ok = vd, vg, vs, vb, true
 	}
 	return me.ev
@@ -322,14 +327,15 @@ func (s *Solver) frozenEval(i int, vd, vg, vs, vb float64) device.Eval {
 // loadMos evaluates the transistors of list (indices into sys.mos, in
 // increasing order) at s.v and adds their stamps to the work array w and
 // the residual r: the channel, and the currents of the junctions' gmin,
-// drain–bulk and source–bulk (their conductances are in the base).
+// drain–bulk and source–bulk (their conductances are in the base). Each
+// one's operating point goes to s.ops.
 func (s *Solver) loadMos(w, r []float64, list []int) {
-	sys, v, gmin := s.sys, s.v, s.opt.Gmin
+	sys, v, gmin, ops := s.sys, s.v, s.opt.Gmin, s.ops
 	// An evaluation is skipped, exactly, when its inputs are bitwise those
 	// of the transistor's last one (a bias branch frozen during a sweep's
 	// continuation) or of the transistor just evaluated with the same
 	// class (the two halves of a pair at vid = 0).
-	last := -1
+	last, prev := -1, -1
 	var lvd, lvg, lvs, lvb float64
 	var ev device.Eval
 	for _, i := range list {
@@ -338,9 +344,11 @@ func (s *Solver) loadMos(w, r []float64, list []int) {
 		if m.frozen {
 			ev = s.frozenEval(i, vd, vg, vs, vb)
 		} else if m.id != last || vd != lvd || vg != lvg || vs != lvs || vb != lvb {
-			ev = m.inst.Eval(vd, vg, vs, vb)
+			ev = m.inst.EvalLarge(vd, vg, vs, vb, &ops[i])
+		} else {
+			ops[i] = ops[prev]
 		}
-		last, lvd, lvg, lvs, lvb = m.id, vd, vg, vs, vb
+		last, prev, lvd, lvg, lvs, lvb = m.id, i, vd, vg, vs, vb
 		w[m.dd] += ev.GD
 		w[m.dg] += ev.GG
 		w[m.ds] += ev.GS

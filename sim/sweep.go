@@ -58,6 +58,11 @@ type Result struct {
 	// the point).
 	X        []float64
 	Unknowns int
+	// Ops[k] is transistor k's operating point at every point, recorded
+	// by sweeps shorter than SplitPoints from the Newton loads that
+	// solved them (recordOps: within opTolerance of the solution); empty
+	// for longer ones, whose operating points DeviceColumn gives.
+	Ops []OpColumn
 }
 
 // Len returns the number of points.
@@ -125,6 +130,16 @@ func (s *Solver) prepare(sp SweepSpec, res *Result) (int, error) {
 	res.Unknowns = sys.n
 	res.X = grow(res.X, npts*sys.n)
 	res.VID = sp.VID
+	res.Ops = res.Ops[:0]
+	if npts < SplitPoints {
+		if cap(res.Ops) < len(sys.mos) {
+			res.Ops = make([]OpColumn, len(sys.mos))
+		}
+		res.Ops = res.Ops[:len(sys.mos)]
+		for k := range res.Ops {
+			res.Ops[k].size(npts)
+		}
+	}
 	return npts, nil
 }
 
@@ -235,6 +250,9 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 		}
 		for k := range res.Probe {
 			res.Probe[k][i] = s.probeValue(k)
+		}
+		if len(res.Ops) > 0 {
+			s.recordOps(res, i)
 		}
 		copy(res.X[i*n:(i+1)*n], s.v[:n])
 	}

@@ -65,18 +65,43 @@ type Eval struct {
 	GB float64 // ∂ID/∂VB, S
 }
 
-// Region names the operating region reported for a device.
-type Region string
+// Region names the operating region reported for a device. It is a
+// small number (String gives its word), so that the operating points a
+// sweep records at every Newton load hold no pointer.
+type Region uint8
 
 // Operating regions, in the words designers use.
 const (
-	Off        Region = "off"        // below threshold (level-1: no current)
-	Weak       Region = "weak"       // weak inversion (EKV, inversion coefficient < 0.1)
-	Moderate   Region = "moderate"   // moderate inversion (EKV, 0.1 … 10)
-	Strong     Region = "strong"     // strong inversion, saturated
-	Triode     Region = "triode"     // conducting, not saturated
-	Saturation Region = "saturation" // level-1 saturation
+	NoRegion   Region = iota // not given
+	Off                      // below threshold (level-1: no current)
+	Weak                     // weak inversion (EKV, inversion coefficient < 0.1)
+	Moderate                 // moderate inversion (EKV, 0.1 … 10)
+	Strong                   // strong inversion, saturated
+	Triode                   // conducting, not saturated
+	Saturation               // level-1 saturation
 )
+
+// String returns the region's word: "off", "weak", "moderate", "strong",
+// "triode" or "saturation" ("" for NoRegion).
+func (r Region) String() string {
+	switch r {
+	case NoRegion:
+		return ""
+	case Off:
+		return "off"
+	case Weak:
+		return "weak"
+	case Moderate:
+		return "moderate"
+	case Strong:
+		return "strong"
+	case Triode:
+		return "triode"
+	case Saturation:
+		return "saturation"
+	}
+	return fmt.Sprintf("Region(%d)", uint8(r))
+}
 
 // OpPoint describes a transistor at a bias point for reports: what a
 // designer reads off a SPICE operating-point listing. Signs follow SPICE
@@ -106,6 +131,11 @@ type Instance interface {
 	// equal to Op's, for less than Op costs: what the operating-region
 	// checks read at every point of a sweep. It must not allocate.
 	LargeSignal(vd, vg, vs, vb float64) LargeSignal
+	// EvalLarge returns Eval and fills ls with LargeSignal, both bitwise
+	// as those give them, for little more than Eval costs: a sweep
+	// records every transistor's operating point from its last Newton
+	// load with it. It must not allocate.
+	EvalLarge(vd, vg, vs, vb float64, ls *LargeSignal) Eval
 }
 
 // LargeSignal is the part of an OpPoint that needs no derivative: the

@@ -152,7 +152,12 @@ const minorTerm = 1e-9
 
 // Eval returns the drain current and its derivatives with respect to the
 // four terminal voltages.
-func (m *ekvInst) Eval(vd, vg, vs, vb float64) Eval {
+func (m *ekvInst) Eval(vd, vg, vs, vb float64) Eval { return m.EvalLarge(vd, vg, vs, vb, nil) }
+
+// EvalLarge is Eval that also fills ls, unless it is nil, with
+// LargeSignal's fields at the same voltages, bit for bit, for two square
+// roots more than Eval.
+func (m *ekvInst) EvalLarge(vd, vg, vs, vb float64, ls *LargeSignal) Eval {
 	s := m.sign
 	xg, xs, xd := s*(vg-vb), s*(vs-vb), s*(vd-vb)
 	vp, dvp, n, dn := m.pinch(xg)
@@ -203,7 +208,30 @@ func (m *ekvInst) Eval(vd, vg, vs, vb float64) Eval {
 	gg := dis*q*clm + a*(dF-dR)*dvp
 	gs := -a*dF - b
 	gd := a*dR + b
-	return Eval{ID: s * is * q * clm, GD: gd, GG: gg, GS: gs, GB: -(gg + gs + gd)}
+	id := s * is * q * clm
+	if ls != nil {
+		// The source is the terminal at the lower potential (NMOS
+		// sense); IC the larger term, that of the conducting direction.
+		// (Comparisons where Op has math.Min and math.Max, which are
+		// not inlined: the same values, NaN included.)
+		xsrc := xs
+		if xd < xs {
+			xsrc = xd
+		}
+		sb := xsrc + m.phi
+		if sb < 0 {
+			sb = 0
+		}
+		vth := m.vto + m.gamma*(math.Sqrt(sb)-m.sqrtPhi)
+		*ls = LargeSignal{
+			ID:     id,
+			VTH:    s * vth,
+			VDSAT:  s * (2*m.ut*math.Sqrt(fb+0.25) + 3*m.ut),
+			IC:     fb,
+			Region: ekvRegion(fb, fs),
+		}
+	}
+	return Eval{ID: id, GD: gd, GG: gg, GS: gs, GB: -(gg + gs + gd)}
 }
 
 // tanhHalf returns tanh(u) and 1 − tanh²(u) for u = VDS/(2·U_T), from
@@ -250,54 +278,12 @@ func ekvRegion(ic, rev float64) Region {
 }
 
 // LargeSignal returns Op's ID, VTH, VDSAT, IC and Region bitwise as Op
-// gives them, for a fraction of Op's cost: one pinch-off voltage and the
-// two exponentials Eval needs, no derivatives. The saturation and
-// validity checks read it at every point of a sweep.
+// gives them (Eval's work, the derivatives left unused): what the
+// saturation and validity checks read at every point of a sweep.
 func (m *ekvInst) LargeSignal(vd, vg, vs, vb float64) LargeSignal {
-	s := m.sign
-	xg, xs, xd := s*(vg-vb), s*(vs-vb), s*(vd-vb)
-	vp, _, n, _ := m.pinch(xg)
-	is := m.isn * n
-	// iF and iR as Eval computes them, the smaller dropped where Eval
-	// drops it; the larger is the conducting direction's, which is IC.
-	hf := 0.5 * (vp - xs) * m.invUT
-	hr := 0.5 * (vp - xd) * m.invUT
-	ef := expNeg(-math.Abs(hf))
-	er := expNeg(-math.Abs(hr))
-	hb, eb, hs, es := hf, ef, hr, er
-	if hr > hf {
-		hb, eb, hs, es = hr, er, hf, ef
-	}
-	spb := log1pUnit(eb)
-	if hb > 0 {
-		spb += hb
-	}
-	fb := spb * spb
-	var fs float64
-	if !(hs < 0 && es*es < minorTerm*fb) {
-		sps := log1pUnit(es)
-		if hs > 0 {
-			sps += hs
-		}
-		fs = sps * sps
-	}
-	iF, iR := fb, fs
-	if hr > hf {
-		iF, iR = fs, fb
-	}
-	vds := xd - xs
-	th, _ := m.tanhHalf(vds*m.inv2UT, hf, hr, ef, er)
-	clm := 1 + m.lambda*vds*th
-	xsrc := math.Min(xs, xd)
-	vth := m.vto + m.gamma*(math.Sqrt(math.Max(xsrc+m.phi, 0))-m.sqrtPhi)
-	ic, rev := fb, fs
-	return LargeSignal{
-		ID:     s * is * (iF - iR) * clm,
-		VTH:    s * vth,
-		VDSAT:  s * (2*m.ut*math.Sqrt(ic+0.25) + 3*m.ut),
-		IC:     ic,
-		Region: ekvRegion(ic, rev),
-	}
+	var ls LargeSignal
+	m.EvalLarge(vd, vg, vs, vb, &ls)
+	return ls
 }
 
 // Op returns the operating point at the given terminal voltages. The

@@ -5,7 +5,8 @@ import (
 	"testing"
 )
 
-// TestLargeSignalIsOp: LargeSignal gives Op's fields bit for bit, for
+// TestLargeSignalIsOp: LargeSignal gives Op's fields bit for bit, and
+// EvalLarge both Eval and LargeSignal, for
 // both models, both polarities and every region, over random bias points
 // (source and drain either way round, forward-biased bulk included) —
 // the checks read LargeSignal where the reports read Op, and the two must never
@@ -33,6 +34,11 @@ func TestLargeSignalIsOp(t *testing.T) {
 			op, ls := inst.Op(vd, vg, vs, vb), inst.LargeSignal(vd, vg, vs, vb)
 			if want := (LargeSignal{ID: op.ID, VTH: op.VTH, VDSAT: op.VDSAT, IC: op.IC, Region: op.Region}); ls != want {
 				t.Fatalf("%s at vd %g vg %g vs %g vb %g: LargeSignal %+v, Op %+v", name, vd, vg, vs, vb, ls, op)
+			}
+			var both LargeSignal
+			if ev := inst.EvalLarge(vd, vg, vs, vb, &both); ev != inst.Eval(vd, vg, vs, vb) || both != ls {
+				t.Fatalf("%s at vd %g vg %g vs %g vb %g: EvalLarge %+v and %+v, Eval %+v and LargeSignal %+v",
+					name, vd, vg, vs, vb, ev, both, inst.Eval(vd, vg, vs, vb), ls)
 			}
 		}
 	}

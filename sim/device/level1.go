@@ -200,14 +200,6 @@ func (m *level1Inst) body(vbs float64) (sarg, dsarg float64) {
 	return sarg, m.invSqrt2
 }
 
-// threshold returns the threshold von and the overdrive vgs − von in the
-// NMOS frame, source and drain ordered, as channel computes them.
-func (m *level1Inst) threshold(vgs, vbs float64) (von, vgst float64) {
-	sarg, _ := m.body(vbs)
-	von = m.vbi + m.gamma*sarg
-	return von, vgs - von
-}
-
 // channel evaluates the Shichman–Hodges channel current in the NMOS frame
 // with the source and drain already ordered (vds ≥ 0). It returns the current,
 // ∂/∂vgs, ∂/∂vds, ∂/∂vbs and the threshold and overdrive.
@@ -236,18 +228,42 @@ func (m *level1Inst) channel(vgs, vds, vbs float64) (cd, gm, gds, gmbs, von, vgs
 
 // Eval returns the channel current into the drain and its derivatives with
 // respect to the four terminal voltages. Junction diodes are not included.
-func (m *level1Inst) Eval(vd, vg, vs, vb float64) Eval {
+func (m *level1Inst) Eval(vd, vg, vs, vb float64) Eval { return m.EvalLarge(vd, vg, vs, vb, nil) }
+
+// EvalLarge is Eval that also fills ls, unless it is nil, with
+// LargeSignal's fields at the same voltages, bit for bit.
+func (m *level1Inst) EvalLarge(vd, vg, vs, vb float64, ls *LargeSignal) Eval {
 	s := m.sign
 	vds := s * (vd - vs)
 	vgs := s * (vg - vs)
 	vbs := s * (vb - vs)
+	var e Eval
+	var von, vgst float64
 	if vds >= 0 {
-		cd, gm, gds, gmbs, _, _ := m.channel(vgs, vds, vbs)
-		return Eval{ID: s * cd, GD: gds, GG: gm, GS: -(gm + gds + gmbs), GB: gmbs}
+		var cd, gm, gds, gmbs float64
+		cd, gm, gds, gmbs, von, vgst = m.channel(vgs, vds, vbs)
+		e = Eval{ID: s * cd, GD: gds, GG: gm, GS: -(gm + gds + gmbs), GB: gmbs}
+	} else {
+		// Inverse mode: the drain acts as the source.
+		var cd, gm, gds, gmbs float64
+		cd, gm, gds, gmbs, von, vgst = m.channel(vgs-vds, -vds, vbs-vds)
+		e = Eval{ID: -s * cd, GD: gm + gds + gmbs, GG: -gm, GS: -gds, GB: -gmbs}
 	}
-	// Inverse mode: the drain acts as the source.
-	cd, gm, gds, gmbs, _, _ := m.channel(vgs-vds, -vds, vbs-vds)
-	return Eval{ID: -s * cd, GD: gm + gds + gmbs, GG: -gm, GS: -gds, GB: -gmbs}
+	if ls != nil {
+		*ls = LargeSignal{ID: e.ID, VTH: s * von, VDSAT: s * max(vgst, 0), Region: level1Region(vgst, vds)}
+	}
+	return e
+}
+
+// level1Region names the region from the overdrive and VDS (NMOS frame).
+func level1Region(vgst, vds float64) Region {
+	switch {
+	case vgst <= 0:
+		return Off
+	case vgst <= math.Abs(vds):
+		return Saturation
+	}
+	return Triode
 }
 
 // Op returns the operating point at the given terminal voltages. As in
@@ -270,42 +286,18 @@ func (m *level1Inst) Op(vd, vg, vs, vb float64) OpPoint {
 	op := OpPoint{
 		ID: id, VGS: vg - vs, VDS: vd - vs, VBS: vb - vs,
 		VTH: s * von, VDSAT: s * max(vgst, 0),
-		GM: gm, GDS: gds, GMB: gmbs,
-	}
-	switch {
-	case vgst <= 0:
-		op.Region = Off
-	case vgst <= math.Abs(vds):
-		op.Region = Saturation
-	default:
-		op.Region = Triode
+		GM: gm, GDS: gds, GMB: gmbs, Region: level1Region(vgst, vds),
 	}
 	return op
 }
 
 // LargeSignal returns Op's ID, VTH, VDSAT and Region bitwise as Op gives
-// them (IC is 0: the square law has none), without the derivatives.
+// them (IC is 0: the square law has none), Eval's work with the
+// derivatives left unused.
 func (m *level1Inst) LargeSignal(vd, vg, vs, vb float64) LargeSignal {
-	s := m.sign
-	vds := s * (vd - vs)
-	vgs := s * (vg - vs)
-	vbs := s * (vb - vs)
-	sign := s
-	if vds < 0 { // inverse mode: the drain acts as the source
-		vgs, vbs, vds, sign = vgs-vds, vbs-vds, -vds, -s
-	}
-	von, vgst := m.threshold(vgs, vbs)
-	out := LargeSignal{VTH: s * von, VDSAT: s * max(vgst, 0), Region: Off}
-	if vgst <= 0 {
-		return out
-	}
-	betap := m.beta * (1 + m.lambda*vds)
-	if vgst <= vds {
-		out.ID, out.Region = sign*(0.5*betap*vgst*vgst), Saturation
-	} else {
-		out.ID, out.Region = sign*(betap*vds*(vgst-0.5*vds)), Triode
-	}
-	return out
+	var ls LargeSignal
+	m.EvalLarge(vd, vg, vs, vb, &ls)
+	return ls
 }
 
 // SpiceCard returns a `.model NAME nmos (level=1 ...)` line that reproduces
