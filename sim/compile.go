@@ -44,6 +44,7 @@ type fixedNode struct {
 	sign   float64
 	drive  Drive
 	dm     float64 // d v / d vid, accumulated along the chain
+	cm     float64 // d v / d vcm, accumulated along the chain
 }
 
 type mosStamp struct {
@@ -168,6 +169,12 @@ type system struct {
 	base []float64
 	// direct[i] is ∂r_i/∂vid at fixed voltages, for unknown rows.
 	direct []float64
+	// eCM and directCM are eVal and direct for vcm: what the sweep's
+	// tangent dx/dvcm needs, which it has (tangent) when every fixed node
+	// that moves with vcm has a JE column.
+	eCM      []float64
+	directCM []float64
+	tangent  bool
 }
 
 // slot returns the work-array slot of Jacobian entry (row, col), in
@@ -339,6 +346,7 @@ func shape(c *Circuit) (*system, error) {
 	}
 	s.layout(srcOf, probeTerms)
 	s.direct = make([]float64, s.n)
+	s.directCM = make([]float64, s.n)
 
 	for k, i := range floating {
 		v := c.VSources[i]
@@ -406,12 +414,14 @@ func shape(c *Circuit) (*system, error) {
 }
 
 // fixedDM computes into fixed the drives of c's sources and each fixed
-// node's d v / d vid along its chain (parents come before children).
+// node's d v / d vid and d v / d vcm along its chain (parents come before
+// children).
 func (s *system) fixedDM(fixed []fixedNode, c *Circuit) {
 	for k := 1; k < len(fixed); k++ {
 		f := &fixed[k]
 		f.drive = c.VSources[f.src].Value
 		f.dm = fixed[f.parent].dm + f.sign*f.drive.DM
+		f.cm = fixed[f.parent].cm + f.sign*f.drive.CM
 	}
 }
 
@@ -504,6 +514,13 @@ func (s *system) bind(c *Circuit, insts []device.Instance) {
 	s.fixedDM(s.fixed, c)
 	for e, k := range s.eFix {
 		s.eVal[e] = s.fixed[k].dm
+		s.eCM[e] = s.fixed[k].cm
+	}
+	s.tangent = true
+	for _, f := range s.fixed {
+		if f.cm != 0 && s.colOf[f.idx] < 0 {
+			s.tangent = false
+		}
 	}
 	// Every transistor has an instance of its own, so that a per-device
 	// variation (SetInstance) changes that device alone. Transistors of
@@ -528,6 +545,7 @@ func (s *system) bind(c *Circuit, insts []device.Instance) {
 	}
 	clear(s.base)
 	clear(s.direct)
+	clear(s.directCM)
 	for k := range s.branches {
 		b := &s.branches[k]
 		s.stamp(b.p, b.idx, 1)
@@ -541,6 +559,7 @@ func (s *system) bind(c *Circuit, insts []device.Instance) {
 		} else {
 			b.drive = c.VSources[b.vsrc].Value
 			s.direct[b.idx] -= b.drive.DM
+			s.directCM[b.idx] -= b.drive.CM
 		}
 	}
 	for k := range s.res {
@@ -557,9 +576,11 @@ func (s *system) bind(c *Circuit, insts []device.Instance) {
 		t.drive = c.ISources[k].Value
 		if t.a < s.n {
 			s.direct[t.a] += t.drive.DM
+			s.directCM[t.a] += t.drive.CM
 		}
 		if t.b < s.n {
 			s.direct[t.b] -= t.drive.DM
+			s.directCM[t.b] -= t.drive.CM
 		}
 	}
 	for k := range s.vccs {
@@ -634,6 +655,7 @@ func (s *system) layout(srcOf []sourceRef, probeTerms [][]probeTerm) {
 		}
 	}
 	s.eVal = make([]float64, len(s.eFix))
+	s.eCM = make([]float64, len(s.eFix))
 	want := make([]bool, len(s.fixed))
 	for _, terms := range probeTerms {
 		for _, t := range terms {

@@ -103,6 +103,9 @@ type Solver struct {
 	ops []device.LargeSignal
 
 	save []float64 // scratch copy of v
+	// tan[k] is d x / d vcm at a sweep's k-th last point, newest first
+	// (when the system has a tangent).
+	tan [hermitePoints][]float64
 
 	iterations int // Newton iterations since the solver was made
 }
@@ -166,7 +169,7 @@ func (s *Solver) newBuffers() {
 	sys := s.sys
 	n, N, nw, nr, nF := sys.n, sys.N, len(sys.base), sys.rTrash+trashSlots, len(sys.needed)
 	// The float buffers are cut from one allocation.
-	buf := make([]float64, 2*N+2*nw+2*nr+2*n+2*nF)
+	buf := make([]float64, 2*N+2*nw+2*nr+(2+hermitePoints)*n+2*nF)
 	cut := func(k int) []float64 {
 		b := buf[:k:k]
 		buf = buf[k:]
@@ -176,6 +179,9 @@ func (s *Solver) newBuffers() {
 	s.w, s.cbase = cut(nw), cut(nw)
 	s.r, s.cres = cut(nr), cut(nr)
 	s.dx, s.rhs = cut(n), cut(n)
+	for k := range s.tan {
+		s.tan[k] = cut(n)
+	}
 	s.deliv, s.slope = cut(nF), cut(nF)
 	s.piv = make([]int, n)
 	s.memo = make([]mosMemo, len(sys.mos))
@@ -419,6 +425,7 @@ func (s *Solver) iterate(m int, vcm, vid, scale, gshunt float64, maxIter int) bo
 		s.setMoving(vcm, vid)
 	}
 	lu, dx := s.w[:n*n], s.dx[:m]
+	again := false
 	for it := 0; it < maxIter; it++ {
 		s.iterations++
 		s.load(vcm, vid, scale, gshunt, reduced)
@@ -438,31 +445,46 @@ func (s *Solver) iterate(m int, vcm, vid, scale, gshunt float64, maxIter int) bo
 		if it >= dampAfter {
 			damp = 0.5
 		}
-		ok, converged, limited := s.applyStep(m, damp)
+		ok, converged, limited, worst := s.applyStep(m, damp)
 		if !ok {
 			return false
 		}
 		if converged && !limited {
-			s.active = m
-			return true
+			if worst <= finalStep || again {
+				s.active = m
+				return true
+			}
+			// Converged, but the Jacobian that gm is read from was
+			// evaluated a good part of the tolerance away from the
+			// solution: once more from there.
+			again = true
 		}
 	}
 	return false
 }
+
+// finalStep is the largest final Newton step, as a fraction of the
+// convergence tolerance, at whose starting point the solver reads the
+// derivatives (gm, the tangent) and the operating points: a larger one
+// gets one more iteration, from the far closer solution (Newton's
+// convergence is quadratic). gm then moves by a few 1e-6 of itself at
+// most (its slope with the voltages is about 1/(n·U_T)).
+const finalStep = 0.1
 
 // applyStep adds the Newton step in s.dx[:m] to the first m unknowns, each
 // node voltage's change limited to MaxStep, and leaves the applied step in
 // s.dx. A step that has not converged is shortened by damp; one that has
 // (every change within the convergence tolerance) is taken whole. It
 // reports false for a step that is not finite, whether the step had
-// converged, and whether it was limited or damped.
-func (s *Solver) applyStep(m int, damp float64) (ok, converged, limited bool) {
+// converged, whether it was limited or damped, and — for a converged
+// step — its largest change as a fraction of that change's tolerance.
+func (s *Solver) applyStep(m int, damp float64) (ok, converged, limited bool, worst float64) {
 	o := &s.opt
 	dx, v, isNode := s.dx[:m], s.v[:m], s.sys.isNode[:m]
 	converged = true
 	for i, d := range dx {
 		if d != d || d-d != 0 { // NaN or ±Inf
-			return false, false, false
+			return false, false, false, 0
 		}
 		// Within RelTol·max(|old|, |new|) plus VnTol for a node voltage,
 		// AbsTol for a branch current.
@@ -474,8 +496,11 @@ func (s *Solver) applyStep(m int, damp float64) (ok, converged, limited bool) {
 		if isNode[i] {
 			t = o.VnTol
 		}
-		if math.Abs(d) > o.RelTol*big+t {
+		tol := o.RelTol*big + t
+		if a := math.Abs(d); a > tol {
 			converged = false
+		} else if a > worst*tol {
+			worst = a / tol
 		}
 	}
 	if converged {
@@ -494,7 +519,7 @@ func (s *Solver) applyStep(m int, damp float64) (ok, converged, limited bool) {
 		dx[i] = d
 		v[i] += d
 	}
-	return true, converged, limited
+	return true, converged, limited, worst
 }
 
 // solveFresh finds the operating point without a nearby solution: plain
@@ -628,6 +653,27 @@ func (s *Solver) post(wantGM bool) {
 			slope[q] = dot(d, w[o:o+nE], ev)
 		}
 	}
+}
+
+// tangent computes, after a converged solve, the tangent of the solution
+// curve d x / d vcm into s.tan[0], the previous one kept in s.tan[1]:
+// J·t = −(∂r/∂v_fixed · dv_fixed/dvcm + ∂r/∂vcm directly), one solve with
+// the factors the last iteration left (the continuation's tangent, as in
+// E. L. Allgower and K. Georg, Numerical Continuation Methods, Springer,
+// 1990, ch. 2). After a reduced solve only the moving unknowns move.
+func (s *Solver) tangent() {
+	sys := s.sys
+	n, nE, m := sys.n, sys.nE, s.active
+	last := s.tan[len(s.tan)-1]
+	copy(s.tan[1:], s.tan[:len(s.tan)-1])
+	s.tan[0] = last
+	t, w := s.tan[0], s.w
+	for i := range m {
+		o := sys.oJE + i*nE
+		t[i] = -dot(sys.directCM[i], w[o:o+nE], sys.eCM)
+	}
+	clear(t[m:n])
+	luSolve(w[:n*n], m, n, s.piv, t[:m])
 }
 
 // dot returns c + a·b (b at least as long as a), summed from c and the
