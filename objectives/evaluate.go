@@ -180,7 +180,13 @@ func (sc *SolverCache) put(family string, b *bench) {
 // are from). The fine look's metrics agree with MeasureCached's within
 // the solver's tolerance, not bitwise: `eval` and a search's reported
 // candidates use Evaluate.
-func MeasureStaged(d *Design, cache *SolverCache, coarse float64, reject func(Metrics, []Finding) bool) (m Metrics, fs []Finding, fine bool, err error) {
+//
+// start, when it holds as many values as the circuit has unknowns, is
+// where the first point's Newton iterations begin (sim.Solver.SweepStart):
+// a reference solution of the same family (FirstSolution), which a
+// search's candidates reach in fewer iterations than from the circuit's
+// guess; nil starts from the guess.
+func MeasureStaged(d *Design, cache *SolverCache, coarse float64, start []float64, reject func(Metrics, []Finding) bool) (m Metrics, fs []Finding, fine bool, err error) {
 	st, err := Build(d)
 	if err != nil {
 		return Metrics{}, nil, false, err
@@ -193,7 +199,12 @@ func MeasureStaged(d *Design, cache *SolverCache, coarse float64, reject func(Me
 	s, res := b.s, &b.coarse
 	look := d.Sweep
 	look.Step = math.Max(coarse, d.Sweep.Step)
-	if err := s.Sweep(look, res); err != nil {
+	if len(start) == s.Unknowns() {
+		err = s.SweepStart(look, res, start)
+	} else {
+		err = s.Sweep(look, res)
+	}
+	if err != nil {
 		return Metrics{}, nil, false, err
 	}
 	if err := CheckPhysical(st, res); err != nil {
@@ -217,6 +228,29 @@ func MeasureStaged(d *Design, cache *SolverCache, coarse float64, reject func(Me
 		return Metrics{}, nil, true, err
 	}
 	return Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr), true, nil
+}
+
+// FirstSolution returns the solver's unknowns at the first point of d's
+// sweep, solved from scratch: the start MeasureStaged takes for the
+// other candidates of d's family.
+func FirstSolution(d *Design) ([]float64, error) {
+	st, err := Build(d)
+	if err != nil {
+		return nil, err
+	}
+	s, err := sim.NewSolver(st.Circuit, sim.Options{})
+	if err != nil {
+		return nil, err
+	}
+	n, err := d.Sweep.Points()
+	if err != nil {
+		return nil, err
+	}
+	p, err := s.Solve(d.Sweep.At(0, n), d.Sweep.VID)
+	if err != nil {
+		return nil, err
+	}
+	return p.V[:s.Unknowns()], nil
 }
 
 // MeasureDesign builds, sweeps and measures a design without the rest of

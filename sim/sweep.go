@@ -85,8 +85,31 @@ func (s *Solver) Sweep(sp SweepSpec, res *Result) error {
 	if err != nil {
 		return err
 	}
-	return s.sweepRange(sp, npts, 0, npts, res, nil, nil)
+	return s.sweepRange(sp, npts, 0, npts, res, nil, nil, 0)
 }
+
+// SweepStart is Sweep whose first point starts from start, the unknowns
+// of a solution of a circuit of the same shape at the same point (a
+// reference design's, say), instead of from the circuit's guess; Newton
+// gets referenceIterations from there before the fresh solve takes over.
+// The points agree with Sweep's within the convergence tolerance, not
+// bitwise, provided both reach the same solution of a circuit that has
+// more than one.
+func (s *Solver) SweepStart(sp SweepSpec, res *Result, start []float64) error {
+	if len(start) != s.sys.n {
+		return fmt.Errorf("sweep of %s: a start of %d unknowns, want %d", s.sys.c.Title, len(start), s.sys.n)
+	}
+	npts, err := s.prepare(sp, res)
+	if err != nil {
+		return err
+	}
+	return s.sweepRange(sp, npts, 0, npts, res, start, nil, referenceIterations)
+}
+
+// referenceIterations bounds Newton from a reference's solution: a start
+// that has not converged in that many (damping begins at dampAfter) is
+// too far for it to be worth more than a fresh solve.
+const referenceIterations = 20
 
 // SweepFrom is Sweep guided by guide, a result of the same circuit over
 // the same range at another step (a coarser look at the same candidate):
@@ -105,7 +128,7 @@ func (s *Solver) SweepFrom(sp SweepSpec, res *Result, guide *Result) error {
 	if err != nil {
 		return err
 	}
-	return s.sweepRange(sp, npts, 0, npts, res, guide.X[:guide.Unknowns], guide)
+	return s.sweepRange(sp, npts, 0, npts, res, guide.X[:guide.Unknowns], guide, 0)
 }
 
 // prepare sizes res for the sweep.
@@ -144,10 +167,11 @@ func (s *Solver) prepare(sp SweepSpec, res *Result) (int, error) {
 }
 
 // sweepRange solves points [lo, hi) of a sweep of npts points. The first
-// starts from start, the unknowns of a solution near it, or from scratch
-// when start is nil; a guide (nil for none) lends its solutions to the
-// predictor (SweepFrom).
-func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start []float64, guide *Result) error {
+// starts from start, the unknowns of a solution near it (given startIter
+// Newton iterations, 0 for Options.MaxIter), or from scratch when start is
+// nil; a guide (nil for none) lends its solutions to the predictor
+// (SweepFrom).
+func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start []float64, guide *Result, startIter int) error {
 	sys := s.sys
 	n := sys.n
 	wantGM := sys.output >= 0
@@ -161,7 +185,10 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 			}
 		case i == lo:
 			copy(s.v[:n], start)
-			if !s.newton(vcm, sp.VID, 1, 0, s.opt.MaxIter) {
+			if startIter == 0 {
+				startIter = s.opt.MaxIter
+			}
+			if !s.newton(vcm, sp.VID, 1, 0, startIter) {
 				if err := s.solveFresh(vcm, sp.VID); err != nil {
 					return err
 				}
@@ -343,7 +370,7 @@ func (s *Solver) SweepParallel(sp SweepSpec, res *Result, workers int) error {
 		return err
 	}
 	if npts < SplitPoints {
-		return s.sweepRange(sp, npts, 0, npts, res, nil, nil)
+		return s.sweepRange(sp, npts, 0, npts, res, nil, nil, 0)
 	}
 	segs := npts / segmentLength
 	workers = max(workers, 1)
@@ -385,7 +412,7 @@ func (s *Solver) SweepParallel(sp SweepSpec, res *Result, workers int) error {
 		wg.Go(func() {
 			c := s.clone()
 			for k := range next {
-				errs[k] = c.sweepRange(sp, npts, bounds[k], bounds[k+1], res, starts[k], nil)
+				errs[k] = c.sweepRange(sp, npts, bounds[k], bounds[k+1], res, starts[k], nil, 0)
 			}
 			iters[wk] = c.iterations
 		})

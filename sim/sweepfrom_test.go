@@ -68,3 +68,62 @@ func TestSweepFrom(t *testing.T) {
 		}
 	}
 }
+
+// TestSweepStart: a sweep whose first point starts from another sizing's
+// solution (a reference of the same shape) gives the fresh sweep's points
+// within twice the convergence tolerance and its gm within 1e-5 (as
+// TestSweepFrom's bounds, our own), and reaches the first point in fewer
+// Newton iterations than the fresh solve; a start of the wrong length is
+// refused.
+func TestSweepStart(t *testing.T) {
+	for _, ekv := range []bool{false, true} {
+		ref, err := NewSolver(railStage(ekv, 1, 1), Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		first, err := ref.Solve(0, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		start := first.V[:ref.Unknowns()]
+		s, err := NewSolver(railStage(ekv, 1.6, 0.7), Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		one := SweepSpec{Low: 0, High: 0, Step: 0.01}
+		var fresh, warm Result
+		it := s.Iterations()
+		if err := s.Sweep(one, &fresh); err != nil {
+			t.Fatal(err)
+		}
+		itFresh := s.Iterations() - it
+		it = s.Iterations()
+		if err := s.SweepStart(one, &warm, start); err != nil {
+			t.Fatal(err)
+		}
+		if itWarm := s.Iterations() - it; itWarm >= itFresh {
+			t.Errorf("ekv=%v: the first point took %d iterations from the reference, %d fresh: want fewer", ekv, itWarm, itFresh)
+		}
+		sp := SweepSpec{Low: 0, High: 1.8, Step: 0.01}
+		if err := s.Sweep(sp, &fresh); err != nil {
+			t.Fatal(err)
+		}
+		if err := s.SweepStart(sp, &warm, start); err != nil {
+			t.Fatal(err)
+		}
+		for i := range fresh.VCM {
+			for j := 0; j < fresh.Unknowns; j++ {
+				a, b := warm.X[i*warm.Unknowns+j], fresh.X[i*fresh.Unknowns+j]
+				if math.Abs(a-b) > 2*(1e-6*math.Max(math.Abs(a), math.Abs(b))+1e-7) {
+					t.Fatalf("ekv=%v point %d unknown %d: %g from the reference, %g fresh", ekv, i, j, a, b)
+				}
+			}
+			if g, h := warm.GM[i], fresh.GM[i]; math.Abs(g-h) > 1e-5*math.Abs(h) {
+				t.Fatalf("ekv=%v point %d: gm %g from the reference, %g fresh", ekv, i, g, h)
+			}
+		}
+		if err := s.SweepStart(sp, &warm, start[1:]); err == nil {
+			t.Errorf("ekv=%v: a start one unknown short was accepted", ekv)
+		}
+	}
+}

@@ -49,6 +49,10 @@ type Problem struct {
 	params  [][]topologies.Param
 	targets objectives.Targets // the spec's, tightened by Margin
 	solvers objectives.SolverCache
+	// starts holds each family's reference solution (nil for none): its
+	// defaults' first sweep point, where every candidate's first Newton
+	// iterations begin (objectives.MeasureStaged).
+	starts [][]float64
 }
 
 var (
@@ -78,6 +82,14 @@ func NewProblem(spec *objectives.Spec) (*Problem, error) {
 	}
 	if len(p.fams) == 0 {
 		return nil, errors.New("sizing: the spec names no topology")
+	}
+	// A family whose defaults do not solve has no reference: its
+	// candidates start from the circuit's guess.
+	p.starts = make([][]float64, len(p.fams))
+	for f, fam := range p.fams {
+		if x, err := objectives.FirstSolution(spec.Design(fam.Name(), topologies.Defaults(fam))); err == nil {
+			p.starts[f] = x
+		}
 	}
 	return p, nil
 }
@@ -175,7 +187,7 @@ type Outcome struct {
 // are swept at the spec's step (objectives.MeasureStaged).
 func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 	d := p.Design(pt)
-	m, fs, fine, err := objectives.MeasureStaged(d, &p.solvers, CoarseStep, func(m objectives.Metrics, fs []objectives.Finding) bool {
+	m, fs, fine, err := objectives.MeasureStaged(d, &p.solvers, CoarseStep, p.starts[pt.Family], func(m objectives.Metrics, fs []objectives.Finding) bool {
 		for _, v := range p.Checks(m, fs, p.targets) {
 			if v.Amount >= CoarseReject {
 				return true
