@@ -59,6 +59,13 @@ func (s *Solver) recordOps(res *Result, i int) {
 // nine is evaluated again.
 const opTolerance = 1e-8
 
+// copyPoint makes point i of c point j of from, with the voltages vgs and
+// vds.
+func (c *OpColumn) copyPoint(i int, from *OpColumn, j int, vgs, vds float64) {
+	c.ID[i], c.VGS[i], c.VDS[i], c.VTH[i], c.VDSAT[i] = from.ID[j], vgs, vds, from.VTH[j], from.VDSAT[j]
+	c.Off[i] = from.Off[j]
+}
+
 // At returns the column's point i as an OpPoint (the fields it holds).
 func (c *OpColumn) At(i int) device.OpPoint {
 	op := device.OpPoint{ID: c.ID[i], VGS: c.VGS[i], VDS: c.VDS[i], VTH: c.VTH[i], VDSAT: c.VDSAT[i]}

@@ -664,16 +664,22 @@ func (s *Solver) post(wantGM bool) {
 func (s *Solver) tangent() {
 	sys := s.sys
 	n, nE, m := sys.n, sys.nE, s.active
-	last := s.tan[len(s.tan)-1]
-	copy(s.tan[1:], s.tan[:len(s.tan)-1])
-	s.tan[0] = last
-	t, w := s.tan[0], s.w
+	t, w := s.pushTangent(), s.w
 	for i := range m {
 		o := sys.oJE + i*nE
 		t[i] = -dot(sys.directCM[i], w[o:o+nE], sys.eCM)
 	}
 	clear(t[m:n])
 	luSolve(w[:n*n], m, n, s.piv, t[:m])
+}
+
+// pushTangent moves the tangents down by one and returns the slot of the
+// newest, s.tan[0] (the oldest's storage).
+func (s *Solver) pushTangent() []float64 {
+	last := s.tan[len(s.tan)-1]
+	copy(s.tan[1:], s.tan[:len(s.tan)-1])
+	s.tan[0] = last
+	return last
 }
 
 // dot returns c + a·b (b at least as long as a), summed from c and the

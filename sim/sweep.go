@@ -58,6 +58,12 @@ type Result struct {
 	// the point).
 	X        []float64
 	Unknowns int
+	// Tangent holds d x / d vcm of the unknowns that move with the sweep
+	// (Moving of them) at every point, recorded with Ops when the circuit
+	// has a tangent (empty otherwise): what lets a finer sweep guided by
+	// this one take its points where the two coincide (SweepFrom).
+	Tangent []float64
+	Moving  int
 	// Ops[k] is transistor k's operating point at every point, recorded
 	// by sweeps shorter than SplitPoints from the Newton loads that
 	// solved them (recordOps: within opTolerance of the solution); empty
@@ -153,7 +159,10 @@ func (s *Solver) prepare(sp SweepSpec, res *Result) (int, error) {
 	res.Unknowns = sys.n
 	res.X = grow(res.X, npts*sys.n)
 	res.VID = sp.VID
-	res.Ops = res.Ops[:0]
+	res.Ops, res.Tangent, res.Moving = res.Ops[:0], res.Tangent[:0], sys.nD
+	if npts < SplitPoints && sys.tangent {
+		res.Tangent = grow(res.Tangent, npts*sys.nD)
+	}
 	if npts < SplitPoints {
 		if cap(res.Ops) < len(sys.mos) {
 			res.Ops = make([]OpColumn, len(sys.mos))
@@ -198,13 +207,18 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 			// predictor moves only the unknowns that move with the sweep.
 			prev := res.X[(i-1)*n : i*n]
 			m := sys.nD
+			same := false // the guide's point gj is this one
 			if guide != nil {
-				for gj < guide.Len() && guide.VCM[gj] < vcm {
+				for gj < guide.Len() && guide.VCM[gj] < vcm-sameVCM {
 					gj++
 				}
+				same = gj < guide.Len() && math.Abs(guide.VCM[gj]-vcm) <= sameVCM
+			}
+			if same && s.takeGuide(sp, res, i, guide, gj) {
+				continue
 			}
 			switch {
-			case guide != nil && gj < guide.Len() && guide.VCM[gj] == vcm:
+			case same:
 				copy(s.v[:m], guide.X[gj*n:gj*n+m])
 			case sys.tangent:
 				s.predictHermite(vcm, res, i, min(i-lo, hermitePoints))
@@ -275,6 +289,9 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 		s.post(wantGM)
 		if sys.tangent {
 			s.tangent()
+			if len(res.Tangent) > 0 {
+				copy(res.Tangent[i*sys.nD:(i+1)*sys.nD], s.tan[0][:sys.nD])
+			}
 		}
 		res.VCM[i] = vcm
 		if wantGM {
@@ -290,6 +307,47 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 	}
 	return nil
 }
+
+// takeGuide makes point i of res the guide's point gj, at the same common
+// mode (within sameVCM), when the guide recorded what a point needs (its
+// tangent and operating points, as res does): its moving unknowns, gm,
+// probes, operating points and tangent, without a Newton iteration. The unknowns
+// that do not move keep this sweep's own values. It reports whether it
+// took the point.
+func (s *Solver) takeGuide(sp SweepSpec, res *Result, i int, guide *Result, gj int) bool {
+	n, m := s.sys.n, s.sys.nD
+	if len(res.Tangent) == 0 || guide.Moving != m || len(guide.Tangent) != guide.Len()*m || len(guide.Ops) != len(res.Ops) {
+		return false
+	}
+	vcm := sp.At(i, res.Len())
+	copy(s.v[:m], guide.X[gj*n:gj*n+m])
+	s.setMoving(vcm, sp.VID)
+	res.VCM[i] = vcm
+	if len(res.GM) > 0 {
+		res.GM[i] = guide.GM[gj]
+	}
+	for k := range res.Probe {
+		res.Probe[k][i] = guide.Probe[k][gj]
+	}
+	for k := range res.Ops {
+		// VGS and VDS from this sweep's own voltages, as recordOps
+		// writes them; the rest is the guide's.
+		mk := &s.sys.mos[k]
+		res.Ops[k].copyPoint(i, &guide.Ops[k], gj, s.v[mk.g]-s.v[mk.s], s.v[mk.d]-s.v[mk.s])
+	}
+	last := s.pushTangent()
+	copy(last[:m], guide.Tangent[gj*m:(gj+1)*m])
+	clear(last[m:n])
+	copy(res.Tangent[i*m:(i+1)*m], last[:m])
+	copy(res.X[i*n:(i+1)*n], s.v[:n])
+	return true
+}
+
+// sameVCM is how close (V) a guide's common mode must be to a point's for
+// the two to be the same point: the sweeps compute their points as
+// Low + i·Step, which differ in the last bits where the steps do (3·0.05
+// is not 15·0.01 in binary).
+const sameVCM = 1e-12
 
 // hermitePoints is how many of the last solutions, with their tangents,
 // the sweep's predictor interpolates: three, a polynomial of degree five.

@@ -11,7 +11,8 @@ import (
 // solver's convergence tolerance (RelTol·|v| + VnTol on every unknown,
 // defaults 1e-6 and 1e-7 V; its gm to the relative tolerance that moves:
 // 1e-5, our own choice, no source), in fewer Newton iterations, for both
-// models; a guide of another circuit is refused.
+// models, taking the guide's own points where the two coincide; a guide of
+// another circuit is refused.
 func TestSweepFrom(t *testing.T) {
 	for _, ekv := range []bool{false, true} {
 		c := railStage(ekv, 1, 1)
@@ -51,6 +52,25 @@ func TestSweepFrom(t *testing.T) {
 			if g, h := warm.GM[i], fresh.GM[i]; math.Abs(g-h) > 1e-5*math.Abs(h) {
 				t.Fatalf("ekv=%v point %d: gm %g from a start, %g fresh", ekv, i, g, h)
 			}
+		}
+		// Where the two sweeps' points coincide (every fifth), the guided
+		// sweep takes the guide's point as it is: gm, probes and operating
+		// points bit for bit.
+		taken := 0
+		for i := 1; i < warm.Len(); i++ {
+			for k := range coarse.Len() {
+				if math.Abs(coarse.VCM[k]-warm.VCM[i]) > 1e-12 {
+					continue
+				}
+				taken++
+				if warm.GM[i] != coarse.GM[k] || warm.Probe[0][i] != coarse.Probe[0][k] || warm.Ops[0].ID[i] != coarse.Ops[0].ID[k] {
+					t.Errorf("ekv=%v at vcm %g: gm %g, probe %g, ID %g guided; the guide's %g, %g, %g",
+						ekv, warm.VCM[i], warm.GM[i], warm.Probe[0][i], warm.Ops[0].ID[i], coarse.GM[k], coarse.Probe[0][k], coarse.Ops[0].ID[k])
+				}
+			}
+		}
+		if taken < coarse.Len()-2 {
+			t.Errorf("ekv=%v: %d points coincide with the guide's, want %d", ekv, taken, coarse.Len()-1)
 		}
 		// The start is a converged solution at the first point: the first
 		// point costs one iteration, not a fresh solve's dozens.
