@@ -134,7 +134,7 @@ func (p *Problem) ParamNames(f int) []string {
 
 // Values maps normalised coordinates of family f to parameter values.
 func (p *Problem) Values(f int, x []float64) topologies.Values {
-	v := topologies.Values{}
+	v := make(topologies.Values, len(p.params[f]))
 	for i, q := range p.params[f] {
 		u := optimize.Clamp01(x[i])
 		var val float64

@@ -179,7 +179,7 @@ func snapDown(r device.Rules, x float64) float64 {
 // the stage is built: a design written with them builds the very devices
 // that were evaluated.
 func Snap(f Family, v Values, r device.Rules) Values {
-	out := Values{}
+	out := make(Values, len(v))
 	for k, x := range v {
 		out[k] = x
 	}
