@@ -292,12 +292,31 @@ func (m *level1Inst) Op(vd, vg, vs, vb float64) OpPoint {
 }
 
 // LargeSignal returns Op's ID, VTH, VDSAT and Region bitwise as Op gives
-// them (IC is 0: the square law has none), Eval's work with the
-// derivatives left unused.
+// them (IC is 0: the square law has none), without the derivatives: the
+// square law is cheap enough that they would be a good part of its cost.
 func (m *level1Inst) LargeSignal(vd, vg, vs, vb float64) LargeSignal {
-	var ls LargeSignal
-	m.EvalLarge(vd, vg, vs, vb, &ls)
-	return ls
+	s := m.sign
+	vds := s * (vd - vs)
+	vgs := s * (vg - vs)
+	vbs := s * (vb - vs)
+	sign := s
+	if vds < 0 { // inverse mode: the drain acts as the source
+		vgs, vbs, vds, sign = vgs-vds, vbs-vds, -vds, -s
+	}
+	sarg, _ := m.body(vbs)
+	von := m.vbi + m.gamma*sarg
+	vgst := vgs - von
+	out := LargeSignal{VTH: s * von, VDSAT: s * max(vgst, 0), Region: Off}
+	if vgst <= 0 {
+		return out
+	}
+	betap := m.beta * (1 + m.lambda*vds)
+	if vgst <= vds {
+		out.ID, out.Region = sign*(0.5*betap*vgst*vgst), Saturation
+	} else {
+		out.ID, out.Region = sign*(betap*vds*(vgst-0.5*vds)), Triode
+	}
+	return out
 }
 
 // SpiceCard returns a `.model NAME nmos (level=1 ...)` line that reproduces
