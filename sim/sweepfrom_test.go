@@ -39,20 +39,7 @@ func TestSweepFrom(t *testing.T) {
 		if itWarm >= itFresh {
 			t.Errorf("ekv=%v: the guided sweep took %d Newton iterations, the fresh one %d: want fewer", ekv, itWarm, itFresh)
 		}
-		if warm.Len() != fresh.Len() {
-			t.Fatalf("ekv=%v: %d points from a start, %d fresh", ekv, warm.Len(), fresh.Len())
-		}
-		for i := range fresh.VCM {
-			for j := 0; j < fresh.Unknowns; j++ {
-				a, b := warm.X[i*warm.Unknowns+j], fresh.X[i*fresh.Unknowns+j]
-				if math.Abs(a-b) > 2*(1e-6*math.Max(math.Abs(a), math.Abs(b))+1e-7) {
-					t.Fatalf("ekv=%v point %d unknown %d: %g from a start, %g fresh", ekv, i, j, a, b)
-				}
-			}
-			if g, h := warm.GM[i], fresh.GM[i]; math.Abs(g-h) > 1e-5*math.Abs(h) {
-				t.Fatalf("ekv=%v point %d: gm %g from a start, %g fresh", ekv, i, g, h)
-			}
-		}
+		agree(t, ekv, "from a start", &warm, &fresh)
 		// Where the two sweeps' points coincide (every fifth), the guided
 		// sweep takes the guide's point as it is: gm, probes and operating
 		// points bit for bit.
@@ -131,19 +118,30 @@ func TestSweepStart(t *testing.T) {
 		if err := s.SweepStart(sp, &warm, start); err != nil {
 			t.Fatal(err)
 		}
-		for i := range fresh.VCM {
-			for j := 0; j < fresh.Unknowns; j++ {
-				a, b := warm.X[i*warm.Unknowns+j], fresh.X[i*fresh.Unknowns+j]
-				if math.Abs(a-b) > 2*(1e-6*math.Max(math.Abs(a), math.Abs(b))+1e-7) {
-					t.Fatalf("ekv=%v point %d unknown %d: %g from the reference, %g fresh", ekv, i, j, a, b)
-				}
-			}
-			if g, h := warm.GM[i], fresh.GM[i]; math.Abs(g-h) > 1e-5*math.Abs(h) {
-				t.Fatalf("ekv=%v point %d: gm %g from the reference, %g fresh", ekv, i, g, h)
-			}
-		}
+		agree(t, ekv, "from the reference", &warm, &fresh)
 		if err := s.SweepStart(sp, &warm, start[1:]); err == nil {
 			t.Errorf("ekv=%v: a start one unknown short was accepted", ekv)
+		}
+	}
+}
+
+// agree fails t unless every point of got is fresh's within twice the
+// convergence tolerance on every unknown and 1e-5 on gm (the bounds of
+// TestSweepFrom's comment).
+func agree(t *testing.T, ekv bool, how string, got, fresh *Result) {
+	t.Helper()
+	if got.Len() != fresh.Len() {
+		t.Fatalf("ekv=%v: %d points %s, %d fresh", ekv, got.Len(), how, fresh.Len())
+	}
+	for i := range fresh.VCM {
+		for j := 0; j < fresh.Unknowns; j++ {
+			a, b := got.X[i*got.Unknowns+j], fresh.X[i*fresh.Unknowns+j]
+			if math.Abs(a-b) > 2*(1e-6*math.Max(math.Abs(a), math.Abs(b))+1e-7) {
+				t.Fatalf("ekv=%v point %d unknown %d: %g %s, %g fresh", ekv, i, j, a, how, b)
+			}
+		}
+		if g, h := got.GM[i], fresh.GM[i]; math.Abs(g-h) > 1e-5*math.Abs(h) {
+			t.Fatalf("ekv=%v point %d: gm %g %s, %g fresh", ekv, i, g, how, h)
 		}
 	}
 }
