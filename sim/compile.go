@@ -47,6 +47,10 @@ type fixedNode struct {
 	cm     float64 // d v / d vcm, accumulated along the chain
 }
 
+// moves reports whether the node moves with vid or vcm: it then has a
+// JE column, which gm and the sweep's tangent read.
+func (f fixedNode) moves() bool { return f.dm != 0 || f.cm != 0 }
+
 type mosStamp struct {
 	inst       device.Instance // this transistor's own
 	id         int             // class: equal for transistors whose instances are alike
@@ -150,7 +154,7 @@ type system struct {
 
 	// sig is the shape of the circuit compiled, for Rebind to compare.
 	sig shapeSig
-	// eFix is the fixed node of each JE column: those that move with vid.
+	// eFix is the fixed node of each JE column: those that move with vid or vcm.
 	eFix []int
 
 	// Compact layout (see the comment at the top of the file).
@@ -170,11 +174,9 @@ type system struct {
 	// direct[i] is ∂r_i/∂vid at fixed voltages, for unknown rows.
 	direct []float64
 	// eCM and directCM are eVal and direct for vcm: what the sweep's
-	// tangent dx/dvcm needs, which it has (tangent) when every fixed node
-	// that moves with vcm has a JE column.
+	// tangent dx/dvcm needs.
 	eCM      []float64
 	directCM []float64
-	tangent  bool
 }
 
 // slot returns the work-array slot of Jacobian entry (row, col), in
@@ -516,12 +518,6 @@ func (s *system) bind(c *Circuit, insts []device.Instance) {
 		s.eVal[e] = s.fixed[k].dm
 		s.eCM[e] = s.fixed[k].cm
 	}
-	s.tangent = true
-	for _, f := range s.fixed {
-		if f.cm != 0 && s.colOf[f.idx] < 0 {
-			s.tangent = false
-		}
-	}
 	// Every transistor has an instance of its own, so that a per-device
 	// variation (SetInstance) changes that device alone. Transistors of
 	// the same card and size share a class number, so that load can
@@ -650,7 +646,7 @@ func (s *system) resolveProbes() ([][]probeTerm, error) {
 // current (its fixed-node entries at least).
 func (s *system) layout(srcOf []sourceRef, probeTerms [][]probeTerm) {
 	for k, f := range s.fixed {
-		if f.dm != 0 {
+		if f.moves() {
 			s.eFix = append(s.eFix, k)
 		}
 	}

@@ -43,8 +43,8 @@ func (s *Solver) Rebind(c *Circuit) error {
 	copy(fixed, sys.fixed)
 	sys.fixedDM(fixed, c)
 	for k := 1; k < len(fixed); k++ {
-		if (fixed[k].dm != 0) != (sys.fixed[k].dm != 0) {
-			return fmt.Errorf("rebind circuit %q to %q: node %s depends on the differential input in one and not the other",
+		if fixed[k].moves() != sys.fixed[k].moves() {
+			return fmt.Errorf("rebind circuit %q to %q: node %s moves with the inputs in one and not the other",
 				sys.c.Title, c.Title, c.NodeName(nodeOf(sys, k)))
 		}
 	}

@@ -163,7 +163,7 @@ func TestRebindRefused(t *testing.T) {
 		{"renamed source", "voltage source 4 (VD1)", func(c *Circuit) { c.VSources[3].Name = "VD1" }},
 		{"source starts to sweep", "voltage source 8 (Vvref)", func(c *Circuit) { c.VSources[7].Value.CM = 0.5 }},
 		{"current source starts to sweep", "current source 1 (Ibp)", func(c *Circuit) { c.ISources[0].Value.DM = 1e-6 }},
-		{"input stops depending on vid", "depends on the differential input", func(c *Circuit) { c.VSources[1].Value.DM = 0 }},
+		{"input stops moving with the inputs", "VINP", func(c *Circuit) { c.VSources[1].Value.CM, c.VSources[1].Value.DM = 0, 0 }},
 		{"probe reads another source", "probe 2 (i_n)", func(c *Circuit) { c.Probes[1].Terms[0].Source = "VDP1" }},
 		{"other output", "circuit", func(c *Circuit) { c.Output = "i_n" }},
 		{"geometry an instance refuses", "transistor M3", func(c *Circuit) { c.Mosfets[2].Geom.L = 0 }},

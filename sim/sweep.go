@@ -59,8 +59,7 @@ type Result struct {
 	X        []float64
 	Unknowns int
 	// Tangent holds d x / d vcm of the unknowns that move with the sweep
-	// (Moving of them) at every point, recorded with Ops when the circuit
-	// has a tangent (empty otherwise): what lets a finer sweep guided by
+	// (Moving of them) at every point, recorded with Ops: what lets a finer sweep guided by
 	// this one take its points where the two coincide (SweepFrom).
 	Tangent []float64
 	Moving  int
@@ -160,10 +159,8 @@ func (s *Solver) prepare(sp SweepSpec, res *Result) (int, error) {
 	res.X = grow(res.X, npts*sys.n)
 	res.VID = sp.VID
 	res.Ops, res.Tangent, res.Moving = res.Ops[:0], res.Tangent[:0], sys.nD
-	if npts < SplitPoints && sys.tangent {
-		res.Tangent = grow(res.Tangent, npts*sys.nD)
-	}
 	if npts < SplitPoints {
+		res.Tangent = grow(res.Tangent, npts*sys.nD)
 		if cap(res.Ops) < len(sys.mos) {
 			res.Ops = make([]OpColumn, len(sys.mos))
 		}
@@ -217,68 +214,10 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 			if same && s.takeGuide(sp, res, i, guide, gj) {
 				continue
 			}
-			switch {
-			case same:
+			if same {
 				copy(s.v[:m], guide.X[gj*n:gj*n+m])
-			case sys.tangent:
+			} else {
 				s.predictHermite(vcm, res, i, min(i-lo, hermitePoints))
-			case guide != nil && gj < guide.Len() && i-lo >= 2:
-				// Interpolate: the last two solutions behind, the guide's
-				// next one or two ahead (Lagrange form).
-				xs := [4]float64{res.VCM[i-1], res.VCM[i-2], guide.VCM[gj]}
-				ps := [4][]float64{prev, res.X[(i-2)*n : (i-1)*n], guide.X[gj*n : (gj+1)*n]}
-				k := 3
-				if i-lo >= 3 {
-					xs[3], ps[3] = res.VCM[i-3], res.X[(i-3)*n:(i-2)*n]
-					k = 4
-				}
-				var l [4]float64
-				for a := range k {
-					l[a] = 1
-					for b := range k {
-						if b != a {
-							l[a] *= (vcm - xs[b]) / (xs[a] - xs[b])
-						}
-					}
-				}
-				for j := 0; j < m; j++ {
-					x := 0.0
-					for a := range k {
-						x += l[a] * ps[a][j]
-					}
-					s.v[j] = x
-				}
-			case i-lo >= 2:
-				// Predict by the polynomial through the last two or three
-				// solutions (Lagrange form, uneven steps allowed).
-				x0, x1 := res.VCM[i-1], res.VCM[i-2]
-				p1 := res.X[(i-2)*n : (i-1)*n]
-				if i-lo >= 4 {
-					x2, x3 := res.VCM[i-3], res.VCM[i-4]
-					p2 := res.X[(i-3)*n : (i-2)*n]
-					p3 := res.X[(i-4)*n : (i-3)*n]
-					l0 := (vcm - x1) * (vcm - x2) * (vcm - x3) / ((x0 - x1) * (x0 - x2) * (x0 - x3))
-					l1 := (vcm - x0) * (vcm - x2) * (vcm - x3) / ((x1 - x0) * (x1 - x2) * (x1 - x3))
-					l2 := (vcm - x0) * (vcm - x1) * (vcm - x3) / ((x2 - x0) * (x2 - x1) * (x2 - x3))
-					l3 := (vcm - x0) * (vcm - x1) * (vcm - x2) / ((x3 - x0) * (x3 - x1) * (x3 - x2))
-					for j := 0; j < m; j++ {
-						s.v[j] = l0*prev[j] + l1*p1[j] + l2*p2[j] + l3*p3[j]
-					}
-				} else if i-lo >= 3 {
-					x2 := res.VCM[i-3]
-					p2 := res.X[(i-3)*n : (i-2)*n]
-					l0 := (vcm - x1) * (vcm - x2) / ((x0 - x1) * (x0 - x2))
-					l1 := (vcm - x0) * (vcm - x2) / ((x1 - x0) * (x1 - x2))
-					l2 := (vcm - x0) * (vcm - x1) / ((x2 - x0) * (x2 - x1))
-					for j := 0; j < m; j++ {
-						s.v[j] = l0*prev[j] + l1*p1[j] + l2*p2[j]
-					}
-				} else if x0 != x1 {
-					f := (vcm - x0) / (x0 - x1)
-					for j := 0; j < m; j++ {
-						s.v[j] += f * (prev[j] - p1[j])
-					}
-				}
 			}
 			if !s.newtonMoving(vcm, sp.VID, s.opt.MaxIter) {
 				if err := s.recover(res.VCM[i-1], prev, vcm, sp.VID); err != nil {
@@ -287,11 +226,9 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 			}
 		}
 		s.post(wantGM)
-		if sys.tangent {
-			s.tangent()
-			if len(res.Tangent) > 0 {
-				copy(res.Tangent[i*sys.nD:(i+1)*sys.nD], s.tan[0][:sys.nD])
-			}
+		s.tangent()
+		if len(res.Tangent) > 0 {
+			copy(res.Tangent[i*sys.nD:(i+1)*sys.nD], s.tan[0][:sys.nD])
 		}
 		res.VCM[i] = vcm
 		if wantGM {
