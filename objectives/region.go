@@ -233,22 +233,15 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 	}
 	want := Checked(st, kind)
 	// The sweep recorded the operating points (a short sweep: a
-	// search's), or they are worked out from the solution here.
-	recorded := len(res.Ops) == len(st.Devices)
+	// search's), or DeviceColumn works them out from the solution.
 	volts := &scr.volts
-	if !recorded {
-		s.Voltages(res, volts)
-	}
+	s.Voltages(res, volts)
 	per := make([][]Finding, len(st.Devices))
 	check := func(ks <-chan int, scr *assessScratch) {
 		work, low := scr.flags(n)
 		for k := range ks {
 			col := &scr.col
-			if recorded {
-				col = &res.Ops[k]
-			} else {
-				s.DeviceColumn(volts, k, col)
-			}
+			s.DeviceColumn(volts, k, col)
 			per[k] = assessDevice(st.Devices[k], col, res, work, low, minor, kind, margin, ut)
 		}
 	}

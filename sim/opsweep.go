@@ -2,6 +2,7 @@ package sim
 
 import (
 	"math"
+	"slices"
 
 	"pairsmith/sim/device"
 )
@@ -26,28 +27,41 @@ func (c *OpColumn) size(n int) {
 }
 
 // recordOps writes, after point i of a sweep converged, every
-// transistor's operating point at the solution into res.Ops: VGS and VDS
-// from the solution, the rest from the transistor's last evaluation
-// (s.ops) where the final Newton step moved none of its terminals by more
-// than opTolerance, from LargeSignal at the solution elsewhere. The final
-// step is most often far smaller (Newton's convergence is quadratic), so
-// that few transistors are evaluated again.
+// transistor's large-signal operating point at the solution into point
+// i's row of res.Ops: the transistor's last evaluation (s.ops) where the
+// final Newton step moved none of its terminals by more than opTolerance,
+// LargeSignal at the solution elsewhere. The final step is most often far
+// smaller (Newton's convergence is quadratic), so that the row is one
+// copy of s.ops and few transistors are evaluated again.
 func (s *Solver) recordOps(res *Result, i int) {
-	v, dx := s.v, s.dx[:s.active]
-	moved := func(j int) bool { return j < len(dx) && (dx[j] > opTolerance || dx[j] < -opTolerance) }
-	for k := range res.Ops {
-		m := &s.sys.mos[k]
-		vd, vg, vs := v[m.d], v[m.g], v[m.s]
-		ls := &s.ops[k]
-		var fresh device.LargeSignal
-		if moved(m.d) || moved(m.g) || moved(m.s) || moved(m.b) {
-			fresh = m.inst.LargeSignal(vd, vg, vs, v[m.b])
-			ls = &fresh
-		}
-		c := &res.Ops[k]
-		c.ID[i], c.VGS[i], c.VDS[i], c.VTH[i], c.VDSAT[i] = ls.ID, vg-vs, vd-vs, ls.VTH, ls.VDSAT
-		c.Off[i] = ls.Region == device.Off
+	nm := len(s.ops)
+	row := res.Ops[i*nm : (i+1)*nm]
+	copy(row, s.ops)
+	dx := s.dx[:s.active]
+	if !slices.ContainsFunc(dx, beyondOpTolerance) {
+		return
 	}
+	v := s.v
+	for k := range row {
+		m := &s.sys.mos[k]
+		if m.movedBy(dx) {
+			row[k] = m.inst.LargeSignal(v[m.d], v[m.g], v[m.s], v[m.b])
+		}
+	}
+}
+
+// beyondOpTolerance reports whether a step d is larger than opTolerance.
+func beyondOpTolerance(d float64) bool { return d > opTolerance || d < -opTolerance }
+
+// movedBy reports whether the step dx over the first len(dx) unknowns
+// moved one of the transistor's terminals by more than opTolerance.
+func (m *mosStamp) movedBy(dx []float64) bool {
+	for _, j := range [4]int{m.d, m.g, m.s, m.b} {
+		if j < len(dx) && beyondOpTolerance(dx[j]) {
+			return true
+		}
+	}
+	return false
 }
 
 // opTolerance is how far (V) the final Newton step may have moved a
@@ -58,13 +72,6 @@ func (s *Solver) recordOps(res *Result, i int) {
 // far inside any margin. In a search's sweeps one transistor-point in
 // nine is evaluated again.
 const opTolerance = 1e-8
-
-// copyPoint makes point i of c point j of from, with the voltages vgs and
-// vds.
-func (c *OpColumn) copyPoint(i int, from *OpColumn, j int, vgs, vds float64) {
-	c.ID[i], c.VGS[i], c.VDS[i], c.VTH[i], c.VDSAT[i] = from.ID[j], vgs, vds, from.VTH[j], from.VDSAT[j]
-	c.Off[i] = from.Off[j]
-}
 
 // At returns the column's point i as an OpPoint (the fields it holds).
 func (c *OpColumn) At(i int) device.OpPoint {
@@ -86,6 +93,9 @@ type Voltages struct {
 	static []float64 // the fixed nodes that do not move, by variable
 	moving []float64 // the moving fixed nodes, column after column
 	at     []int     // variable → its column in moving, or −1
+	// ops holds the operating points the sweep recorded (Result.Ops),
+	// nil where it recorded none.
+	ops []device.LargeSignal
 }
 
 // column is where one variable's values are: data[off+i·stride] is its
@@ -112,7 +122,10 @@ func (v *Voltages) column(j, u int) column {
 // in use.
 func (s *Solver) Voltages(res *Result, into *Voltages) {
 	n, N := res.Len(), s.sys.N
-	into.points, into.x = n, res.X
+	into.points, into.x, into.ops = n, res.X, nil
+	if nm := len(s.sys.mos); nm > 0 && len(res.Ops) == n*nm {
+		into.ops = res.Ops
+	}
 	into.static = grow(into.static, N)
 	if cap(into.at) < N {
 		into.at = make([]int, N)
@@ -149,10 +162,11 @@ func (s *Solver) Frozen(k int) bool { return s.sys.mos[k].frozen }
 
 // DeviceColumn fills col with transistor k's operating point (in the
 // circuit's order of transistors) at every point of the sweep whose
-// voltages v holds, from the model's LargeSignal (computed again only
-// where the four terminal voltages changed). Any number of goroutines may
-// fill columns of the same solver and voltages at once, each into a
-// column of its own.
+// voltages v holds: VGS and VDS from the voltages, the rest from what
+// the sweep recorded (Result.Ops) where it recorded it, from the model's
+// LargeSignal elsewhere (computed again only where the four terminal
+// voltages changed). Any number of goroutines may fill columns of the
+// same solver and voltages at once, each into a column of its own.
 func (s *Solver) DeviceColumn(v *Voltages, k int, col *OpColumn) {
 	n := v.points
 	col.size(n)
@@ -161,6 +175,18 @@ func (s *Solver) DeviceColumn(v *Voltages, k int, col *OpColumn) {
 	d, g, src, b := v.column(m.d, u), v.column(m.g, u), v.column(m.s, u), v.column(m.b, u)
 	id := col.ID[:n]
 	vgs, vds, vth, vdsat, off := col.VGS[:len(id)], col.VDS[:len(id)], col.VTH[:len(id)], col.VDSAT[:len(id)], col.Off[:len(id)]
+	if v.ops != nil {
+		nm := len(s.sys.mos)
+		jd, jg, js, j := d.off, g.off, src.off, k
+		for i := range id {
+			vd, vg, vs := d.data[jd], g.data[jg], src.data[js]
+			jd, jg, js = jd+d.stride, jg+g.stride, js+src.stride
+			ls := &v.ops[j]
+			j += nm
+			id[i], vgs[i], vds[i], vth[i], vdsat[i], off[i] = ls.ID, vg-vs, vd-vs, ls.VTH, ls.VDSAT, ls.Region == device.Off
+		}
+		return
+	}
 	// The last operating point, as scalars (a LargeSignal kept across
 	// iterations costs a store-to-load stall at every point).
 	var lid, lvth, lvdsat float64

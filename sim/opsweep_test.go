@@ -83,22 +83,31 @@ func TestRecordedOps(t *testing.T) {
 				t.Fatal(err)
 			}
 			res := r.res
-			if len(res.Ops) != len(s.sys.mos) {
-				t.Fatalf("ekv %v, %s: %d recorded columns, want one per transistor (%d)", ekv, r.name, len(res.Ops), len(s.sys.mos))
+			if len(res.Ops) != res.Len()*len(s.sys.mos) {
+				t.Fatalf("ekv %v, %s: %d recorded operating points, want one per transistor and point (%d)", ekv, r.name, len(res.Ops), res.Len()*len(s.sys.mos))
 			}
-			var v Voltages
+			// The columns from the records, and from the solution alone.
+			var v, fresh Voltages
 			s.Voltages(res, &v)
+			s.Voltages(res, &fresh)
+			if v.ops == nil {
+				t.Fatalf("ekv %v, %s: the voltages do not carry the records", ekv, r.name)
+			}
+			fresh.ops = nil
 			fromLoads := 0
-			for k := range res.Ops {
-				var want OpColumn
-				s.DeviceColumn(&v, k, &want)
-				got := &res.Ops[k]
+			for k := range s.sys.mos {
+				var want, got OpColumn
+				s.DeviceColumn(&fresh, k, &want)
+				s.DeviceColumn(&v, k, &got)
 				imax := 0.0
 				for _, x := range want.ID {
 					imax = math.Max(imax, math.Abs(x))
 				}
 				name := s.sys.c.Mosfets[k].Name
 				for i := range res.Len() {
+					if rec := res.Ops[i*len(s.sys.mos)+k]; rec.ID != got.ID[i] || rec.VTH != got.VTH[i] || rec.VDSAT != got.VDSAT[i] {
+						t.Fatalf("ekv %v, %s, %s at vcm %g: column %v, record %+v", ekv, r.name, name, res.VCM[i], got.At(i), rec)
+					}
 					if got.VGS[i] != want.VGS[i] || got.VDS[i] != want.VDS[i] || got.Off[i] != want.Off[i] ||
 						math.Abs(got.VTH[i]-want.VTH[i]) > 1e-7 || math.Abs(got.VDSAT[i]-want.VDSAT[i]) > 1e-7 ||
 						math.Abs(got.ID[i]-want.ID[i]) > 1e-6*imax {
@@ -118,7 +127,7 @@ func TestRecordedOps(t *testing.T) {
 			t.Fatal(err)
 		}
 		if len(long.Ops) != 0 {
-			t.Errorf("ekv %v: a sweep of %d points recorded %d columns, want none", ekv, long.Len(), len(long.Ops))
+			t.Errorf("ekv %v: a sweep of %d points recorded %d operating points, want none", ekv, long.Len(), len(long.Ops))
 		}
 	}
 }

@@ -63,11 +63,13 @@ type Result struct {
 	// this one take its points where the two coincide (SweepFrom).
 	Tangent []float64
 	Moving  int
-	// Ops[k] is transistor k's operating point at every point, recorded
-	// by sweeps shorter than SplitPoints from the Newton loads that
-	// solved them (recordOps: within opTolerance of the solution); empty
-	// for longer ones, whose operating points DeviceColumn gives.
-	Ops []OpColumn
+	// Ops holds every transistor's large-signal operating point at every
+	// point, point after point (transistor k of point i at
+	// Ops[i·transistors+k]), recorded by sweeps shorter than SplitPoints
+	// from the Newton loads that solved them (recordOps: within
+	// opTolerance of the solution); empty for longer ones. DeviceColumn
+	// reads them, or evaluates the transistors where there are none.
+	Ops []device.LargeSignal
 }
 
 // Len returns the number of points.
@@ -161,12 +163,10 @@ func (s *Solver) prepare(sp SweepSpec, res *Result) (int, error) {
 	res.Ops, res.Tangent, res.Moving = res.Ops[:0], res.Tangent[:0], sys.nD
 	if npts < SplitPoints {
 		res.Tangent = grow(res.Tangent, npts*sys.nD)
-		if cap(res.Ops) < len(sys.mos) {
-			res.Ops = make([]OpColumn, len(sys.mos))
-		}
-		res.Ops = res.Ops[:len(sys.mos)]
-		for k := range res.Ops {
-			res.Ops[k].size(npts)
+		if nr := npts * len(sys.mos); cap(res.Ops) < nr {
+			res.Ops = make([]device.LargeSignal, nr)
+		} else {
+			res.Ops = res.Ops[:nr]
 		}
 	}
 	return npts, nil
@@ -253,7 +253,8 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 // took the point.
 func (s *Solver) takeGuide(sp SweepSpec, res *Result, i int, guide *Result, gj int) bool {
 	n, m := s.sys.n, s.sys.nD
-	if len(res.Tangent) == 0 || guide.Moving != m || len(guide.Tangent) != guide.Len()*m || len(guide.Ops) != len(res.Ops) {
+	nm := len(s.sys.mos)
+	if len(res.Tangent) == 0 || guide.Moving != m || len(guide.Tangent) != guide.Len()*m || len(guide.Ops) != guide.Len()*nm {
 		return false
 	}
 	vcm := sp.At(i, res.Len())
@@ -266,12 +267,7 @@ func (s *Solver) takeGuide(sp SweepSpec, res *Result, i int, guide *Result, gj i
 	for k := range res.Probe {
 		res.Probe[k][i] = guide.Probe[k][gj]
 	}
-	for k := range res.Ops {
-		// VGS and VDS from this sweep's own voltages, as recordOps
-		// writes them; the rest is the guide's.
-		mk := &s.sys.mos[k]
-		res.Ops[k].copyPoint(i, &guide.Ops[k], gj, s.v[mk.g]-s.v[mk.s], s.v[mk.d]-s.v[mk.s])
-	}
+	copy(res.Ops[i*nm:(i+1)*nm], guide.Ops[gj*nm:(gj+1)*nm])
 	last := s.pushTangent()
 	copy(last[:m], guide.Tangent[gj*m:(gj+1)*m])
 	clear(last[m:n])

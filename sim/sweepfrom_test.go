@@ -43,16 +43,16 @@ func TestSweepFrom(t *testing.T) {
 		// Where the two sweeps' points coincide (every fifth), the guided
 		// sweep takes the guide's point as it is: gm, probes and operating
 		// points bit for bit.
-		taken := 0
+		taken, nm := 0, len(s.sys.mos)
 		for i := 1; i < warm.Len(); i++ {
 			for k := range coarse.Len() {
 				if math.Abs(coarse.VCM[k]-warm.VCM[i]) > 1e-12 {
 					continue
 				}
 				taken++
-				if warm.GM[i] != coarse.GM[k] || warm.Probe[0][i] != coarse.Probe[0][k] || warm.Ops[0].ID[i] != coarse.Ops[0].ID[k] {
+				if warm.GM[i] != coarse.GM[k] || warm.Probe[0][i] != coarse.Probe[0][k] || warm.Ops[i*nm].ID != coarse.Ops[k*nm].ID {
 					t.Errorf("ekv=%v at vcm %g: gm %g, probe %g, ID %g guided; the guide's %g, %g, %g",
-						ekv, warm.VCM[i], warm.GM[i], warm.Probe[0][i], warm.Ops[0].ID[i], coarse.GM[k], coarse.Probe[0][k], coarse.Ops[0].ID[k])
+						ekv, warm.VCM[i], warm.GM[i], warm.Probe[0][i], warm.Ops[i*nm].ID, coarse.GM[k], coarse.Probe[0][k], coarse.Ops[k*nm].ID)
 				}
 			}
 		}
