@@ -302,14 +302,21 @@ func (s *Solver) predictHermite(vcm float64, res *Result, i, k int) {
 	n, m := s.sys.n, s.sys.nD
 	var wx, wt [hermitePoints]float64
 	var xs, ts [hermitePoints][]float64
+	// inv[a][b] = 1/(s_a − s_b): one division a pair of points.
+	var inv [hermitePoints][hermitePoints]float64
+	for a := range k {
+		for b := a + 1; b < k; b++ {
+			q := 1 / (res.VCM[i-1-a] - res.VCM[i-1-b])
+			inv[a][b], inv[b][a] = q, -q
+		}
+	}
 	for a := range k {
 		sa := res.VCM[i-1-a]
 		la, dla := 1.0, 0.0 // L_a(vcm), L_a'(s_a)
 		for b := range k {
 			if b != a {
-				sb := res.VCM[i-1-b]
-				la *= (vcm - sb) / (sa - sb)
-				dla += 1 / (sa - sb)
+				la *= (vcm - res.VCM[i-1-b]) * inv[a][b]
+				dla += inv[a][b]
 			}
 		}
 		l2, d := la*la, vcm-sa

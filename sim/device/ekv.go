@@ -222,7 +222,10 @@ func (m *ekvInst) EvalLarge(vd, vg, vs, vb float64, ls *LargeSignal) Eval {
 		if sb < 0 {
 			sb = 0
 		}
-		vth := m.vto + m.gamma*(math.Sqrt(sb)-m.sqrtPhi)
+		vth := m.vto // the source at the bulk's potential: no body effect
+		if xsrc != 0 {
+			vth += m.gamma * (math.Sqrt(sb) - m.sqrtPhi)
+		}
 		*ls = LargeSignal{
 			ID:     id,
 			VTH:    s * vth,
