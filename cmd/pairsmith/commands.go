@@ -8,6 +8,7 @@ import (
 	"io"
 	"os"
 	"runtime/debug"
+	"runtime/pprof"
 
 	"github.com/spf13/cobra"
 
@@ -21,13 +22,65 @@ import (
 // run runs the program with args (without the program name), writing to
 // stdout and stderr, and returns the exit code.
 func run(args []string, stdout, stderr io.Writer) int {
+	var prof cpuProfile
 	root := newRoot(stdout, stderr)
+	root.PersistentFlags().StringVar(&prof.path, "cpu-profile", "",
+		"write a CPU profile of the command to `FILE` (go tool pprof; scripts/pgo-profile)")
+	root.PersistentPreRunE = func(*cobra.Command, []string) error {
+		if err := prof.start(); err != nil {
+			return &runError{err}
+		}
+		return nil
+	}
 	root.SetArgs(args)
 	cmd, err := root.ExecuteC()
+	if perr := prof.stop(); err == nil && perr != nil {
+		err = &runError{perr}
+	}
 	if err != nil {
 		return reportError(stderr, cmd, err)
 	}
 	return exitOK
+}
+
+// cpuProfile is the --cpu-profile flag's profile: started before a
+// command's work, stopped and written when the command ends, whatever its
+// outcome.
+type cpuProfile struct {
+	path string
+	f    *os.File
+}
+
+// start opens the profile's file and starts profiling; a file that cannot
+// be created is bad input.
+func (p *cpuProfile) start() error {
+	if p.path == "" {
+		return nil
+	}
+	f, err := os.Create(p.path)
+	if err != nil {
+		return badInput("--cpu-profile: %w", err)
+	}
+	if err := pprof.StartCPUProfile(f); err != nil {
+		f.Close()
+		return fmt.Errorf("--cpu-profile: %w", err)
+	}
+	p.f = f
+	return nil
+}
+
+// stop ends profiling and closes the file, if start opened one.
+func (p *cpuProfile) stop() error {
+	if p.f == nil {
+		return nil
+	}
+	pprof.StopCPUProfile()
+	err := p.f.Close()
+	p.f = nil
+	if err != nil {
+		return fmt.Errorf("--cpu-profile: %w", err)
+	}
+	return nil
 }
 
 // newRoot builds the command tree. Cobra prints neither errors nor usage
