@@ -21,7 +21,8 @@ func luFactor(a []float64, n, ld int, piv []int) bool {
 	if n == 0 {
 		return true
 	}
-	if n == 3 {
+	switch n {
+	case 3:
 		return luFactor3(a, ld, piv)
 	}
 	return factorLoops(a, n, ld, piv)
@@ -146,8 +147,10 @@ func luSolve(a []float64, n, ld int, piv []int, b []float64) {
 			b[k], b[p] = b[p], b[k]
 		}
 	}
-	// The two smallest systems of more than one unknown are unrolled;
-	// BenchmarkLU's loops/n= cases measure what that saves.
+	// The three smallest systems of more than one unknown are unrolled
+	// (n = 4: a 1:3 mirror stage's moving block, the current switch's
+	// whole system); BenchmarkLU's loops/n= cases measure what that
+	// saves.
 	switch n {
 	case 2:
 		b1 := b[1] - a[ld]*b[0]
@@ -162,6 +165,17 @@ func luSolve(a []float64, n, ld int, piv []int, b []float64) {
 		x1 := (b1 - a[r1+2]*x2) * a[r1+1]
 		b[0] = (b[0] - a[1]*x1 - a[2]*x2) * a[0]
 		b[1], b[2] = x1, x2
+	case 4:
+		// substitute's operations for n = 4, in its order.
+		r0, r1, r2, r3 := a[0:4:4], a[ld:ld+4:ld+4], a[2*ld:2*ld+4:2*ld+4], a[3*ld:3*ld+4:3*ld+4]
+		b1 := b[1] - r1[0]*b[0]
+		b2 := b[2] - r2[0]*b[0] - r2[1]*b1
+		b3 := b[3] - r3[0]*b[0] - r3[1]*b1 - r3[2]*b2
+		x3 := b3 * r3[3]
+		x2 := (b2 - r2[3]*x3) * r2[2]
+		x1 := (b1 - r1[2]*x2 - r1[3]*x3) * r1[1]
+		b[0] = (b[0] - r0[1]*x1 - r0[2]*x2 - r0[3]*x3) * r0[0]
+		b[1], b[2], b[3] = x1, x2, x3
 	default:
 		substitute(a, n, ld, b)
 	}

@@ -132,9 +132,9 @@ func BenchmarkLU(b *testing.B) {
 				luSolve(lu, n, n, piv, x)
 			}
 		})
-		if n <= 3 {
-			// The same kernel without luSolve's unrolled small cases
-			// (n = 2 and 3; n = 1 already takes the loops).
+		if n <= 4 {
+			// The loops alone, without the written-out small cases
+			// (n = 2, 3 and 4; n = 1 already takes the loops).
 			b.Run(fmt.Sprintf("loops/n=%d", n), func(b *testing.B) {
 				lu := make([]float64, n*n)
 				x := make([]float64, n)
@@ -143,7 +143,7 @@ func BenchmarkLU(b *testing.B) {
 				for b.Loop() {
 					copy(lu, a)
 					copy(x, rhs)
-					luFactor(lu, n, n, piv)
+					factorLoops(lu, n, n, piv)
 					for k, p := range piv {
 						if p != k {
 							x[k], x[p] = x[p], x[k]
@@ -169,48 +169,70 @@ func BenchmarkLU(b *testing.B) {
 	}
 }
 
-// TestLUFactor3 checks that the written-out 3×3 factorisation gives the
-// loops' factors and pivots bit for bit, and the same verdict on singular
-// blocks, for random blocks inside larger arrays (with every pivot order)
-// and blocks with zero or non-finite pivots.
-func TestLUFactor3(t *testing.T) {
-	rng := rand.New(rand.NewPCG(9, 10))
-	var cases [][]float64
-	for trial := 0; trial < 300; trial++ {
-		a, _ := randomSystem(rng, 5, trial%2 == 1)
-		cases = append(cases, a)
-	}
-	for _, bad := range [][3]int{{0, 0, 0}, {1, 1, 1}, {2, 2, 2}} {
-		for _, v := range []float64{0, math.NaN(), math.Inf(1)} {
-			a, _ := randomSystem(rng, 5, false)
-			// Make column bad[0] of every row in the block v, or row-wise
-			// dependent, so that each elimination step can fail.
-			for i := 0; i < 3; i++ {
-				a[i*5+bad[0]] = v
-			}
+// TestLUWrittenOut checks that luFactor gives the loops' factors and
+// pivots bit for bit (the 3×3 case is written out in registers), and the
+// same verdict on singular blocks, and that luSolve's written-out
+// substitutions (n = 3 and 4) give substitute's solution bit for bit — for
+// random blocks inside larger arrays (with every pivot order) and blocks
+// with zero or non-finite pivots. (The loops themselves are checked
+// against gonum by TestLUAgainstGonum.)
+func TestLUWrittenOut(t *testing.T) {
+	for _, n := range []int{3, 4} {
+		ld := n + 2
+		rng := rand.New(rand.NewPCG(9, uint64(n)))
+		var cases [][]float64
+		for trial := 0; trial < 300; trial++ {
+			a, _ := randomSystem(rng, ld, trial%2 == 1)
 			cases = append(cases, a)
-			dep, _ := randomSystem(rng, 5, false)
-			copy(dep[5:8], dep[0:3]) // rows 0 and 1 equal: singular at step 1
-			cases = append(cases, dep)
 		}
-	}
-	for k, a := range cases {
-		x, y := append([]float64(nil), a...), append([]float64(nil), a...)
-		px, py := make([]int, 3), make([]int, 3)
-		okx, oky := luFactor3(x, 5, px), factorLoops(y, 3, 5, py)
-		if okx != oky {
-			t.Fatalf("case %d: written out %v, loops %v", k, okx, oky)
-		}
-		if !okx {
-			continue
-		}
-		for i := range x {
-			if math.Float64bits(x[i]) != math.Float64bits(y[i]) {
-				t.Fatalf("case %d: entry %d: written out %v, loops %v", k, i, x[i], y[i])
+		for col := range n {
+			for _, v := range []float64{0, math.NaN(), math.Inf(1)} {
+				a, _ := randomSystem(rng, ld, false)
+				// Make column col of every row in the block v, or two rows
+				// equal, so that each elimination step can fail.
+				for i := range n {
+					a[i*ld+col] = v
+				}
+				cases = append(cases, a)
+				dep, _ := randomSystem(rng, ld, false)
+				copy(dep[ld:ld+n], dep[0:n]) // rows 0 and 1 equal: singular at step 1
+				cases = append(cases, dep)
 			}
 		}
-		if px[0] != py[0] || px[1] != py[1] || px[2] != py[2] {
-			t.Fatalf("case %d: pivots %v, loops %v", k, px, py)
+		for k, a := range cases {
+			x, y := append([]float64(nil), a...), append([]float64(nil), a...)
+			px, py := make([]int, n), make([]int, n)
+			okx, oky := luFactor(x, n, ld, px), factorLoops(y, n, ld, py)
+			if okx != oky {
+				t.Fatalf("n=%d case %d: written out %v, loops %v", n, k, okx, oky)
+			}
+			if !okx {
+				continue
+			}
+			for i := range x {
+				if math.Float64bits(x[i]) != math.Float64bits(y[i]) {
+					t.Fatalf("n=%d case %d: entry %d: written out %v, loops %v", n, k, i, x[i], y[i])
+				}
+			}
+			for i := range px {
+				if px[i] != py[i] {
+					t.Fatalf("n=%d case %d: pivots %v, loops %v", n, k, px, py)
+				}
+			}
+			_, rhs := randomSystem(rng, n, false)
+			bx, by := append([]float64(nil), rhs...), append([]float64(nil), rhs...)
+			luSolve(x, n, ld, px, bx)
+			for i, p := range py {
+				if p != i {
+					by[i], by[p] = by[p], by[i]
+				}
+			}
+			substitute(y, n, ld, by)
+			for i := range bx {
+				if math.Float64bits(bx[i]) != math.Float64bits(by[i]) {
+					t.Fatalf("n=%d case %d: solution %v, loops %v", n, k, bx, by)
+				}
+			}
 		}
 	}
 }
