@@ -214,10 +214,16 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 			if same && s.takeGuide(sp, res, i, guide, gj) {
 				continue
 			}
-			if same {
+			switch {
+			case same:
 				copy(s.v[:m], guide.X[gj*n:gj*n+m])
-			} else {
-				s.predictHermite(vcm, res, i, min(i-lo, hermitePoints))
+			case guide != nil && gj < guide.Len() && len(guide.Tangent) == guide.Len()*m && guide.Moving == m:
+				// The guide's next point, ahead, with the last solutions:
+				// interpolation rather than extrapolation.
+				ahead := hermiteNode{guide.VCM[gj], guide.X[gj*n : gj*n+m], guide.Tangent[gj*m : (gj+1)*m]}
+				s.predictHermite(vcm, res, i, min(i-lo, hermitePoints), &ahead)
+			default:
+				s.predictHermite(vcm, res, i, min(i-lo, hermitePoints), nil)
 			}
 			if !s.newtonMoving(vcm, sp.VID, s.opt.MaxIter) {
 				if err := s.recover(res.VCM[i-1], prev, vcm, sp.VID); err != nil {
@@ -286,60 +292,88 @@ const sameVCM = 1e-12
 // the sweep's predictor interpolates: three, a polynomial of degree five.
 const hermitePoints = 3
 
+// hermiteNode is a point the sweep's predictor interpolates: its common
+// mode, and its moving unknowns and their tangent dx/dvcm.
+type hermiteNode struct {
+	vcm  float64
+	x, t []float64
+}
+
+// maxHermiteNodes is the most points predictFrom interpolates: the last
+// hermitePoints solutions and a guide's point ahead.
+const maxHermiteNodes = hermitePoints + 1
+
 // predictHermite sets the moving unknowns to the prediction at vcm for
-// point i: the Hermite polynomial through the last k ≤ hermitePoints
-// solutions x_a and their tangents t_a (s.tan), uneven steps allowed,
+// point i of res from the last k ≤ hermitePoints solutions and their
+// tangents (s.tan), and ahead, a guide's point (nil for none).
+func (s *Solver) predictHermite(vcm float64, res *Result, i, k int, ahead *hermiteNode) {
+	n, m := s.sys.n, s.sys.nD
+	var nodes [maxHermiteNodes]hermiteNode
+	for a := range k {
+		nodes[a] = hermiteNode{res.VCM[i-1-a], res.X[(i-1-a)*n : (i-1-a)*n+m], s.tan[a][:m]}
+	}
+	if ahead != nil {
+		nodes[k] = *ahead
+		k++
+	}
+	s.predictFrom(vcm, nodes[:k])
+}
+
+// predictFrom sets the moving unknowns to the Hermite polynomial at vcm
+// through the nodes' solutions x_a and tangents t_a (at most
+// maxHermiteNodes, uneven steps allowed),
 //
 //	p(s) = Σ_a [(1 − 2·L_a'(s_a)·(s − s_a))·x_a + (s − s_a)·t_a]·L_a(s)²
 //
-// with L_a the Lagrange basis over the k points (R. L. Burden and J. D.
+// with L_a the Lagrange basis over the nodes (R. L. Burden and J. D.
 // Faires, Numerical Analysis, 9th ed., §3.4): the predictor of a
 // predictor–corrector continuation (Allgower and Georg, Numerical
-// Continuation Methods, 1990, ch. 2). Its error grows as the step to the
-// power 2k, where extrapolating k+1 solutions alone grows as k+1. The
-// weights are the same for every unknown: 2k products a point each.
-func (s *Solver) predictHermite(vcm float64, res *Result, i, k int) {
-	n, m := s.sys.n, s.sys.nD
-	var wx, wt [hermitePoints]float64
-	var xs, ts [hermitePoints][]float64
-	// inv[a][b] = 1/(s_a − s_b): one division a pair of points.
-	var inv [hermitePoints][hermitePoints]float64
+// Continuation Methods, 1990, ch. 2). Its error grows as the product of
+// the squared distances to the nodes, where extrapolating k+1 solutions
+// alone grows as the product of the distances. The weights are the same
+// for every unknown: 2k products a point each.
+func (s *Solver) predictFrom(vcm float64, nodes []hermiteNode) {
+	k := len(nodes)
+	var wx, wt [maxHermiteNodes]float64
+	// inv[a][b] = 1/(s_a − s_b): one division a pair of nodes.
+	var inv [maxHermiteNodes][maxHermiteNodes]float64
 	for a := range k {
 		for b := a + 1; b < k; b++ {
-			q := 1 / (res.VCM[i-1-a] - res.VCM[i-1-b])
+			q := 1 / (nodes[a].vcm - nodes[b].vcm)
 			inv[a][b], inv[b][a] = q, -q
 		}
 	}
 	for a := range k {
-		sa := res.VCM[i-1-a]
 		la, dla := 1.0, 0.0 // L_a(vcm), L_a'(s_a)
 		for b := range k {
 			if b != a {
-				la *= (vcm - res.VCM[i-1-b]) * inv[a][b]
+				la *= (vcm - nodes[b].vcm) * inv[a][b]
 				dla += inv[a][b]
 			}
 		}
-		l2, d := la*la, vcm-sa
+		l2, d := la*la, vcm-nodes[a].vcm
 		wx[a], wt[a] = (1-2*dla*d)*l2, d*l2
-		xs[a], ts[a] = res.X[(i-1-a)*n:(i-1-a)*n+m], s.tan[a][:m]
 	}
-	v := s.v[:m]
+	v := s.v[:s.sys.nD]
 	switch k {
 	case 1:
-		x0, t0 := xs[0][:len(v)], ts[0][:len(v)]
+		x0, t0 := nodes[0].x[:len(v)], nodes[0].t[:len(v)]
 		for j := range v {
 			v[j] = wx[0]*x0[j] + wt[0]*t0[j]
 		}
-	case 2:
-		x0, t0, x1, t1 := xs[0][:len(v)], ts[0][:len(v)], xs[1][:len(v)], ts[1][:len(v)]
-		for j := range v {
-			v[j] = wx[0]*x0[j] + wt[0]*t0[j] + wx[1]*x1[j] + wt[1]*t1[j]
-		}
-	default:
-		x0, t0, x1, t1 := xs[0][:len(v)], ts[0][:len(v)], xs[1][:len(v)], ts[1][:len(v)]
-		x2, t2 := xs[2][:len(v)], ts[2][:len(v)]
+	case 3:
+		x0, t0, x1, t1 := nodes[0].x[:len(v)], nodes[0].t[:len(v)], nodes[1].x[:len(v)], nodes[1].t[:len(v)]
+		x2, t2 := nodes[2].x[:len(v)], nodes[2].t[:len(v)]
 		for j := range v {
 			v[j] = wx[0]*x0[j] + wt[0]*t0[j] + wx[1]*x1[j] + wt[1]*t1[j] + wx[2]*x2[j] + wt[2]*t2[j]
+		}
+	default:
+		clear(v)
+		for a, nd := range nodes {
+			x, t := nd.x[:len(v)], nd.t[:len(v)]
+			for j := range v {
+				v[j] += wx[a]*x[j] + wt[a]*t[j]
+			}
 		}
 	}
 }

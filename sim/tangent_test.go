@@ -50,7 +50,8 @@ func TestTangent(t *testing.T) {
 // TestPredictHermite: the predictor through k points with their tangents
 // is exact for a polynomial of degree 2k − 1 (the Hermite interpolant's
 // defining property; Burden and Faires, Numerical Analysis, §3.4), here
-// with uneven steps, for k = 1, 2, 3; within 1e-12 of the polynomial.
+// with uneven steps, for k = 1, 2, 3 points behind and for three behind
+// and a guide's point ahead (k = 4); within 1e-12 of the polynomial.
 func TestPredictHermite(t *testing.T) {
 	s, err := NewSolver(railStage(true, 1, 1), Options{})
 	if err != nil {
@@ -67,22 +68,31 @@ func TestPredictHermite(t *testing.T) {
 		return p, dp
 	}
 	vs := []float64{0.1, 0.13, 0.14, 0.2} // the last is predicted
-	for k := 1; k <= hermitePoints; k++ {
+	const aheadVCM = 0.25
+	for _, c := range []struct{ behind, k int }{{1, 1}, {2, 2}, {3, 3}, {3, 4}} {
+		deg := 2*c.k - 1
 		res := Result{VCM: vs[:3], X: make([]float64, 3*n), Unknowns: n}
 		for a := range 3 {
 			for j := range m {
-				x, dx := poly(j, 2*k-1, vs[a])
+				x, dx := poly(j, deg, vs[a])
 				res.X[a*n+j] = x
-				if back := 2 - a; back < k {
+				if back := 2 - a; back < c.behind {
 					s.tan[back][j] = dx
 				}
 			}
 		}
-		s.predictHermite(vs[3], &res, 3, k)
+		var ahead *hermiteNode
+		if c.k > c.behind {
+			ahead = &hermiteNode{vcm: aheadVCM, x: make([]float64, m), t: make([]float64, m)}
+			for j := range m {
+				ahead.x[j], ahead.t[j] = poly(j, deg, aheadVCM)
+			}
+		}
+		s.predictHermite(vs[3], &res, 3, c.behind, ahead)
 		for j := range m {
-			want, _ := poly(j, 2*k-1, vs[3])
+			want, _ := poly(j, deg, vs[3])
 			if math.Abs(s.v[j]-want) > 1e-12*math.Max(1, math.Abs(want)) {
-				t.Errorf("k = %d, unknown %d: predicted %.15g, the polynomial %.15g", k, j, s.v[j], want)
+				t.Errorf("k = %d (%d behind), unknown %d: predicted %.15g, the polynomial %.15g", c.k, c.behind, j, s.v[j], want)
 			}
 		}
 	}
