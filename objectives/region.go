@@ -181,17 +181,17 @@ func Assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 // assessScratch holds the buffers Assess fills, kept by a search's
 // solvers (SolverCache) from one evaluation to the next.
 type assessScratch struct {
-	volts     sim.Voltages
-	col       sim.OpColumn
-	work, low []bool
+	volts             sim.Voltages
+	col               sim.OpColumn
+	work, low, exempt []bool
 }
 
-// flags returns scr's work and low flags for n points.
-func (scr *assessScratch) flags(n int) (work, low []bool) {
+// flags returns scr's work, low and exempt flags for n points.
+func (scr *assessScratch) flags(n int) (work, low, exempt []bool) {
 	if cap(scr.work) < n {
-		scr.work, scr.low = make([]bool, n), make([]bool, n)
+		scr.work, scr.low, scr.exempt = make([]bool, n), make([]bool, n), make([]bool, n)
 	}
-	return scr.work[:n], scr.low[:n]
+	return scr.work[:n], scr.low[:n], scr.exempt[:n]
 }
 
 // assess is Assess with its buffers in scr; a long sweep's parallel
@@ -236,17 +236,31 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 	// search's), or DeviceColumn works them out from the solution.
 	volts := &scr.volts
 	s.Voltages(res, volts)
+	one := func(k int, scr *assessScratch) []Finding {
+		work, low, exempt := scr.flags(n)
+		s.DeviceColumn(volts, k, &scr.col)
+		return assessDevice(st.Devices[k], &scr.col, res, work, low, exempt, minor, kind, margin, ut)
+	}
+	// A search's short sweeps are checked on the goroutine that swept
+	// them, device by device.
+	if n < parallelPoints {
+		for k := range st.Devices {
+			if want[k] {
+				out = append(out, one(k, scr)...)
+			}
+		}
+		return out
+	}
+	// A long sweep's devices are checked in parallel, each worker with its
+	// own column and flags, the devices that move first, the frozen ones
+	// (one model evaluation each) after them, so that the workers end
+	// together. The findings keep the devices' order.
 	per := make([][]Finding, len(st.Devices))
 	check := func(ks <-chan int, scr *assessScratch) {
-		work, low := scr.flags(n)
 		for k := range ks {
-			col := &scr.col
-			s.DeviceColumn(volts, k, col)
-			per[k] = assessDevice(st.Devices[k], col, res, work, low, minor, kind, margin, ut)
+			per[k] = one(k, scr)
 		}
 	}
-	// The devices that move first, the frozen ones (one model evaluation
-	// each) after them: parallel workers then end together.
 	next := make(chan int, len(st.Devices))
 	for _, frozen := range []bool{false, true} {
 		for k := range st.Devices {
@@ -256,18 +270,11 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 		}
 	}
 	close(next)
-	// A long sweep's devices are checked in parallel, each worker with its
-	// own column and flags; a search's short sweeps on the goroutine that
-	// swept them. The findings keep the devices' order either way.
-	if n < parallelPoints {
-		check(next, scr)
-	} else {
-		var wg sync.WaitGroup
-		for range min(runtime.GOMAXPROCS(0), len(st.Devices)) {
-			wg.Go(func() { check(next, &assessScratch{}) })
-		}
-		wg.Wait()
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), len(st.Devices)) {
+		wg.Go(func() { check(next, &assessScratch{}) })
 	}
+	wg.Wait()
 	for _, fs := range per {
 		out = append(out, fs...)
 	}
@@ -282,7 +289,7 @@ const parallelPoints = 1000
 // assessDevice makes the saturation and validity checks of one device
 // over a sweep from its operating points col, with work and low as its
 // scratch space.
-func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, work, low []bool,
+func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, work, low, exempt []bool,
 	minor func(topologies.Side, int) bool, kind string, margin, ut float64) []Finding {
 	var out []Finding
 	n := res.Len()
@@ -306,7 +313,7 @@ func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, wor
 		low[i] = math.Abs(vds[i])-math.Abs(vdsat[i]) < margin
 	}
 	if dev.Duty == topologies.Saturated {
-		exempt := railTurnOff(n, func(i int) bool { return low[i] }, func(i int) bool { return work[i] },
+		railTurnOffInto(exempt, func(i int) bool { return low[i] }, func(i int) bool { return work[i] },
 			func(i int) bool { return minor(dev.Side, i) })
 		f := Finding{Check: CheckSaturation, Device: dev.Name, Role: dev.Role}
 		for i, x := range vcm {
@@ -365,6 +372,14 @@ func Checked(st *topologies.Stage, kind string) []bool {
 // current, is not exempt.
 func railTurnOff(n int, short, working, minor func(int) bool) []bool {
 	exempt := make([]bool, n)
+	railTurnOffInto(exempt, short, working, minor)
+	return exempt
+}
+
+// railTurnOffInto is railTurnOff into exempt, one flag a point.
+func railTurnOffInto(exempt []bool, short, working, minor func(int) bool) {
+	n := len(exempt)
+	clear(exempt)
 	mark := func(from, step int) {
 		end, off := from, false
 		for i := from; i >= 0 && i < n && short(i); i += step {
@@ -383,7 +398,6 @@ func railTurnOff(n int, short, working, minor func(int) bool) []bool {
 	}
 	mark(0, 1)
 	mark(n-1, -1)
-	return exempt
 }
 
 // add counts a failing point of a swept check at common mode vcm, with

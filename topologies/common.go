@@ -28,8 +28,10 @@ var (
 	pVHead = Param{Name: "vhead", Unit: units.Volt, Size: Headroom, Min: 0.05, Max: 0.6, Default: 0.2, Scale: Linear, Doc: "headroom of the summing nodes from the rails (at least the summing stage's V_DSAT plus the saturation margin)"}
 )
 
-func pairParams(n, p bool) []Param {
-	var ps []Param
+func pairParams(n, p bool, extra ...Param) []Param {
+	// One allocation: the search reads a family's parameters several times
+	// an evaluation.
+	ps := make([]Param, 0, 9+len(extra))
 	if n {
 		ps = append(ps, pWN, pLN)
 	}
@@ -43,7 +45,8 @@ func pairParams(n, p bool) []Param {
 	if p {
 		ps = append(ps, pWTP)
 	}
-	return append(ps, pLT, pKBias, pVHead)
+	ps = append(ps, pLT, pKBias, pVHead)
+	return append(ps, extra...)
 }
 
 // builder assembles a stage and its bench.

@@ -31,7 +31,7 @@ func (mirror1to3) Summary() string {
 	return "both tails; two current switches feed 1:3 mirrors so one pair alone carries four times the current"
 }
 func (mirror1to3) Params() []Param {
-	return append(pairParams(true, true), pVRefN, pVRefP, pWSwN, pWSwP, pWMN, pWMP)
+	return pairParams(true, true, pVRefN, pVRefP, pWSwN, pWSwP, pWMN, pWMP)
 }
 
 func (f mirror1to3) Build(v Values, cond Conditions) (*Stage, error) {

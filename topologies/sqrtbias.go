@@ -53,7 +53,7 @@ func (sqrtBias) Summary() string {
 	return "a translinear square-root loop steered by an NMOS replica keeps √I_n + √I_p constant"
 }
 func (sqrtBias) Params() []Param {
-	return append(pairParams(true, true), pWL, pKR, pWQ, pKeep)
+	return pairParams(true, true, pWL, pKR, pWQ, pKeep)
 }
 
 func (f sqrtBias) Build(v Values, cond Conditions) (*Stage, error) {

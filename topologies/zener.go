@@ -33,7 +33,7 @@ func (zener) Summary() string {
 	return "both tails joined by an electronic zener that holds V_GS,n + V_SG,p constant"
 }
 func (zener) Params() []Param {
-	return append(pairParams(true, true), pWZ, pLZ, pWR, pIR)
+	return pairParams(true, true, pWZ, pLZ, pWR, pIR)
 }
 
 func (f zener) Build(v Values, cond Conditions) (*Stage, error) {
