@@ -145,3 +145,47 @@ func agree(t *testing.T, ekv bool, how string, got, fresh *Result) {
 		}
 	}
 }
+
+// TestLongSweepPredictor: a sweep of SplitPoints points or more predicts
+// each point from the last three solutions alone (predictLagrange, no
+// tangent solve); its steps are short enough that one Newton iteration a
+// point remains the rule (at most 1.02 a point over the sweep, our bound,
+// no source: one load a point is the floor), and its points agree with
+// fresh solves within twice the solver's tolerance and gm within 1e-5 of
+// itself — for both models, across the handover of the rail-to-rail stage.
+func TestLongSweepPredictor(t *testing.T) {
+	for _, ekv := range []bool{false, true} {
+		s, err := NewSolver(railStage(ekv, 1, 1), Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		sp := SweepSpec{Low: 0, High: 1.8, Step: 1.8 / (SplitPoints + 999)}
+		var long Result
+		it := s.Iterations()
+		if err := s.SweepParallel(sp, &long, 2); err != nil {
+			t.Fatal(err)
+		}
+		if len(long.Tangent) != 0 {
+			t.Fatalf("ekv=%v: a sweep of %d points recorded tangents", ekv, long.Len())
+		}
+		per := float64(s.Iterations()-it) / float64(long.Len())
+		t.Logf("ekv=%v: %.4f iterations a point", ekv, per)
+		if per > 1.02 {
+			t.Errorf("ekv=%v: %.4f Newton iterations a point over %d points, want at most 1.02", ekv, per, long.Len())
+		}
+		// Every 97th point against a fresh solve there.
+		var got, fresh Result
+		for i := 0; i < long.Len(); i += 97 {
+			p, err := s.Solve(long.VCM[i], 0)
+			if err != nil {
+				t.Fatal(err)
+			}
+			got.VCM, got.GM = append(got.VCM, long.VCM[i]), append(got.GM, long.GM[i])
+			got.X = append(got.X, long.X[i*long.Unknowns:(i+1)*long.Unknowns]...)
+			fresh.VCM, fresh.GM = append(fresh.VCM, p.VCM), append(fresh.GM, p.GM)
+			fresh.X = append(fresh.X, p.V[:long.Unknowns]...)
+		}
+		got.Unknowns, fresh.Unknowns = long.Unknowns, long.Unknowns
+		agree(t, ekv, "in a long sweep", &got, &fresh)
+	}
+}
