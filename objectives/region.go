@@ -241,21 +241,48 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 		s.DeviceColumn(volts, k, &scr.col)
 		return assessDevice(st.Devices[k], &scr.col, res, work, low, exempt, minor, kind, margin, ut)
 	}
+	// A device whose twin (sim.Solver.Twin: the other half of its pair at
+	// vid = 0) does the same duty on the same side has the twin's findings
+	// under its own name.
+	twin := make([]int, len(st.Devices))
+	for k, dev := range st.Devices {
+		twin[k] = -1
+		if !want[k] {
+			continue
+		}
+		if j := s.Twin(volts, k); j >= 0 && want[j] && st.Devices[j].Duty == dev.Duty && st.Devices[j].Side == dev.Side {
+			twin[k] = j
+		}
+	}
+	per := make([][]Finding, len(st.Devices))
+	gather := func() []Finding {
+		for k, j := range twin {
+			if j >= 0 {
+				per[k] = slices.Clone(per[j])
+				for f := range per[k] {
+					per[k][f].Device, per[k][f].Role = st.Devices[k].Name, st.Devices[k].Role
+				}
+			}
+		}
+		for _, fs := range per {
+			out = append(out, fs...)
+		}
+		return out
+	}
 	// A search's short sweeps are checked on the goroutine that swept
 	// them, device by device.
 	if n < parallelPoints {
 		for k := range st.Devices {
-			if want[k] {
-				out = append(out, one(k, scr)...)
+			if want[k] && twin[k] < 0 {
+				per[k] = one(k, scr)
 			}
 		}
-		return out
+		return gather()
 	}
 	// A long sweep's devices are checked in parallel, each worker with its
 	// own column and flags, the devices that move first, the frozen ones
 	// (one model evaluation each) after them, so that the workers end
 	// together. The findings keep the devices' order.
-	per := make([][]Finding, len(st.Devices))
 	check := func(ks <-chan int, scr *assessScratch) {
 		for k := range ks {
 			per[k] = one(k, scr)
@@ -264,7 +291,7 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 	next := make(chan int, len(st.Devices))
 	for _, frozen := range []bool{false, true} {
 		for k := range st.Devices {
-			if want[k] && s.Frozen(k) == frozen {
+			if want[k] && twin[k] < 0 && s.Frozen(k) == frozen {
 				next <- k
 			}
 		}
@@ -275,10 +302,7 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 		wg.Go(func() { check(next, &assessScratch{}) })
 	}
 	wg.Wait()
-	for _, fs := range per {
-		out = append(out, fs...)
-	}
-	return out
+	return gather()
 }
 
 // parallelPoints is the sweep length from which Assess checks devices in

@@ -160,6 +160,44 @@ func (s *Solver) Voltages(res *Result, into *Voltages) {
 // evaluation, however long the sweep.
 func (s *Solver) Frozen(k int) bool { return s.sys.mos[k].frozen }
 
+// Twin returns an earlier transistor j < k whose instance is alike k's
+// (the same card and size, no SetInstance of its own) and whose four
+// terminals have bitwise the voltages of k's at every point of v — the
+// two halves of a pair swept at vid = 0 — or −1: a twin's operating points
+// are k's, bit for bit, and need not be worked out again.
+func (s *Solver) Twin(v *Voltages, k int) int {
+	mos, u := s.sys.mos, s.sys.n
+	mk := &mos[k]
+	for j := range k {
+		mj := &mos[j]
+		if mj.id != mk.id {
+			continue
+		}
+		same := true
+		for t, a := range [4]int{mk.d, mk.g, mk.s, mk.b} {
+			b := [4]int{mj.d, mj.g, mj.s, mj.b}[t]
+			if a != b && !v.column(a, u).equal(v.column(b, u), v.points) {
+				same = false
+				break
+			}
+		}
+		if same {
+			return j
+		}
+	}
+	return -1
+}
+
+// equal reports whether two columns hold bitwise the same n values.
+func (c column) equal(o column, n int) bool {
+	for i, jc, jo := 0, c.off, o.off; i < n; i, jc, jo = i+1, jc+c.stride, jo+o.stride {
+		if math.Float64bits(c.data[jc]) != math.Float64bits(o.data[jo]) {
+			return false
+		}
+	}
+	return true
+}
+
 // DeviceColumn fills col with transistor k's operating point (in the
 // circuit's order of transistors) at every point of the sweep whose
 // voltages v holds: VGS and VDS from the voltages, the rest from what

@@ -131,3 +131,49 @@ func TestRecordedOps(t *testing.T) {
 		}
 	}
 }
+
+// TestTwin: at vid = 0 the two halves of each pair of the rail-to-rail
+// stage are twins (Solver.Twin), and every twin's column equals its
+// twin's bit for bit (the property the checks rely on to work one out
+// once); at vid = 1 mV the input halves differ and fewer twins remain,
+// each still equal bit for bit — for both models, a short and a long
+// sweep.
+func TestTwin(t *testing.T) {
+	for _, ekv := range []bool{false, true} {
+		s, err := NewSolver(railStage(ekv, 1, 1), Options{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		twins := map[float64]int{}
+		for _, vid := range []float64{0, 1e-3} {
+			for _, step := range []float64{0.01, 1.8 / (SplitPoints + 99)} {
+				var res Result
+				if err := s.SweepParallel(SweepSpec{Low: 0, High: 1.8, Step: step, VID: vid}, &res, 2); err != nil {
+					t.Fatal(err)
+				}
+				var v Voltages
+				s.Voltages(&res, &v)
+				found := 0
+				for k := range s.sys.mos {
+					j := s.Twin(&v, k)
+					if j < 0 {
+						continue
+					}
+					found++
+					var a, b OpColumn
+					s.DeviceColumn(&v, k, &a)
+					s.DeviceColumn(&v, j, &b)
+					for i := range res.Len() {
+						if a.At(i) != b.At(i) {
+							t.Fatalf("ekv=%v vid %g: transistor %d, twin of %d, at vcm %g: %+v against %+v", ekv, vid, k, j, res.VCM[i], a.At(i), b.At(i))
+						}
+					}
+				}
+				twins[vid] = found
+			}
+		}
+		if twins[0] < 2 || twins[1e-3] >= twins[0] {
+			t.Errorf("ekv=%v: %d twins at vid = 0, %d at 1 mV: want the two pairs' halves at 0 and fewer at 1 mV", ekv, twins[0], twins[1e-3])
+		}
+	}
+}
