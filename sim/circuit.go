@@ -165,6 +165,29 @@ func (c *Circuit) NodeName(n Node) string {
 func (c *Circuit) NumNodes() int { return len(c.names) }
 
 // AddMosfet adds a transistor.
+// Reserve makes room for about nodes nodes, mosfets transistors and
+// vsources voltage sources, so that a builder that knows its circuit's
+// size adds them without growing the lists (a search builds a circuit
+// per candidate). It changes nothing else.
+func (c *Circuit) Reserve(nodes, mosfets, vsources int) {
+	if cap(c.names) < nodes+1 {
+		c.names = append(make([]string, 0, nodes+1), c.names...)
+	}
+	if len(c.index) < nodes {
+		index := make(map[string]Node, nodes+2) // and "0", "gnd"
+		for k, v := range c.index {
+			index[k] = v
+		}
+		c.index = index
+	}
+	if cap(c.Mosfets) < mosfets {
+		c.Mosfets = append(make([]Mosfet, 0, mosfets), c.Mosfets...)
+	}
+	if cap(c.VSources) < vsources {
+		c.VSources = append(make([]VSource, 0, vsources), c.VSources...)
+	}
+}
+
 func (c *Circuit) AddMosfet(name string, d, g, s, b Node, m device.Model, geom device.Geometry) {
 	c.Mosfets = append(c.Mosfets, Mosfet{Name: name, D: d, G: g, S: s, B: b, Model: m, Geom: geom})
 }

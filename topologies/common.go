@@ -3,6 +3,7 @@ package topologies
 import (
 	"fmt"
 	"math"
+	"strconv"
 
 	"pairsmith/sim"
 	"pairsmith/sim/device"
@@ -67,6 +68,14 @@ type builder struct {
 	sides      map[sim.Node]Side
 }
 
+// The sizes a builder reserves for its circuit: the largest family's
+// (the square-root loop) with room to spare.
+const (
+	builderNodes   = 24
+	builderMosfets = 20
+	builderSources = 16
+)
+
 // newBuilder starts a circuit: supply and the two inputs,
 // inp = vcm + vid/2 and inn = vcm − vid/2.
 func newBuilder(f Family, v Values, cond Conditions) (*builder, error) {
@@ -87,12 +96,13 @@ func newBuilder(f Family, v Values, cond Conditions) (*builder, error) {
 	// (parsed back with rational arithmetic) cost 1.5 % of a search.
 	title := fmt.Sprintf("%s on %s at %.6gV, %.6gC", family, cond.Process.Name, cond.Supply, cond.TempK-units.ZeroCelsius)
 	c := sim.New(title, cond.TempK)
+	c.Reserve(builderNodes, builderMosfets, builderSources)
 	b := &builder{
 		c: c, v: v, cond: cond, rules: cond.Process.Rules,
 		nm: cond.Process.Card(device.NMOS), pm: cond.Process.Card(device.PMOS),
 		sides: map[sim.Node]Side{},
 	}
-	b.st = &Stage{Family: family, Circuit: c}
+	b.st = &Stage{Family: family, Circuit: c, Devices: make([]Device, 0, builderMosfets)}
 	b.vdd = c.Node("vdd")
 	b.gnd = sim.Ground
 	b.inp = c.Node("inp")
@@ -140,7 +150,7 @@ func (b *builder) mosInWell(t device.Type, role string, duty Duty, d, g, s sim.N
 // drawn size breaks.
 func (b *builder) addMos(t device.Type, role string, duty Duty, d, g, s, bulk sim.Node, w, l float64) string {
 	b.count++
-	name := fmt.Sprintf("M%d", b.count)
+	name := "M" + strconv.Itoa(b.count)
 	m := b.nm
 	if t == device.PMOS {
 		m = b.pm
