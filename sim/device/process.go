@@ -24,6 +24,12 @@ type Process struct {
 	N, P  Model   // the NMOS and PMOS cards: *Level1 or *EKV
 	// Rules are the geometry rules and the saturation margin.
 	Rules Rules
+	// Corners are the process corners the file defines, the typical one
+	// (tt, the cards as written) first; a file without any has tt only.
+	Corners []Corner
+	// Corner names the corner whose cards N and P are (AtCorner): tt
+	// for the cards as written.
+	Corner string
 
 	// File is the file the process was read from, as given to
 	// ReadProcess; pos holds the line and text of every card value
@@ -117,6 +123,8 @@ func LoadProcess(path string) (*Process, error) {
 //	nmos: {vto: 0.45V, kp: 280uA/V2, gamma: 0.5, phi: 0.8V, lambda: 0.05}
 //	pmos: {vto: -0.45V, kp: 70uA/V2, gamma: 0.45, phi: 0.8V, lambda: 0.06}
 //	rules: {wmin: 0.22um, lmin: 0.18um, grid: 5nm}   # optional; see Rules
+//	corners:                                          # optional; see readCorners
+//	  ff: {nmos: {dvt: -40mV, dkp: 8%}, pmos: {dvt: -50mV, dkp: 8%}}
 //
 // Each card takes vto (V, SPICE sign: positive for an NMOS, negative for a
 // PMOS) and kp (A/V²), both required; gamma (√V, default 0), phi (V,
@@ -142,7 +150,7 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := m.Check("name", "doc", "model", "tnom", "nmos", "pmos", "rules"); err != nil {
+	if err := m.Check("name", "doc", "model", "tnom", "nmos", "pmos", "rules", "corners"); err != nil {
 		return nil, err
 	}
 	if err := m.Require("model", "nmos", "pmos"); err != nil {
@@ -179,6 +187,10 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 	if p.Rules, err = readRules(m, p.pos); err != nil {
 		return nil, err
 	}
+	if p.Corners, err = readCorners(m, p.N, p.P); err != nil {
+		return nil, err
+	}
+	p.Corner = Typical
 	return p, nil
 }
 
