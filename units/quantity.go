@@ -45,6 +45,8 @@ const (
 	VoltPerKelvin              // V/K, a threshold temperature coefficient
 	PerVolt                    // 1/V, channel-length modulation; "0.05/V"
 	SqrtVolt                   // √V, body-effect coefficient; "0.5V^0.5"
+	VoltMetre                  // V·m, Pelgrom's A_VT; "5mV*um"
+	PercentMetre               // m, Pelgrom's A_β as a fraction times a length; "1%*um"
 	numDims
 )
 
@@ -139,6 +141,12 @@ var dims = [numDims]dimInfo{
 		fixed(0, "/V", "1/V", "V^-1"), []candidate{{"/V", 0}}},
 	SqrtVolt: {"coefficient in √V", "a coefficient in √V", "√V", "0.5V^0.5",
 		fixed(0, "V^0.5", "V^(1/2)", "sqrt(V)", "√V"), []candidate{{"V^0.5", 0}}},
+	VoltMetre: {"mismatch coefficient in V·m", "a mismatch coefficient in V·m", "V·m", "5mV*um",
+		append(fixed(0, "V*m", "V·m"), fixed(-9, "mV*um", "mV·um", "mV*µm", "mV·µm", "mV*μm", "mV·μm")...),
+		[]candidate{{"V*m", 0}, {"mV*um", -9}}},
+	PercentMetre: {"mismatch coefficient in m", "a mismatch coefficient in %·µm", "m", "1%*um",
+		append(fixed(0, "m"), fixed(-8, "%*um", "%·um", "%*µm", "%·µm", "%*μm", "%·μm")...),
+		[]candidate{{"m", 0}, {"%*um", -8}}},
 }
 
 func temperatureSpellings() []spelling {

@@ -37,6 +37,14 @@ func TestParseGood(t *testing.T) {
 		{"1.5kA", Ampere, 1500},
 		{"150uS", Siemens, 150e-6},
 		{"2um", Metre, 2e-6},
+		// Pelgrom's coefficients as data sheets quote them: A_VT in mV·µm,
+		// A_β in %·µm (Pelgrom, Duinmaijer, Welbers, IEEE JSSC 1989).
+		{"5mV*um", VoltMetre, 5e-9},
+		{"3.5 mV·µm", VoltMetre, 3.5e-9},
+		{"4e-9V*m", VoltMetre, 4e-9},
+		{"1%*um", PercentMetre, 1e-8},
+		{"0.8%·µm", PercentMetre, 0.8e-8},
+		{"1e-8m", PercentMetre, 1e-8},
 		{"2m", Metre, 2},     // the metre itself, not a prefix
 		{"2mm", Metre, 2e-3}, // milli metre
 		{"180nm", Metre, 180e-9},
@@ -250,6 +258,8 @@ func TestFormat(t *testing.T) {
 		{2e6, VoltPerSecond, "2V/us"},
 		{0.5, VoltPerSecond, "500mV/s"},
 		{280e-6, AmperePerVoltSq, "280uA/V2"},
+		{5e-9, VoltMetre, "5mV*um"},
+		{1e-8, PercentMetre, "1%*um"},
 		{1e-3, VoltPerKelvin, "1mV/K"},
 		{0.05, PerVolt, "0.05/V"},
 		{0.5, SqrtVolt, "0.5V^0.5"},

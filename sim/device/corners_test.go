@@ -143,19 +143,36 @@ func TestCornerAgainstNgspice(t *testing.T) {
 // the field, what was given and what was wanted.
 func TestCornerErrors(t *testing.T) {
 	base := "name: x\nmodel: level1\nnmos: {vto: 0.45V, kp: 280uA/V2}\npmos: {vto: -0.06V, kp: 70uA/V2}\n"
-	cases := []struct {
-		name, corners, field string
-		line                 int
-	}{
+	checkSectionErrors(t, base, []sectionError{
 		{"shift out of range", "corners:\n  ff: {nmos: {dvt: -0.8V}}\n", "dvt", 6},
 		{"kp change out of range", "corners:\n  ff:\n    nmos: {dkp: 300%}\n", "dkp", 7},
 		{"threshold shifted out of range", "corners:\n  ff: {pmos: {dvt: -20mV}}\n", "dvt", 6},
 		{"unknown shift", "corners:\n  ff: {nmos: {dvth: 1mV}}\n", "dvth", 6},
 		{"unknown device", "corners:\n  ff: {nfet: {dvt: 1mV}}\n", "nfet", 6},
 		{"typical shifted", "corners:\n  tt: {nmos: {dvt: 1mV}}\n", "tt", 6},
+	})
+	p, err := ReadProcess("x.yaml", []byte(base+"corners:\n  slow: {nmos: {dvt: 30mV}}\n"))
+	if err != nil {
+		t.Fatal(err)
 	}
+	if got := p.CornerNames(); !slices.Equal(got, []string{"tt", "slow"}) || p.Corners[1].P != (Shift{}) {
+		t.Errorf("corners %v (%+v), want tt then slow with the pmos unshifted", got, p.Corners)
+	}
+}
+
+// sectionError is a process file section that must be refused: its text
+// (after a valid base), and the field and line the error must name.
+type sectionError struct {
+	name, text, field string
+	line              int
+}
+
+// checkSectionErrors reads base with each case's section appended and
+// wants a *units.Error naming the file, the case's line and field.
+func checkSectionErrors(t *testing.T, base string, cases []sectionError) {
+	t.Helper()
 	for _, c := range cases {
-		_, err := ReadProcess("x.yaml", []byte(base+c.corners))
+		_, err := ReadProcess("x.yaml", []byte(base+c.text))
 		var ue *units.Error
 		if !errors.As(err, &ue) {
 			t.Errorf("%s: error %v, want a *units.Error", c.name, err)
@@ -164,12 +181,5 @@ func TestCornerErrors(t *testing.T) {
 		if ue.File != "x.yaml" || ue.Line != c.line || !strings.HasSuffix(ue.Field, c.field) {
 			t.Errorf("%s: %s:%d field %q, want line %d field %s (%v)", c.name, ue.File, ue.Line, ue.Field, c.line, c.field, err)
 		}
-	}
-	p, err := ReadProcess("x.yaml", []byte(base+"corners:\n  slow: {nmos: {dvt: 30mV}}\n"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	if got := p.CornerNames(); !slices.Equal(got, []string{"tt", "slow"}) || p.Corners[1].P != (Shift{}) {
-		t.Errorf("corners %v (%+v), want tt then slow with the pmos unshifted", got, p.Corners)
 	}
 }

@@ -30,6 +30,8 @@ type Process struct {
 	// Corner names the corner whose cards N and P are (AtCorner): tt
 	// for the cards as written.
 	Corner string
+	// Mismatch holds the Pelgrom coefficients, if the file gives them.
+	Mismatch Mismatch
 
 	// File is the file the process was read from, as given to
 	// ReadProcess; pos holds the line and text of every card value
@@ -125,6 +127,7 @@ func LoadProcess(path string) (*Process, error) {
 //	rules: {wmin: 0.22um, lmin: 0.18um, grid: 5nm}   # optional; see Rules
 //	corners:                                          # optional; see readCorners
 //	  ff: {nmos: {dvt: -40mV, dkp: 8%}, pmos: {dvt: -50mV, dkp: 8%}}
+//	mismatch: {nmos: {avt: 5mV*um, abeta: 1%*um}, pmos: {avt: 5.5mV*um, abeta: 1%*um}}   # optional; see readMismatch
 //
 // Each card takes vto (V, SPICE sign: positive for an NMOS, negative for a
 // PMOS) and kp (A/V²), both required; gamma (√V, default 0), phi (V,
@@ -150,7 +153,7 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := m.Check("name", "doc", "model", "tnom", "nmos", "pmos", "rules", "corners"); err != nil {
+	if err := m.Check("name", "doc", "model", "tnom", "nmos", "pmos", "rules", "corners", "mismatch"); err != nil {
 		return nil, err
 	}
 	if err := m.Require("model", "nmos", "pmos"); err != nil {
@@ -191,6 +194,9 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 		return nil, err
 	}
 	p.Corner = Typical
+	if p.Mismatch, err = readMismatch(m); err != nil {
+		return nil, err
+	}
 	return p, nil
 }
 
