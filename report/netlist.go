@@ -81,7 +81,7 @@ func writeStage(w *bufio.Writer, st *topologies.Stage, sub bool) {
 // header writes a deck's title line (what it is and the design's
 // conditions), then the notice lines, the caution and the parameters.
 func header(w *bufio.Writer, d *objectives.Design, what string, notice ...string) {
-	fmt.Fprintf(w, "* pairsmith %s: %s on %s, supply %s, %s\n", what, d.Topology, d.Process.Name,
+	fmt.Fprintf(w, "* pairsmith %s: %s on %s%s, supply %s, %s\n", what, d.Topology, d.Process.Name, atCorner(d.Process),
 		units.Format(d.Supply, units.Volt), units.Format(d.TempK, units.Temperature))
 	for _, l := range notice {
 		fmt.Fprintf(w, "* %s\n", l)
@@ -99,6 +99,25 @@ func header(w *bufio.Writer, d *objectives.Design, what string, notice ...string
 			parts = parts[k:]
 		}
 	}
+}
+
+// atCorner names the process corner of p's cards for a deck's comments,
+// "" for the typical one.
+func atCorner(p *device.Process) string {
+	if p.Corner == "" || p.Corner == device.Typical {
+		return ""
+	}
+	return " at corner " + p.Corner
+}
+
+// celsius writes a temperature in kelvin as the °C number of a .temp
+// line: the shortest decimal that reads back to the same kelvin
+// (units.Format), so that −40 °C is "-40", not "-39.99999999999997".
+func celsius(k float64) string {
+	if s := units.Format(k, units.Temperature); strings.HasSuffix(s, "C") {
+		return strings.TrimSuffix(s, "C")
+	}
+	return num(k - units.ZeroCelsius)
 }
 
 // SubcktName is the name the .subckt of a design gets.
@@ -326,11 +345,11 @@ func Testbench(out io.Writer, d *objectives.Design, st *topologies.Stage, opt Te
 		fmt.Fprintf(w, "* level-1 equivalent cards of process %s (%s), at %s\n", d.Process.Name, d.Process.Kind,
 			units.Format(d.TempK, units.Temperature))
 	} else {
-		fmt.Fprintf(w, "* models of process %s (%s)\n", proc.Name, proc.Kind)
+		fmt.Fprintf(w, "* models of process %s (%s)%s\n", proc.Name, proc.Kind, atCorner(proc))
 	}
 	fmt.Fprintln(w, proc.N.(device.SpiceCarder).SpiceCard(NMOSModel, d.TempK))
 	fmt.Fprintln(w, proc.P.(device.SpiceCarder).SpiceCard(PMOSModel, d.TempK))
-	fmt.Fprintf(w, ".temp %s\n", num(d.TempK-units.ZeroCelsius))
+	fmt.Fprintf(w, ".temp %s\n", celsius(d.TempK))
 	fmt.Fprintln(w, "*")
 	fmt.Fprintln(w, "* bench: supply, inputs, summing nodes, output current")
 	fmt.Fprintln(w, "* The summing nodes are ideal sources here, so that gm compares as it is; the folded-cascode")

@@ -73,9 +73,9 @@ const ngspiceTolerances = ".options reltol=1e-7 abstol=1e-15 vntol=1e-10 itl1=50
 // Checks (issue 2): gm at every point within 1 % of the peak gm, where
 // ngspice's gm is the central difference of I(VOUT) over VID = ±0.1 mV (its
 // truncation error, from the cubic term of a pair's transfer curve, is
-// about (0.1 mV / V_ov)², under 1e-5 here); every transistor's drain current within 0.1 % (plus a
-// 0.1 nA floor for devices that are off, where ngspice adds junction
-// leakage pairsmith leaves out).
+// about (0.1 mV / V_ov)², under 1e-5 here); every transistor's channel
+// current (ngspice's id + ibd) within 0.1 % (plus a 0.1 nA floor for
+// devices that are off, where ngspice's source junction still leaks).
 func TestFamiliesAgainstNgspice(t *testing.T) {
 	ngspice.Require(t)
 	rng := rand.New(rand.NewPCG(7, 11))
@@ -89,7 +89,7 @@ func TestFamiliesAgainstNgspice(t *testing.T) {
 			for k, v := range sizings(f, pc.supply, 3, rng) {
 				name := fmt.Sprintf("%s/%s/%d", pc.process, f.Name(), k)
 				t.Run(name, func(t *testing.T) {
-					gm, id := compareWithNgspice(t, f, v, proc, pc.supply)
+					gm, id := compareWithNgspice(t, f, v, proc, pc.supply, 27+device.ZeroC, 0.05, true)
 					worstGM = math.Max(worstGM, gm)
 					worstID = math.Max(worstID, id)
 				})
@@ -99,11 +99,48 @@ func TestFamiliesAgainstNgspice(t *testing.T) {
 	t.Logf("worst gm error %.3g of peak gm; worst drain-current error %.3g relative", worstGM, worstID)
 }
 
-func compareWithNgspice(t *testing.T, f topologies.Family, v topologies.Values, proc *device.Process, supply float64) (gmErr, idErr float64) {
+// TestFamiliesAtCornersAgainstNgspice: every family at its defaults on
+// demo18-l1 at two far conditions — the fast corner at the highest supply
+// and temperature (ff, 1.98 V, 125 °C) and the slow one at the lowest
+// (ss, 1.62 V, −40 °C) — against ngspice running the deck written with
+// that corner's cards, supply and .temp.
+//
+// Source: ngspice (Debian package), as TestFamiliesAgainstNgspice. Check
+// (issue 9): gm within 1 % of the peak at every point. The drain currents
+// are not held to 0.1 % here: ngspice's default junctions (IS = 1e-14 A at
+// tnom) leak about a nanoampere each at 125 °C, which pairsmith's devices,
+// without junction diodes, leave out; the square-root loop's gain turns
+// that into 0.23 % of its tail current at ff.
+func TestFamiliesAtCornersAgainstNgspice(t *testing.T) {
+	ngspice.Require(t)
+	proc, _ := device.Builtin("demo18-l1")
+	worst := 0.0
+	for _, c := range []struct {
+		corner string
+		supply float64
+		tempC  float64
+	}{{"ff", 1.98, 125}, {"ss", 1.62, -40}} {
+		at, err := proc.AtCorner(c.corner)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, f := range topologies.All() {
+			t.Run(fmt.Sprintf("%s/%gV/%gC/%s", c.corner, c.supply, c.tempC, f.Name()), func(t *testing.T) {
+				// 36 steps rail to rail, so that ngspice's .dc ends at the
+				// rail as pairsmith's sweep does.
+				gm, _ := compareWithNgspice(t, f, sizings(f, c.supply, 0, nil)[0], at, c.supply, c.tempC+device.ZeroC, c.supply/36, false)
+				worst = math.Max(worst, gm)
+			})
+		}
+	}
+	t.Logf("worst gm error %.3g of peak gm", worst)
+}
+
+func compareWithNgspice(t *testing.T, f topologies.Family, v topologies.Values, proc *device.Process, supply, tempK, step float64, checkID bool) (gmErr, idErr float64) {
 	t.Helper()
 	d := &objectives.Design{
-		Topology: f.Name(), ProcessRef: proc.Name, Conditions: topologies.Conditions{Process: proc, Supply: supply, TempK: 27 + device.ZeroC},
-		Sweep: sim.SweepSpec{Low: 0, High: supply, Step: 0.05},
+		Topology: f.Name(), ProcessRef: proc.Name, Conditions: topologies.Conditions{Process: proc, Supply: supply, TempK: tempK},
+		Sweep: sim.SweepSpec{Low: 0, High: supply, Step: step},
 	}
 	var err error
 	if d.Params, err = topologies.Complete(f, v); err != nil {
@@ -128,7 +165,8 @@ func compareWithNgspice(t *testing.T, f topologies.Family, v topologies.Values, 
 	base := strings.Replace(deck.String(), ".end\n", ngspiceTolerances+".end\n", 1)
 	vectors := []string{"i(vout)"}
 	for _, m := range st.Circuit.Mosfets {
-		vectors = append(vectors, "@"+strings.ToLower(m.Name)+"[id]")
+		key := "@" + strings.ToLower(m.Name)
+		vectors = append(vectors, key+"[id]", key+"[ibd]")
 	}
 	run := func(vid float64) ngspice.Table {
 		t.Helper()
@@ -166,11 +204,16 @@ func compareWithNgspice(t *testing.T, f topologies.Family, v topologies.Values, 
 		for _, dv := range devs {
 			// ngspice reports a MOS1 device's id in the device's own
 			// sign (positive for a conducting PMOS); pairsmith in the SPICE
-			// terminal sign (negative for it).
-			ngID := float64(dv.Type) * op.Vectors["@"+strings.ToLower(dv.Name)+"[id]"][i]
+			// terminal sign (negative for it). ngspice's id includes the
+			// drain–bulk junction's current, reported as ibd, which
+			// pairsmith's channel current leaves out: id + ibd is the
+			// channel's (as in device's TestLevel1AgainstNgspice). At
+			// 125 °C the junctions leak about 1 nA.
+			key := "@" + strings.ToLower(dv.Name)
+			ngID := float64(dv.Type) * (op.Vectors[key+"[id]"][i] + op.Vectors[key+"[ibd]"][i])
 			diff := math.Abs(ngID - dv.ID)
 			scale := math.Max(math.Abs(ngID), math.Abs(dv.ID))
-			if diff > 1e-3*scale+1e-10 {
+			if checkID && diff > 1e-3*scale+1e-10 {
 				t.Errorf("vcm %.3f: %s (%s) id %.6g A, ngspice %.6g A", res.VCM[i], dv.Name, st.Roles[dv.Name], dv.ID, ngID)
 			}
 			if scale > 1e-8 {

@@ -224,6 +224,7 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 	var (
 		asJSON, devices, plotSet bool
 		plotPath                 string
+		cond                     conditionFlags
 	)
 	c := &cobra.Command{
 		Use:   "eval DESIGN.yaml",
@@ -241,6 +242,9 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 			}
 			d, err := loadDesign(args[0])
 			if err != nil {
+				return err
+			}
+			if d, err = cond.apply(d); err != nil {
 				return err
 			}
 			// One evaluation keeps nearly all it allocates (the sweep's
@@ -286,6 +290,7 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 	c.Flags().StringVar(&plotPath, "plot", "", "also draw gm and the pair currents to `FILE` (.svg or .png)")
 	c.PreRun = func(cmd *cobra.Command, _ []string) { plotSet = cmd.Flags().Changed("plot") }
 	c.Flags().BoolVar(&devices, "devices", false, "also list the transistors at the middle of the sweep")
+	cond.add(c)
 	return c
 }
 
@@ -297,6 +302,7 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 	var (
 		testbench, dc, equivalent bool
 		out                       string
+		cond                      conditionFlags
 	)
 	c := &cobra.Command{
 		Use:   "netlist DESIGN.yaml",
@@ -315,6 +321,9 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 		RunE: work(func(args []string) error {
 			d, err := loadDesign(args[0])
 			if err != nil {
+				return err
+			}
+			if d, err = cond.apply(d); err != nil {
 				return err
 			}
 			st, err := objectives.Build(d)
@@ -371,6 +380,7 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 	c.Flags().BoolVar(&equivalent, level1EquivalentFlag, false,
 		"with --testbench, write an EKV process's nearest level-1 equivalent instead of refusing")
 	c.Flags().StringVarP(&out, "output", "o", "", "write to `FILE` instead of stdout")
+	cond.add(c)
 	c.PreRunE = func(*cobra.Command, []string) error {
 		if dc && !testbench {
 			return errors.New("--dc needs --testbench")
@@ -386,3 +396,41 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 // evalGCPercent is the garbage collector's target `eval` runs with
 // (runtime/debug.SetGCPercent; Go's default is 100).
 const evalGCPercent = 400
+
+// conditionFlags put a design under another condition than its file's:
+// a process corner, a supply, a temperature (objectives.Design.At).
+type conditionFlags struct {
+	corner, supply, temperature string
+}
+
+// add declares the flags on c.
+func (f *conditionFlags) add(c *cobra.Command) {
+	c.Flags().StringVar(&f.corner, "corner", "", "at the process corner `NAME` (tt, ff, ss, ... as the process defines)")
+	c.Flags().StringVar(&f.supply, "supply", "", "at the supply `V` instead of the design's (1.98V)")
+	c.Flags().StringVar(&f.temperature, "temperature", "", "at the temperature `T` instead of the design's (125C)")
+}
+
+// apply returns d under the flags' condition (d itself when none is
+// given); a bad value is bad input naming its flag.
+func (f *conditionFlags) apply(d *objectives.Design) (*objectives.Design, error) {
+	if f.corner == "" && f.supply == "" && f.temperature == "" {
+		return d, nil
+	}
+	var supply, tempK float64
+	var err error
+	if f.supply != "" {
+		if supply, err = units.Parse(f.supply, units.Volt); err != nil {
+			return nil, badInput("--supply: %w", err)
+		}
+	}
+	if f.temperature != "" {
+		if tempK, err = units.Parse(f.temperature, units.Temperature); err != nil {
+			return nil, badInput("--temperature: %w", err)
+		}
+	}
+	out, err := d.At(f.corner, supply, tempK)
+	if err != nil {
+		return nil, badInput("--corner/--supply/--temperature: %w", err)
+	}
+	return out, nil
+}

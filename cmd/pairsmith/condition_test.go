@@ -1,0 +1,92 @@
+package main
+
+import (
+	"encoding/json"
+	"math"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"strings"
+	"testing"
+
+	"pairsmith/objectives"
+)
+
+// TestConditionFlags: eval and netlist take --corner, --supply and
+// --temperature. eval's figures are those of the design under that
+// condition (objectives.Design.At: bit for bit), its rail-to-rail sweep
+// follows the supply; the deck carries the corner's cards (demo18-l1's
+// ff lowers the NMOS threshold by 40 mV, its demo data), the supply and
+// the .temp. Values that cannot be used are bad input naming the flag.
+// (The decks themselves are checked against ngspice at corners in
+// topologies' TestFamiliesAtCornersAgainstNgspice.)
+func TestConditionFlags(t *testing.T) {
+	path := filepath.Join(designsDir, "current-switch-l1.yaml")
+	flags := []string{"--corner", "ff", "--supply", "1.98V", "--temperature", "125C"}
+	code, stdout, stderr := runCmd(t, append([]string{"eval", "--json", path}, flags...)...)
+	if code != exitOK {
+		t.Fatalf("eval: exit %d: %s", code, stderr)
+	}
+	d, err := objectives.LoadDesign(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	at, err := d.At("ff", 1.98, 125+273.15)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ev, err := objectives.Evaluate(at)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var doc map[string]any
+	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+		t.Fatal(err)
+	}
+	m := doc["metrics"].(map[string]any)
+	if m["gm_min"] != ev.Metrics.GMMin || m["power"] != ev.Metrics.Power {
+		t.Errorf("eval at ff, 1.98 V, 125 °C: gm_min %v, power %v; Design.At's %v, %v", m["gm_min"], m["power"], ev.Metrics.GMMin, ev.Metrics.Power)
+	}
+	curve := doc["curve"].([]any)
+	if last := curve[len(curve)-1].(map[string]any)["vcm"].(float64); math.Abs(last-1.98) > 1e-12 {
+		t.Errorf("the sweep ends at %g V, want the new rail 1.98 V", last)
+	}
+	nominal := evalJSON(t, path)["metrics"].(map[string]any)
+	if nominal["gm_min"] == m["gm_min"] {
+		t.Errorf("gm_min %v at ff, 1.98 V, 125 °C is the nominal one", m["gm_min"])
+	}
+
+	code, deck, stderr := runCmd(t, append([]string{"netlist", "--testbench", path}, flags...)...)
+	if code != exitOK {
+		t.Fatalf("netlist: exit %d: %s", code, stderr)
+	}
+	for _, want := range []string{"at corner ff", ".temp 125\n", "1.98"} {
+		if !strings.Contains(deck, want) {
+			t.Errorf("the deck at ff, 1.98 V, 125 °C lacks %q", want)
+		}
+	}
+	vto := regexp.MustCompile(`\.model nch nmos \(level=1 vto=([0-9.e+-]+) `).FindStringSubmatch(deck)
+	if vto == nil {
+		t.Fatalf("no nch card in the deck:\n%s", deck)
+	}
+	if v, err := strconv.ParseFloat(vto[1], 64); err != nil || math.Abs(v-0.41) > 1e-12 {
+		t.Errorf("nch vto = %s at ff, want 0.45 V − 40 mV = 0.41 V", vto[1])
+	}
+
+	for _, c := range []struct {
+		args []string
+		flag string
+	}{
+		{[]string{"--corner", "xx"}, "tt ff ss fs sf"},
+		{[]string{"--supply", "50V"}, "--supply"},
+		{[]string{"--supply", "1.9A"}, "--supply"},
+		{[]string{"--temperature", "900C"}, "temperature"},
+	} {
+		for _, cmd := range []string{"eval", "netlist"} {
+			code, _, stderr := runCmd(t, append([]string{cmd, path}, c.args...)...)
+			if code != exitBadInput || !strings.Contains(firstLine(stderr), c.flag) {
+				t.Errorf("%s %v: exit %d, %q; want %d naming %s", cmd, c.args, code, firstLine(stderr), exitBadInput, c.flag)
+			}
+		}
+	}
+}
