@@ -52,14 +52,14 @@ func readConditions(m *units.Map, baseDir string) (conditions, error) {
 	if c.Supply, _, err = m.Quantity("supply", units.Volt); err != nil {
 		return c, err
 	}
-	if !(c.Supply >= MinSupply(c.Process)) || c.Supply > MaxSupply {
+	if !supplyOK(c.Process, c.Supply) {
 		return c, m.Errorf("supply", "%s", supplyWant(c.Process))
 	}
 	if c.TempK, err = m.QuantityOr("temperature", units.Temperature, 27+units.ZeroCelsius); err != nil {
 		return c, err
 	}
-	if c.TempK < 200 || c.TempK > 500 {
-		return c, m.Errorf("temperature", "a temperature from -73C to 226C")
+	if !temperatureOK(c.TempK) {
+		return c, m.Errorf("temperature", temperatureWant)
 	}
 	if err := checkCardsAt(m, c); err != nil {
 		return c, err
@@ -132,16 +132,37 @@ func readRange(rm *units.Map, supply float64) (low, high, step float64, err erro
 // the temperature is far from a low tnom): at the temperature field when
 // it is written, else at the process's tnom.
 func checkCardsAt(m *units.Map, c conditions) error {
+	t, err := cardsHoldAt(c.Process, c.TempK)
+	if err == nil {
+		return nil
+	}
+	want := fmt.Sprintf("a temperature at which the process's %s card holds", t)
+	if m.Has("temperature") {
+		return m.ErrorAt("temperature", m.Text("temperature"), want, err)
+	}
+	return c.Process.ErrorAt("tnom", fmt.Sprintf("a tnom from which the %s card holds at %s", t,
+		units.Format(c.TempK, units.Temperature)), err)
+}
+
+// supplyOK reports whether a supply is one pairsmith takes on process p
+// (supplyWant says which).
+func supplyOK(p *device.Process, v float64) bool { return v >= MinSupply(p) && v <= MaxSupply }
+
+// temperatureOK reports whether a temperature (K) is one pairsmith takes
+// (temperatureWant says which).
+func temperatureOK(k float64) bool { return k >= 200 && k <= 500 }
+
+// temperatureWant says what a temperature field takes.
+const temperatureWant = "a temperature from -73C to 226C"
+
+// cardsHoldAt returns the first device type whose card of process p does
+// not hold at tempK (a 1 µm device cannot be sized there), with why.
+func cardsHoldAt(p *device.Process, tempK float64) (device.Type, error) {
 	for _, t := range []device.Type{device.NMOS, device.PMOS} {
-		g := device.Geometry{W: 1e-6, L: 1e-6 + 2*c.Process.LateralDiffusion(t)}
-		if _, err := c.Process.Card(t).Instance(g, c.TempK); err != nil {
-			want := fmt.Sprintf("a temperature at which the process's %s card holds", t)
-			if m.Has("temperature") {
-				return m.ErrorAt("temperature", m.Text("temperature"), want, err)
-			}
-			return c.Process.ErrorAt("tnom", fmt.Sprintf("a tnom from which the %s card holds at %s", t,
-				units.Format(c.TempK, units.Temperature)), err)
+		g := device.Geometry{W: 1e-6, L: 1e-6 + 2*p.LateralDiffusion(t)}
+		if _, err := p.Card(t).Instance(g, tempK); err != nil {
+			return t, err
 		}
 	}
-	return nil
+	return 0, nil
 }

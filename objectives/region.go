@@ -311,8 +311,8 @@ func assess(st *topologies.Stage, res *sim.Result, s *sim.Solver, kind string, m
 const parallelPoints = 1000
 
 // assessDevice makes the saturation and validity checks of one device
-// over a sweep from its operating points col, with work and low as its
-// scratch space.
+// over a sweep from its operating points col, with work, low and exempt
+// as its scratch space.
 func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, work, low, exempt []bool,
 	minor func(topologies.Side, int) bool, kind string, margin, ut float64) []Finding {
 	var out []Finding
@@ -337,7 +337,7 @@ func assessDevice(dev topologies.Device, col *sim.OpColumn, res *sim.Result, wor
 		low[i] = math.Abs(vds[i])-math.Abs(vdsat[i]) < margin
 	}
 	if dev.Duty == topologies.Saturated {
-		railTurnOffInto(exempt, func(i int) bool { return low[i] }, func(i int) bool { return work[i] },
+		railTurnOff(exempt, func(i int) bool { return low[i] }, func(i int) bool { return work[i] },
 			func(i int) bool { return minor(dev.Side, i) })
 		f := Finding{Check: CheckSaturation, Device: dev.Name, Role: dev.Role}
 		for i, x := range vcm {
@@ -384,7 +384,8 @@ func Checked(st *topologies.Stage, kind string) []bool {
 	return out
 }
 
-// railTurnOff marks the points exempt from the saturation check because
+// railTurnOff marks in exempt (one flag a point, all set afresh) the
+// points exempt from the saturation check because
 // the device is turning off at an end of the range, as a pair's tail does
 // at its rail: within a run of points short of the margin that reaches an
 // end of the sweep and along which the device stops carrying its working
@@ -394,14 +395,7 @@ func Checked(st *topologies.Stage, kind string) []bool {
 // current up to the end (a tail whose current a switch takes over), or a
 // tail short of the margin where its own pair still carries most of the
 // current, is not exempt.
-func railTurnOff(n int, short, working, minor func(int) bool) []bool {
-	exempt := make([]bool, n)
-	railTurnOffInto(exempt, short, working, minor)
-	return exempt
-}
-
-// railTurnOffInto is railTurnOff into exempt, one flag a point.
-func railTurnOffInto(exempt []bool, short, working, minor func(int) bool) {
+func railTurnOff(exempt []bool, short, working, minor func(int) bool) {
 	n := len(exempt)
 	clear(exempt)
 	mark := func(from, step int) {

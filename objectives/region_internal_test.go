@@ -30,7 +30,12 @@ func TestRailTurnOff(t *testing.T) {
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {
 			n := len(tt.short)
-			got := railTurnOff(n,
+			// Stale flags in the scratch space must not survive.
+			got := make([]bool, n)
+			for i := range got {
+				got[i] = true
+			}
+			railTurnOff(got,
 				func(i int) bool { return tt.short[i] == 's' },
 				func(i int) bool { return tt.work[i] == 'w' },
 				func(i int) bool { return tt.minor[i] == 'm' })

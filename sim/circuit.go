@@ -164,7 +164,6 @@ func (c *Circuit) NodeName(n Node) string {
 // NumNodes returns the number of nodes, ground included.
 func (c *Circuit) NumNodes() int { return len(c.names) }
 
-// AddMosfet adds a transistor.
 // Reserve makes room for about nodes nodes, mosfets transistors and
 // vsources voltage sources, so that a builder that knows its circuit's
 // size adds them without growing the lists (a search builds a circuit
@@ -188,6 +187,7 @@ func (c *Circuit) Reserve(nodes, mosfets, vsources int) {
 	}
 }
 
+// AddMosfet adds a transistor.
 func (c *Circuit) AddMosfet(name string, d, g, s, b Node, m device.Model, geom device.Geometry) {
 	c.Mosfets = append(c.Mosfets, Mosfet{Name: name, D: d, G: g, S: s, B: b, Model: m, Geom: geom})
 }

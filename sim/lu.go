@@ -21,8 +21,7 @@ func luFactor(a []float64, n, ld int, piv []int) bool {
 	if n == 0 {
 		return true
 	}
-	switch n {
-	case 3:
+	if n == 3 {
 		return luFactor3(a, ld, piv)
 	}
 	return factorLoops(a, n, ld, piv)

@@ -104,7 +104,7 @@ type Solver struct {
 
 	save []float64 // scratch copy of v
 	// tan[k] is d x / d vcm at a sweep's k-th last point, newest first
-	// (when the system has a tangent).
+	// (the sweeps that record tangents: shorter than SplitPoints).
 	tan [hermitePoints][]float64
 
 	iterations int // Newton iterations since the solver was made
@@ -656,7 +656,7 @@ func (s *Solver) post(wantGM bool) {
 }
 
 // tangent computes, after a converged solve, the tangent of the solution
-// curve d x / d vcm into s.tan[0], the previous one kept in s.tan[1]:
+// curve d x / d vcm into s.tan[0], the earlier ones moved down a slot:
 // J·t = −(∂r/∂v_fixed · dv_fixed/dvcm + ∂r/∂vcm directly), one solve with
 // the factors the last iteration left (the continuation's tangent, as in
 // E. L. Allgower and K. Georg, Numerical Continuation Methods, Springer,

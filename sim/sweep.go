@@ -211,13 +211,13 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 				}
 				same = gj < guide.Len() && math.Abs(guide.VCM[gj]-vcm) <= sameVCM
 			}
-			if same && s.takeGuide(sp, res, i, guide, gj) {
+			if same && s.takeGuide(vcm, sp.VID, res, i, guide, gj) {
 				continue
 			}
 			switch {
 			case same:
 				copy(s.v[:m], guide.X[gj*n:gj*n+m])
-			case guide != nil && gj < guide.Len() && len(guide.Tangent) == guide.Len()*m && guide.Moving == m:
+			case guide != nil && gj < guide.Len() && guide.records(m, len(sys.mos)):
 				// The guide's next point, ahead, with the last solutions:
 				// interpolation rather than extrapolation.
 				ahead := hermiteNode{guide.VCM[gj], guide.X[gj*n : gj*n+m], guide.Tangent[gj*m : (gj+1)*m]}
@@ -253,21 +253,20 @@ func (s *Solver) sweepRange(sp SweepSpec, npts, lo, hi int, res *Result, start [
 	return nil
 }
 
-// takeGuide makes point i of res the guide's point gj, at the same common
-// mode (within sameVCM), when the guide recorded what a point needs (its
-// tangent and operating points, as res does): its moving unknowns, gm,
-// probes, operating points and tangent, without a Newton iteration. The unknowns
-// that do not move keep this sweep's own values. It reports whether it
-// took the point.
-func (s *Solver) takeGuide(sp SweepSpec, res *Result, i int, guide *Result, gj int) bool {
+// takeGuide makes point i of res, at common mode vcm, the guide's point
+// gj, at the same common mode (within sameVCM), when both record what a
+// point needs (its tangent and operating points): its moving unknowns,
+// gm, probes, operating points and tangent, without a Newton iteration.
+// The unknowns that do not move keep this sweep's own values. It reports
+// whether it took the point.
+func (s *Solver) takeGuide(vcm, vid float64, res *Result, i int, guide *Result, gj int) bool {
 	n, m := s.sys.n, s.sys.nD
 	nm := len(s.sys.mos)
-	if len(res.Tangent) == 0 || guide.Moving != m || len(guide.Tangent) != guide.Len()*m || len(guide.Ops) != guide.Len()*nm {
+	if len(res.Tangent) == 0 || !guide.records(m, nm) {
 		return false
 	}
-	vcm := sp.At(i, res.Len())
 	copy(s.v[:m], guide.X[gj*n:gj*n+m])
-	s.setMoving(vcm, sp.VID)
+	s.setMoving(vcm, vid)
 	res.VCM[i] = vcm
 	if len(res.GM) > 0 {
 		res.GM[i] = guide.GM[gj]
@@ -282,6 +281,13 @@ func (s *Solver) takeGuide(sp SweepSpec, res *Result, i int, guide *Result, gj i
 	copy(res.Tangent[i*m:(i+1)*m], last[:m])
 	copy(res.X[i*n:(i+1)*n], s.v[:n])
 	return true
+}
+
+// records reports whether r holds at every point the tangent of its m
+// moving unknowns and the operating points of its nm transistors: what a
+// sweep guided by it reads.
+func (r *Result) records(m, nm int) bool {
+	return r.Moving == m && len(r.Tangent) == r.Len()*m && len(r.Ops) == r.Len()*nm
 }
 
 // sameVCM is how close (V) a guide's common mode must be to a point's for
@@ -308,36 +314,62 @@ const lagrangePoints = 3
 // tolerance, and it saves the tangent's solve at every point.
 func (s *Solver) predictLagrange(vcm float64, res *Result, i, k int) {
 	n, m := s.sys.n, s.sys.nD
-	var l [lagrangePoints]float64
-	var inv [lagrangePoints][lagrangePoints]float64
+	var at [lagrangePoints]float64
 	for a := range k {
-		for b := a + 1; b < k; b++ {
-			q := 1 / (res.VCM[i-1-a] - res.VCM[i-1-b])
-			inv[a][b], inv[b][a] = q, -q
-		}
+		at[a] = res.VCM[i-1-a]
 	}
-	for a := range k {
-		l[a] = 1
-		for b := range k {
-			if b != a {
-				l[a] *= (vcm - res.VCM[i-1-b]) * inv[a][b]
-			}
-		}
-	}
+	var l [maxHermiteNodes]float64
+	lagrangeBasis(vcm, at[:k], &l, nil)
 	v := s.v[:m]
-	switch k {
-	case 1:
-		copy(v, res.X[(i-1)*n:(i-1)*n+m])
-	case 2:
-		x0, x1 := res.X[(i-1)*n:(i-1)*n+len(v)], res.X[(i-2)*n:(i-2)*n+len(v)]
-		for j := range v {
-			v[j] = l[0]*x0[j] + l[1]*x1[j]
-		}
-	default:
+	if k == 3 { // the rule: written out
 		x0, x1, x2 := res.X[(i-1)*n:(i-1)*n+len(v)], res.X[(i-2)*n:(i-2)*n+len(v)], res.X[(i-3)*n:(i-3)*n+len(v)]
 		for j := range v {
 			v[j] = l[0]*x0[j] + l[1]*x1[j] + l[2]*x2[j]
 		}
+		return
+	}
+	clear(v)
+	for a := range k {
+		x := res.X[(i-1-a)*n : (i-1-a)*n+len(v)]
+		for j := range v {
+			v[j] += l[a] * x[j]
+		}
+	}
+}
+
+// lagrangeBasis sets l to the Lagrange basis L_a(vcm) over the nodes at
+// (at most maxHermiteNodes, uneven steps allowed) and, unless dl is nil,
+// dl to each L_a's slope at its own node, L_a'(at_a) (Burden and Faires,
+// §3.1 and §3.4): one division a pair of nodes.
+func lagrangeBasis(vcm float64, at []float64, l, dl *[maxHermiteNodes]float64) {
+	k := len(at)
+	var inv [maxHermiteNodes][maxHermiteNodes]float64 // 1/(at_a − at_b)
+	for a := range k {
+		for b := a + 1; b < k; b++ {
+			q := 1 / (at[a] - at[b])
+			inv[a][b], inv[b][a] = q, -q
+		}
+	}
+	for a := range k {
+		la := 1.0
+		for b := range k {
+			if b != a {
+				la *= (vcm - at[b]) * inv[a][b]
+			}
+		}
+		l[a] = la
+	}
+	if dl == nil {
+		return
+	}
+	for a := range k {
+		d := 0.0
+		for b := range k {
+			if b != a {
+				d += inv[a][b]
+			}
+		}
+		dl[a] = d
 	}
 }
 
@@ -383,46 +415,31 @@ func (s *Solver) predictHermite(vcm float64, res *Result, i, k int, ahead *hermi
 // for every unknown: 2k products a point each.
 func (s *Solver) predictFrom(vcm float64, nodes []hermiteNode) {
 	k := len(nodes)
-	var wx, wt [maxHermiteNodes]float64
-	// inv[a][b] = 1/(s_a − s_b): one division a pair of nodes.
-	var inv [maxHermiteNodes][maxHermiteNodes]float64
-	for a := range k {
-		for b := a + 1; b < k; b++ {
-			q := 1 / (nodes[a].vcm - nodes[b].vcm)
-			inv[a][b], inv[b][a] = q, -q
-		}
+	var at [maxHermiteNodes]float64
+	for a, nd := range nodes {
+		at[a] = nd.vcm
 	}
+	var l, dl [maxHermiteNodes]float64
+	lagrangeBasis(vcm, at[:k], &l, &dl)
+	var wx, wt [maxHermiteNodes]float64
 	for a := range k {
-		la, dla := 1.0, 0.0 // L_a(vcm), L_a'(s_a)
-		for b := range k {
-			if b != a {
-				la *= (vcm - nodes[b].vcm) * inv[a][b]
-				dla += inv[a][b]
-			}
-		}
-		l2, d := la*la, vcm-nodes[a].vcm
-		wx[a], wt[a] = (1-2*dla*d)*l2, d*l2
+		l2, d := l[a]*l[a], vcm-at[a]
+		wx[a], wt[a] = (1-2*dl[a]*d)*l2, d*l2
 	}
 	v := s.v[:s.sys.nD]
-	switch k {
-	case 1:
-		x0, t0 := nodes[0].x[:len(v)], nodes[0].t[:len(v)]
-		for j := range v {
-			v[j] = wx[0]*x0[j] + wt[0]*t0[j]
-		}
-	case 3:
+	if k == 3 { // an unguided sweep's rule: written out
 		x0, t0, x1, t1 := nodes[0].x[:len(v)], nodes[0].t[:len(v)], nodes[1].x[:len(v)], nodes[1].t[:len(v)]
 		x2, t2 := nodes[2].x[:len(v)], nodes[2].t[:len(v)]
 		for j := range v {
 			v[j] = wx[0]*x0[j] + wt[0]*t0[j] + wx[1]*x1[j] + wt[1]*t1[j] + wx[2]*x2[j] + wt[2]*t2[j]
 		}
-	default:
-		clear(v)
-		for a, nd := range nodes {
-			x, t := nd.x[:len(v)], nd.t[:len(v)]
-			for j := range v {
-				v[j] += wx[a]*x[j] + wt[a]*t[j]
-			}
+		return
+	}
+	clear(v)
+	for a, nd := range nodes {
+		x, t := nd.x[:len(v)], nd.t[:len(v)]
+		for j := range v {
+			v[j] += wx[a]*x[j] + wt[a]*t[j]
 		}
 	}
 }

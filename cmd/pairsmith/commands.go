@@ -416,7 +416,7 @@ func (f *conditionFlags) apply(d *objectives.Design) (*objectives.Design, error)
 	if f.corner == "" && f.supply == "" && f.temperature == "" {
 		return d, nil
 	}
-	var supply, tempK float64
+	supply, tempK := d.Supply, d.TempK
 	var err error
 	if f.supply != "" {
 		if supply, err = units.Parse(f.supply, units.Volt); err != nil {

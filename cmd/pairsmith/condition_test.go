@@ -79,8 +79,10 @@ func TestConditionFlags(t *testing.T) {
 	}{
 		{[]string{"--corner", "xx"}, "tt ff ss fs sf"},
 		{[]string{"--supply", "50V"}, "--supply"},
+		{[]string{"--supply", "0V"}, "--supply"},
 		{[]string{"--supply", "1.9A"}, "--supply"},
 		{[]string{"--temperature", "900C"}, "temperature"},
+		{[]string{"--temperature", "0K"}, "temperature"},
 	} {
 		for _, cmd := range []string{"eval", "netlist"} {
 			code, _, stderr := runCmd(t, append([]string{cmd, path}, c.args...)...)

@@ -3,7 +3,6 @@ package device
 import (
 	"errors"
 	"fmt"
-	"math"
 	"slices"
 
 	"pairsmith/units"
@@ -60,17 +59,21 @@ func (p *Process) CornerNames() []string {
 }
 
 // AtCorner returns a copy of the process whose cards are those of the
-// named corner (Process.Corner names it); the typical corner's copy has
-// the cards unchanged. An unknown name is an error that lists the
-// process's corners.
+// named corner (Process.Corner names it), shifted from the cards as
+// written whatever corner p is at; the typical corner's copy has those
+// cards. An unknown name is an error that lists the process's corners.
 func (p *Process) AtCorner(name string) (*Process, error) {
 	i := slices.IndexFunc(p.Corners, func(c Corner) bool { return c.Name == name })
 	if i < 0 {
 		return nil, fmt.Errorf("process %s: no corner %q (it has %v)", p.Name, name, p.CornerNames())
 	}
+	n, pm := p.typical[0], p.typical[1]
+	if n == nil || pm == nil { // a Process made in code: its cards are the typical ones
+		n, pm = p.N, p.P
+	}
 	c := p.Corners[i]
 	out := *p
-	out.N, out.P = c.shifted(p.N, NMOS), c.shifted(p.P, PMOS)
+	out.N, out.P, out.typical = c.shifted(n, NMOS), c.shifted(pm, PMOS), [2]Model{n, pm}
 	out.Corner = c.Name
 	return &out, nil
 }
@@ -166,32 +169,25 @@ func readCorners(root *units.Map, n, pm Model) ([]Corner, error) {
 // checkShifted reports a shifted card whose |VTO| or kp left its
 // physical range (CardRanges).
 func checkShifted(m Model, t Type) error {
-	var vto, kp float64
-	switch c := m.(type) {
-	case *Level1:
-		vto, kp = c.VTO, c.KP
-	case *EKV:
-		vto, kp = c.VTO, c.KP
-	default:
+	c, ok := m.(thresholdCard)
+	if !ok {
 		return nil
 	}
+	vto, kp := c.vtoKP()
 	for _, r := range CardRanges(t) {
-		switch r.Field {
-		case "vto":
-			if !r.Contains(vto) {
-				return fmt.Errorf("the shifted vto %s is outside %s", units.Format(vto, units.Volt), r.Want())
-			}
-		case "kp":
-			if !r.Contains(kp) || math.IsNaN(kp) {
-				return fmt.Errorf("the shifted kp %s is outside %s", units.Format(kp, r.Dim), r.Want())
-			}
+		switch {
+		case r.Field == "vto" && !r.Contains(vto):
+			return fmt.Errorf("the shifted vto %s is outside %s", units.Format(vto, units.Volt), r.Want())
+		case r.Field == "kp" && !r.Contains(kp):
+			return fmt.Errorf("the shifted kp %s is outside %s", units.Format(kp, r.Dim), r.Want())
 		}
 	}
 	return nil
 }
 
-// vtoKP returns the card's VTO and KP.
-func (c *Level1) vtoKP() (float64, float64) { return c.VTO, c.KP }
+// thresholdCard is a card with a threshold VTO and a kp, the two values a
+// corner moves: both model kinds.
+type thresholdCard interface{ vtoKP() (vto, kp float64) }
 
-// vtoKP returns the card's VTO and KP.
-func (c *EKV) vtoKP() (float64, float64) { return c.VTO, c.KP }
+func (c *Level1) vtoKP() (vto, kp float64) { return c.VTO, c.KP }
+func (c *EKV) vtoKP() (vto, kp float64)    { return c.VTO, c.KP }

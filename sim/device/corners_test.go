@@ -19,9 +19,8 @@ import (
 // no source).
 func TestBuiltinCorners(t *testing.T) {
 	faster := func(a, b Model) bool { // a is faster than b
-		la, lb := a.(interface{ vtoKP() (float64, float64) }), b.(interface{ vtoKP() (float64, float64) })
-		va, ka := la.vtoKP()
-		vb, kb := lb.vtoKP()
+		va, ka := a.(thresholdCard).vtoKP()
+		vb, kb := b.(thresholdCard).vtoKP()
 		return math.Abs(va) < math.Abs(vb) && ka > kb
 	}
 	for _, name := range BuiltinNames() {
@@ -46,6 +45,14 @@ func TestBuiltinCorners(t *testing.T) {
 				faster(q.P, p.P) != fast[1] || faster(p.P, q.P) == fast[1] {
 				t.Errorf("%s at %s: nmos %+v, pmos %+v against %+v, %+v", name, c, q.N, q.P, p.N, p.P)
 			}
+		}
+		// A corner is taken from the cards as written, also from a copy
+		// already at another corner.
+		ff, _ := p.AtCorner("ff")
+		ss, _ := p.AtCorner("ss")
+		ffss, _ := ff.AtCorner("ss")
+		if fmt.Sprint(ffss.N, ffss.P) != fmt.Sprint(ss.N, ss.P) {
+			t.Errorf("%s: ss from ff %+v %+v, from tt %+v %+v", name, ffss.N, ffss.P, ss.N, ss.P)
 		}
 		if _, err := p.AtCorner("xx"); err == nil || !strings.Contains(err.Error(), "tt ff ss fs sf") {
 			t.Errorf("%s: unknown corner: %v, want an error listing the corners", name, err)

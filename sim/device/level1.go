@@ -204,19 +204,16 @@ func (m *level1Inst) body(vbs float64) (sarg, dsarg float64) {
 // with the source and drain already ordered (vds ≥ 0). It returns the current,
 // ∂/∂vgs, ∂/∂vds, ∂/∂vbs and the threshold and overdrive.
 func (m *level1Inst) channel(vgs, vds, vbs float64) (cd, gm, gds, gmbs, von, vgst float64) {
-	sarg, dsarg := m.body(vbs)
-	von = m.vbi + m.gamma*sarg
-	vgst = vgs - von
+	von, vgst, dsarg := m.threshold(vgs, vbs)
 	if vgst <= 0 {
 		return 0, 0, 0, 0, von, vgst
 	}
+	cd = m.drain(vgst, vds)
 	betap := m.beta * (1 + m.lambda*vds)
 	if vgst <= vds { // saturation
-		cd = 0.5 * betap * vgst * vgst
 		gm = betap * vgst
 		gds = 0.5 * m.lambda * m.beta * vgst * vgst
 	} else { // linear region
-		cd = betap * vds * (vgst - 0.5*vds)
 		gm = betap * vds
 		gds = betap*(vgst-vds) + m.lambda*m.beta*vds*(vgst-0.5*vds)
 	}
@@ -224,6 +221,28 @@ func (m *level1Inst) channel(vgs, vds, vbs float64) (cd, gm, gds, gmbs, von, vgs
 	// gm·gamma/(2·sarg) for vbs ≤ 0 (the SPICE gmbs).
 	gmbs = gm * m.gamma * dsarg
 	return cd, gm, gds, gmbs, von, vgst
+}
+
+// threshold returns the threshold von at vbs (the body effect), the
+// overdrive vgst = vgs − von and ∂sarg/∂vbs (normal mode, NMOS sense).
+func (m *level1Inst) threshold(vgs, vbs float64) (von, vgst, dsarg float64) {
+	sarg, dsarg := m.body(vbs)
+	von = m.vbi + m.gamma*sarg
+	return von, vgs - von, dsarg
+}
+
+// drain returns the square law's drain current at overdrive vgst and
+// vds ≥ 0 (normal mode, NMOS sense): 0 in cutoff, saturation and linear
+// region as in SPICE's MOS1.
+func (m *level1Inst) drain(vgst, vds float64) float64 {
+	if vgst <= 0 {
+		return 0
+	}
+	betap := m.beta * (1 + m.lambda*vds)
+	if vgst <= vds {
+		return 0.5 * betap * vgst * vgst
+	}
+	return betap * vds * (vgst - 0.5*vds)
 }
 
 // Eval returns the channel current into the drain and its derivatives with
@@ -296,27 +315,12 @@ func (m *level1Inst) Op(vd, vg, vs, vb float64) OpPoint {
 // square law is cheap enough that they would be a good part of its cost.
 func (m *level1Inst) LargeSignal(vd, vg, vs, vb float64) LargeSignal {
 	s := m.sign
-	vds := s * (vd - vs)
-	vgs := s * (vg - vs)
-	vbs := s * (vb - vs)
-	sign := s
+	vds, vgs, vbs, sign := s*(vd-vs), s*(vg-vs), s*(vb-vs), s
 	if vds < 0 { // inverse mode: the drain acts as the source
 		vgs, vbs, vds, sign = vgs-vds, vbs-vds, -vds, -s
 	}
-	sarg, _ := m.body(vbs)
-	von := m.vbi + m.gamma*sarg
-	vgst := vgs - von
-	out := LargeSignal{VTH: s * von, VDSAT: s * max(vgst, 0), Region: Off}
-	if vgst <= 0 {
-		return out
-	}
-	betap := m.beta * (1 + m.lambda*vds)
-	if vgst <= vds {
-		out.ID, out.Region = sign*(0.5*betap*vgst*vgst), Saturation
-	} else {
-		out.ID, out.Region = sign*(betap*vds*(vgst-0.5*vds)), Triode
-	}
-	return out
+	von, vgst, _ := m.threshold(vgs, vbs)
+	return LargeSignal{ID: sign * m.drain(vgst, vds), VTH: s * von, VDSAT: s * max(vgst, 0), Region: level1Region(vgst, vds)}
 }
 
 // SpiceCard returns a `.model NAME nmos (level=1 ...)` line that reproduces

@@ -28,8 +28,10 @@ type Process struct {
 	// (tt, the cards as written) first; a file without any has tt only.
 	Corners []Corner
 	// Corner names the corner whose cards N and P are (AtCorner): tt
-	// for the cards as written.
-	Corner string
+	// for the cards as written, which typical keeps, so that a corner is
+	// always taken from them.
+	Corner  string
+	typical [2]Model
 	// Mismatch holds the Pelgrom coefficients, if the file gives them.
 	Mismatch Mismatch
 
@@ -193,7 +195,7 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 	if p.Corners, err = readCorners(m, p.N, p.P); err != nil {
 		return nil, err
 	}
-	p.Corner = Typical
+	p.Corner, p.typical = Typical, [2]Model{p.N, p.P}
 	if p.Mismatch, err = readMismatch(m); err != nil {
 		return nil, err
 	}
