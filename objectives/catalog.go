@@ -371,8 +371,19 @@ func Worst(ms []Metrics, t Targets) Metrics {
 }
 
 func worstOf(entries []Entry, ms []Metrics, t Targets) Metrics {
+	out, _ := worstIndexOf(entries, ms, t)
+	return out
+}
+
+// worstIndexOf is worstOf with, for each entry of entries, the index into
+// ms of the value it took (-1 for a constraint, for none, and for a
+// figure that is NaN somewhere: the first such index then).
+func worstIndexOf(entries []Entry, ms []Metrics, t Targets) (Metrics, []int) {
 	var out Metrics
-	for _, e := range entries {
+	at := make([]int, len(entries))
+	vals := make([]float64, len(ms))
+	for k, e := range entries {
+		at[k] = -1
 		if e.Kind != Figure {
 			continue
 		}
@@ -381,35 +392,40 @@ func worstOf(entries []Entry, ms []Metrics, t Targets) Metrics {
 		if len(ms) == 0 {
 			continue
 		}
-		vals := make([]float64, len(ms))
 		for i, m := range ms {
 			vals[i] = e.Value(m)
 		}
-		*dst = combine(e, vals, t)
+		at[k] = combine(e, vals, t)
+		*dst = vals[at[k]]
 	}
-	return out
+	return out, at
 }
 
-// combine is the worst of vals, at least one, as e.Combine says.
-func combine(e Entry, vals []float64, t Targets) float64 {
-	w := vals[0]
+// combine returns the index of the worst of vals, at least one, as
+// e.Combine says; the first NaN's when one is NaN.
+func combine(e Entry, vals []float64, t Targets) int {
 	if len(vals) == 1 {
-		return w
+		return 0
 	}
-	for _, v := range vals {
+	for i, v := range vals {
 		if math.IsNaN(v) {
-			return math.NaN()
+			return i
 		}
 	}
+	w := 0
 	switch e.Combine {
 	case Lowest:
-		for _, v := range vals[1:] {
-			w = math.Min(w, v)
+		for i, v := range vals[1:] {
+			if v < vals[w] {
+				w = i + 1
+			}
 		}
 		return w
 	case Highest:
-		for _, v := range vals[1:] {
-			w = math.Max(w, v)
+		for i, v := range vals[1:] {
+			if v > vals[w] {
+				w = i + 1
+			}
 		}
 		return w
 	}
@@ -423,9 +439,9 @@ func combine(e Entry, vals []float64, t Targets) float64 {
 			centre += v / float64(len(vals))
 		}
 	}
-	for _, v := range vals[1:] {
-		if math.Abs(v-centre) > math.Abs(w-centre) {
-			w = v
+	for i, v := range vals[1:] {
+		if math.Abs(v-centre) > math.Abs(vals[w]-centre) {
+			w = i + 1
 		}
 	}
 	return w

@@ -11,6 +11,7 @@ import (
 	"gopkg.in/yaml.v3"
 
 	"pairsmith/sim"
+	"pairsmith/sim/device"
 	"pairsmith/topologies"
 	"pairsmith/units"
 )
@@ -31,6 +32,16 @@ type Design struct {
 	SaturationMargin float64
 	// Params holds every parameter of the family, defaults filled in.
 	Params topologies.Values
+	// Signoff is what the design must hold over (docs/conditions.md);
+	// Conditions are its nominal condition. The zero Signoff (a design
+	// made in code) is the one condition of Conditions.
+	Signoff Signoff
+	// FollowSupply says the sweep's high end is the positive rail at
+	// every supply (written as high: supply, or not written).
+	FollowSupply bool
+	// corners holds the process at each corner of Signoff (read-only,
+	// shared by copies).
+	corners map[string]*device.Process
 }
 
 // Family returns the design's family.
@@ -56,7 +67,7 @@ func ReadDesign(file string, data []byte, baseDir string) (*Design, error) {
 }
 
 func readDesign(m *units.Map, baseDir string) (*Design, error) {
-	if err := m.Check("topology", "process", "supply", "temperature", "saturation_margin", "sweep", "params"); err != nil {
+	if err := m.Check(append([]string{"topology", "process", "saturation_margin", "sweep", "params"}, signoffKeys()...)...); err != nil {
 		return nil, err
 	}
 	if err := m.Require("topology", "process", "supply"); err != nil {
@@ -82,11 +93,16 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 	}
 	d.ProcessRef, d.Conditions = cond.ProcessRef, cond.Conditions
 	d.SaturationMargin = cond.Margin
+	d.Signoff, d.corners = cond.Signoff, cond.corners
 	d.Sweep = sim.SweepSpec{Low: 0, High: d.Supply, Step: DefaultStep}
+	d.FollowSupply = true
 	if sw, ok, err := m.Map("sweep"); err != nil {
 		return nil, err
 	} else if ok {
-		if d.Sweep.Low, d.Sweep.High, d.Sweep.Step, err = readRange(sw, d.Supply); err != nil {
+		if d.Sweep.Low, d.Sweep.High, d.Sweep.Step, d.FollowSupply, err = readRange(sw, d.Supply); err != nil {
+			return nil, err
+		}
+		if err := checkFollowing(sw, d.Sweep.Low, d.Sweep.Step, d.FollowSupply, d.Signoff); err != nil {
 			return nil, err
 		}
 	}
@@ -162,13 +178,16 @@ func (d *Design) Format() []byte {
 	var b bytes.Buffer
 	fmt.Fprintf(&b, "topology: %s\n", d.Topology)
 	fmt.Fprintf(&b, "process: %s\n", yamlScalar(d.ProcessRef))
-	fmt.Fprintf(&b, "supply: %s\n", units.Format(d.Supply, units.Volt))
-	fmt.Fprintf(&b, "temperature: %s\n", units.Format(d.TempK, units.Temperature))
+	d.formatSignoff(&b)
 	if d.SaturationMargin > 0 {
 		fmt.Fprintf(&b, "saturation_margin: %s\n", units.Format(d.SaturationMargin, units.Volt))
 	}
+	high := units.Format(d.Sweep.High, units.Volt)
+	if d.FollowSupply {
+		high = HighSupply
+	}
 	fmt.Fprintf(&b, "sweep: {low: %s, high: %s, step: %s}\n", units.Format(d.Sweep.Low, units.Volt),
-		units.Format(d.Sweep.High, units.Volt), units.Format(d.Sweep.Step, units.Volt))
+		high, units.Format(d.Sweep.Step, units.Volt))
 	b.WriteString("params:\n")
 	fam, err := d.Family()
 	if err != nil {
@@ -188,4 +207,35 @@ func (d *Design) Format() []byte {
 		}
 	}
 	return b.Bytes()
+}
+
+// formatSignoff writes the design's supply, temperature, corners,
+// mismatch and load as a design file takes them: a single supply or
+// temperature as one value, a range as {min, nominal, max}; the corners
+// when the process defines more than one; mismatch and load only when
+// they differ from the defaults.
+func (d *Design) formatSignoff(b *bytes.Buffer) {
+	so := d.Signoff
+	if len(so.Corners) == 0 { // a design made in code: its one condition
+		so = Signoff{Supply: Single(d.Supply), Temperature: Single(d.TempK), Sigma: DefaultSigma}
+	}
+	span := func(key string, s Span, dim units.Dim) {
+		if s.IsSingle() {
+			fmt.Fprintf(b, "%s: %s\n", key, units.Format(s.Nominal, dim))
+			return
+		}
+		fmt.Fprintf(b, "%s: {min: %s, nominal: %s, max: %s}\n", key, units.Format(s.Min, dim),
+			units.Format(s.Nominal, dim), units.Format(s.Max, dim))
+	}
+	span("supply", so.Supply, units.Volt)
+	span("temperature", so.Temperature, units.Temperature)
+	if d.Process != nil && len(d.Process.Corners) > 1 && len(so.Corners) > 0 {
+		fmt.Fprintf(b, "corners: [%s]\n", strings.Join(so.Corners, ", "))
+	}
+	if so.Sigma != DefaultSigma && so.Sigma > 0 {
+		fmt.Fprintf(b, "mismatch: {sigma: %s}\n", units.Format(so.Sigma, units.Dimensionless))
+	}
+	if so.Load > 0 {
+		fmt.Fprintf(b, "load: %s\n", units.Format(so.Load, units.Farad))
+	}
 }

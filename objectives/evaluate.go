@@ -44,7 +44,8 @@ type DeviceReport struct {
 	Duty string `json:"duty"`
 }
 
-// Evaluation is one design evaluated at its own conditions.
+// Evaluation is one design evaluated at its own conditions: the curve,
+// the devices and Metrics at the nominal one, the worst case over all.
 type Evaluation struct {
 	Design  *Design
 	Stage   *topologies.Stage
@@ -54,9 +55,17 @@ type Evaluation struct {
 	Devices []DeviceReport
 	// MidVCM is the common mode at which Devices were taken.
 	MidVCM float64
-	// Findings are the always-on checks the stage fails (Assess): empty
+	// Findings are the always-on checks the stage fails (Assess) at any
+	// of its conditions, the worst of each (WorstCase.Findings): empty
 	// for a buildable candidate.
 	Findings []Finding
+	// Conditions are the design measured under each of its conditions
+	// (Design.AllConditions), the nominal one first: Metrics are its.
+	Conditions []ConditionEval
+	// Worst is the worst case of every figure over Conditions, WorstAt
+	// the index into Conditions of each figure's worst by its key.
+	Worst   Metrics
+	WorstAt map[string]int
 	// SummingCurrent is the summing stage's supply current counted in
 	// power (topologies.SummingCurrent), A.
 	SummingCurrent float64
@@ -187,6 +196,12 @@ func (sc *SolverCache) put(family string, b *bench) {
 // search's candidates reach in fewer iterations than from the circuit's
 // guess; nil starts from the guess.
 func MeasureStaged(d *Design, cache *SolverCache, coarse float64, start []float64, reject func(Metrics, []Finding) bool) (m Metrics, fs []Finding, fine bool, err error) {
+	return measureStaged(d, cache, coarse, start, reject, nil)
+}
+
+// measureStaged is MeasureStaged that also copies the first point's
+// unknowns into *first when first is not nil.
+func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float64, reject func(Metrics, []Finding) bool, first *[]float64) (m Metrics, fs []Finding, fine bool, err error) {
 	st, err := Build(d)
 	if err != nil {
 		return Metrics{}, nil, false, err
@@ -209,6 +224,9 @@ func MeasureStaged(d *Design, cache *SolverCache, coarse float64, start []float6
 	}
 	if err := CheckPhysical(st, res); err != nil {
 		return Metrics{}, nil, false, err
+	}
+	if first != nil {
+		*first = append((*first)[:0], res.X[:s.Unknowns()]...)
 	}
 	m, fs = Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr)
 	if look.Step == d.Sweep.Step || reject(m, fs) {
@@ -286,6 +304,16 @@ func Evaluate(d *Design) (*Evaluation, error) {
 	}
 	st, s, res := sw.st, sw.s, sw.res
 	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: sw.metrics, Findings: sw.findings}
+	conds := d.AllConditions()
+	ev.Conditions = make([]ConditionEval, len(conds))
+	ev.Conditions[0] = ConditionEval{Condition: conds[0], Metrics: sw.metrics, Findings: sw.findings, Fine: true}
+	if len(conds) > 1 {
+		if err := measureConditions(d, conds[1:], ev.Conditions[1:], &SolverCache{}, conditionWorkers()); err != nil {
+			return nil, err
+		}
+	}
+	w := WorstOver(ev.Conditions, NoTargets())
+	ev.Worst, ev.WorstAt, ev.Findings = w.Metrics, w.At, w.Findings
 	ev.SummingCurrent = summingCurrent(st, res)
 	mid := res.Len() / 2
 	ev.MidVCM = res.VCM[mid]
@@ -316,10 +344,14 @@ type JSON struct {
 	Metrics     Metrics        `json:"metrics"`
 	MidVCM      float64        `json:"devices_vcm"`
 	Devices     []DeviceReport `json:"devices"`
-	// Checks are the always-on checks the stage fails (empty when it is
-	// buildable as evaluated; docs/buildable.md).
-	Checks  []Finding `json:"checks"`
-	Caution string    `json:"caution"`
+	// Checks are the always-on checks the stage fails at any condition
+	// (empty when it is buildable as evaluated; docs/buildable.md).
+	Checks []Finding `json:"checks"`
+	// Conditions are the metrics under every condition of the design,
+	// the nominal one first; Worst each figure's worst case and where.
+	Conditions []ConditionJSON      `json:"conditions"`
+	Worst      map[string]WorstJSON `json:"worst"`
+	Caution    string               `json:"caution"`
 }
 
 // Doc returns the evaluation as its JSON document.
@@ -328,7 +360,9 @@ func (ev *Evaluation) Doc() JSON {
 		Topology: ev.Design.Topology, Process: ev.Design.Process.Name,
 		Supply: ev.Design.Supply, Temperature: ev.Design.TempK,
 		Curve: ev.Curve(), Metrics: ev.Metrics, MidVCM: ev.MidVCM, Devices: ev.Devices,
-		Checks: append([]Finding{}, ev.Findings...), Caution: Caution,
+		Checks:     append([]Finding{}, ev.Findings...),
+		Conditions: ConditionsJSON(ev.Conditions), Worst: ev.WorstFor(NoTargets()).JSON(ev.Conditions),
+		Caution: Caution,
 	}
 }
 

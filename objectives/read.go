@@ -20,11 +20,18 @@ type conditions struct {
 	// Margin is the file's saturation_margin, V; 0 when it gives none
 	// (the process's then holds). Process carries it already.
 	Margin float64
+	// Signoff is what the stage must hold over; Conditions are its
+	// nominal condition (Process at its nominal corner).
+	Signoff Signoff
+	// corners holds the process at each corner of Signoff, the nominal
+	// one being Process itself.
+	corners map[string]*device.Process
 }
 
 // readConditions reads the process (a built-in name or a file relative to
-// baseDir), the supply (from MinSupply of the process to MaxSupply) and
-// the temperature (27C when not given).
+// baseDir) and the sign-off (readSignoff: the supply, from MinSupply of the
+// process to MaxSupply, the temperature, 27C when not given, the corners,
+// the mismatch k and the load).
 func readConditions(m *units.Map, baseDir string) (conditions, error) {
 	var c conditions
 	var err error
@@ -49,21 +56,13 @@ func readConditions(m *units.Map, baseDir string) (conditions, error) {
 		}
 		c.ProcessPath = path
 	}
-	if c.Supply, _, err = m.Quantity("supply", units.Volt); err != nil {
+	if c.Signoff, err = readSignoff(m, c.Process); err != nil {
 		return c, err
 	}
-	if !supplyOK(c.Process, c.Supply) {
-		return c, m.Errorf("supply", "%s", supplyWant(c.Process))
-	}
-	if c.TempK, err = m.QuantityOr("temperature", units.Temperature, 27+units.ZeroCelsius); err != nil {
+	if err := checkSignoffCards(m, c.Process, c.Signoff); err != nil {
 		return c, err
 	}
-	if !temperatureOK(c.TempK) {
-		return c, m.Errorf("temperature", temperatureWant)
-	}
-	if err := checkCardsAt(m, c); err != nil {
-		return c, err
-	}
+	c.Supply, c.TempK = c.Signoff.Supply.Nominal, c.Signoff.Temperature.Nominal
 	if m.Has("saturation_margin") {
 		if c.Margin, _, err = m.Quantity("saturation_margin", units.Volt); err != nil {
 			return c, err
@@ -78,23 +77,59 @@ func readConditions(m *units.Map, baseDir string) (conditions, error) {
 		p.Rules.SaturationMargin = c.Margin
 		c.Process = &p
 	}
+	typical := c.Process
+	if c.Signoff.Nominal != typical.CornerNames()[0] {
+		if c.Process, err = typical.AtCorner(c.Signoff.Nominal); err != nil {
+			return c, err
+		}
+	}
+	c.corners = map[string]*device.Process{c.Signoff.Nominal: c.Process}
+	for _, name := range c.Signoff.Corners {
+		if name == c.Signoff.Nominal {
+			continue
+		}
+		if c.corners[name], err = typical.AtCorner(name); err != nil {
+			return c, err
+		}
+	}
 	return c, nil
 }
 
+// checkFollowing refuses a range whose high end follows the supply when
+// the lowest supply leaves it less than one step above its low end.
+func checkFollowing(rm *units.Map, low, step float64, follows bool, s Signoff) error {
+	if follows && s.Supply.Min-low < step {
+		return rm.Errorf("low", "a low end at least one step (%s) below the lowest supply (%s)",
+			units.Format(step, units.Volt), units.Format(s.Supply.Min, units.Volt))
+	}
+	return nil
+}
+
+// HighSupply is what a range's high end is written as to follow the
+// supply: the positive rail at every supply of the sign-off.
+const HighSupply = "supply"
+
 // readRange reads a common-mode range {low, high, step} (a design's sweep,
-// a spec's input_range): rail to rail at DefaultStep by default, within a
+// a spec's input_range): rail to rail at DefaultStep by default, a high
+// end that follows the supply (follows) when it is not written or is
+// written as HighSupply, within a
 // supply beyond either rail, low below high, a step no larger than the
 // range and at most a million points. A range narrower than a step the
 // file does not write is blamed on the end it writes, not on the step.
-func readRange(rm *units.Map, supply float64) (low, high, step float64, err error) {
+func readRange(rm *units.Map, supply float64) (low, high, step float64, follows bool, err error) {
 	if err = rm.Check("low", "high", "step"); err != nil {
 		return
 	}
 	if low, err = rm.QuantityOr("low", units.Volt, 0); err != nil {
 		return
 	}
-	if high, err = rm.QuantityOr("high", units.Volt, supply); err != nil {
-		return
+	high, follows = supply, true
+	if t, ok, _ := rm.String("high"); !ok || t != HighSupply {
+		follows = false
+		if high, err = rm.QuantityOr("high", units.Volt, supply); err != nil {
+			return
+		}
+		follows = !ok
 	}
 	if step, err = rm.QuantityOr("step", units.Volt, DefaultStep); err != nil {
 		return
@@ -107,7 +142,7 @@ func readRange(rm *units.Map, supply float64) (low, high, step float64, err erro
 		err = rm.Errorf("high", "a high end at most the supply above the positive rail (at most %s)", v(2*supply))
 	case !(high > low):
 		key := "high"
-		if !rm.Has("high") {
+		if follows {
 			key = "low"
 		}
 		err = rm.Errorf(key, "low below high (low %s, high %s)", v(low), v(high))
@@ -117,7 +152,7 @@ func readRange(rm *units.Map, supply float64) (low, high, step float64, err erro
 		err = rm.Errorf("step", "a step no larger than the range (%s)", short(high-low, units.Volt))
 	case step > high-low:
 		key, want := "high", fmt.Sprintf("a high end at least one step (%s) above low (%s)", v(step), v(low))
-		if !rm.Has("high") {
+		if follows {
 			key, want = "low", fmt.Sprintf("a low end at least one step (%s) below high (%s)", v(step), v(high))
 		}
 		err = rm.Errorf(key, "%s, or a smaller step", want)
@@ -125,23 +160,6 @@ func readRange(rm *units.Map, supply float64) (low, high, step float64, err erro
 		err = rm.Errorf("step", "a step giving at most a million points")
 	}
 	return
-}
-
-// checkCardsAt refuses a temperature at which a card of the process has
-// no valid instance (the SPICE level-1 law can drive PHI below zero when
-// the temperature is far from a low tnom): at the temperature field when
-// it is written, else at the process's tnom.
-func checkCardsAt(m *units.Map, c conditions) error {
-	t, err := cardsHoldAt(c.Process, c.TempK)
-	if err == nil {
-		return nil
-	}
-	want := fmt.Sprintf("a temperature at which the process's %s card holds", t)
-	if m.Has("temperature") {
-		return m.ErrorAt("temperature", m.Text("temperature"), want, err)
-	}
-	return c.Process.ErrorAt("tnom", fmt.Sprintf("a tnom from which the %s card holds at %s", t,
-		units.Format(c.TempK, units.Temperature)), err)
 }
 
 // supplyOK reports whether a supply is one pairsmith takes on process p

@@ -134,10 +134,14 @@ type Finding struct {
 	// 4·U_T, the size's distance from its rule over the rule.
 	Amount float64
 	What   string // the words for it
+	// Condition names the condition the finding is from ("ss, 1.62 V,
+	// 125 °C") when the design is measured at more than one; "" at one.
+	Condition string
 }
 
 // MarshalJSON writes {"check", "device", "role", "points", "from", "to",
-// "vcm", "value", "limit", "amount", "what"} in SI units, a common mode
+// "vcm", "value", "limit", "amount", "what", "condition"} in SI units
+// (condition left out at a single condition), a common mode
 // that does not apply (a geometry finding) as null.
 func (f Finding) MarshalJSON() ([]byte, error) {
 	return json.Marshal(struct {
@@ -152,14 +156,18 @@ func (f Finding) MarshalJSON() ([]byte, error) {
 		Limit  *float64 `json:"limit"`
 		Amount float64  `json:"amount"`
 		What   string   `json:"what"`
+		Cond   string   `json:"condition,omitempty"`
 	}{f.Check, f.Device, f.Role, f.Points, finite(f.From), finite(f.To), finite(f.VCM),
-		finite(f.Value), finite(f.Limit), f.Amount, f.What})
+		finite(f.Value), finite(f.Limit), f.Amount, f.What, f.Condition})
 }
 
 func (f Finding) String() string {
 	where := ""
 	if f.Points > 0 {
 		where = fmt.Sprintf(" at vcm %s to %s (%d points; worst at %s)", short(f.From, units.Volt), short(f.To, units.Volt), f.Points, short(f.VCM, units.Volt))
+	}
+	if f.Condition != "" {
+		where += " at " + f.Condition
 	}
 	return fmt.Sprintf("%s: %s (%s): %s%s", f.Check, f.Device, f.Role, f.What, where)
 }
@@ -446,7 +454,7 @@ func CheckViolations(fs []Finding) []Violation {
 			}
 			v.Amount += f.Amount
 			if f.Amount > worst {
-				worst, v.Value, v.Limit = f.Amount, f.Value, f.Limit
+				worst, v.Value, v.Limit, v.Condition = f.Amount, f.Value, f.Limit, f.Condition
 			}
 		}
 		out = append(out, v)

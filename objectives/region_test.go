@@ -22,7 +22,7 @@ func TestValiditySqrtBias(t *testing.T) {
 	weak := loadEval(t, "testdata/sqrt-bias-weak-loop.yaml")
 	ut := device.ThermalVoltage(weak.Design.TempK)
 	flagged := map[string]objectives.Finding{}
-	for _, f := range weak.Findings {
+	for _, f := range weak.Conditions[0].Findings {
 		if f.Check == objectives.CheckValidity {
 			flagged[f.Device] = f
 		}
@@ -35,7 +35,7 @@ func TestValiditySqrtBias(t *testing.T) {
 			}
 		}
 		if !found {
-			t.Errorf("weak loop: no %s flagged; findings:\n%s", role, objectives.FindingsText(weak.Findings))
+			t.Errorf("weak loop: no %s flagged; findings:\n%s", role, objectives.FindingsText(weak.Conditions[0].Findings))
 		}
 	}
 	checked := 0
@@ -57,7 +57,7 @@ func TestValiditySqrtBias(t *testing.T) {
 		t.Error("no flagged device saturated at mid-range: the square-law cross-check checked nothing")
 	}
 	strong := loadEval(t, "testdata/sqrt-bias-strong.yaml")
-	for _, f := range strong.Findings {
+	for _, f := range strong.Conditions[0].Findings {
 		if f.Check == objectives.CheckValidity {
 			t.Errorf("strong sizing flagged: %s", f)
 		}
@@ -103,8 +103,8 @@ func TestSaturationMarginOverride(t *testing.T) {
 		t.Fatal(err)
 	}
 	evDef, evBig := evalDesign(t, def), evalDesign(t, d)
-	if len(evBig.Findings) <= len(evDef.Findings) {
-		t.Errorf("%d findings at 120 mV, %d at 50 mV: want more at the larger margin", len(evBig.Findings), len(evDef.Findings))
+	if len(evBig.Conditions[0].Findings) <= len(evDef.Conditions[0].Findings) {
+		t.Errorf("%d findings at 120 mV, %d at 50 mV: want more at the larger margin", len(evBig.Conditions[0].Findings), len(evDef.Conditions[0].Findings))
 	}
 	for _, bad := range []string{"3V", "0V", "-10mV"} {
 		_, err := objectives.ReadDesign("m.yaml", []byte(strings.Replace(text, "120mV", bad, 1)), ".")
@@ -147,7 +147,7 @@ func TestLonePairAtItsRail(t *testing.T) {
 		if gm := ev.Metrics.GMMin; !(gm < 1e-6) {
 			t.Fatalf("%s rail to rail: gm_min %g S, want the pair off at a rail", tc.family, gm)
 		}
-		for _, f := range ev.Findings {
+		for _, f := range ev.Conditions[0].Findings {
 			t.Errorf("%s rail to rail: finding %v, want none (the lone pair's turn-off is exempt)", tc.family, f)
 		}
 		cut, err := objectives.ReadDesign("d.yaml", []byte(text+tc.short), ".")
@@ -155,7 +155,7 @@ func TestLonePairAtItsRail(t *testing.T) {
 			t.Fatal(err)
 		}
 		found := false
-		for _, f := range evalDesign(t, cut).Findings {
+		for _, f := range evalDesign(t, cut).Conditions[0].Findings {
 			found = found || (f.Check == objectives.CheckSaturation && strings.Contains(f.Role, "tail"))
 		}
 		if !found {

@@ -96,16 +96,16 @@ func TestSaturationFindingMatchesNgspice(t *testing.T) {
 		t.Fatalf("%s has duty %s, want saturated", tail.Name, tail.Duty)
 	}
 	var f *objectives.Finding
-	for i := range ev.Findings {
-		if g := ev.Findings[i]; g.Check == objectives.CheckSaturation && g.Device == tail.Name {
+	for i := range ev.Conditions[0].Findings {
+		if g := ev.Conditions[0].Findings[i]; g.Check == objectives.CheckSaturation && g.Device == tail.Name {
 			if f != nil {
 				t.Fatalf("two saturation findings of %s", tail.Name)
 			}
-			f = &ev.Findings[i]
+			f = &ev.Conditions[0].Findings[i]
 		}
 	}
 	if f == nil {
-		t.Fatalf("no saturation finding of %s (wtp = 40 µm); findings:\n%s", tail.Name, objectives.FindingsText(ev.Findings))
+		t.Fatalf("no saturation finding of %s (wtp = 40 µm); findings:\n%s", tail.Name, objectives.FindingsText(ev.Conditions[0].Findings))
 	}
 	step, vcm := d.Sweep.Step, ev.Result.VCM
 	// The span is one run of failing points, so that a point inside it

@@ -13,6 +13,7 @@ import (
 	"time"
 
 	"pairsmith/sim"
+	"pairsmith/sim/device"
 	"pairsmith/topologies"
 	"pairsmith/units"
 )
@@ -27,9 +28,12 @@ const (
 	MaxRippleTarget = 10.0
 )
 
-// Range is the common-mode input range a stage must cover, in V.
+// Range is the common-mode input range a stage must cover, in V, at
+// the nominal supply. Follows says its high end is the positive rail at
+// every supply (input_range.high not written, or written as supply).
 type Range struct {
 	Low, High float64
+	Follows   bool
 }
 
 // Search holds the settings of the search.
@@ -102,9 +106,13 @@ type Spec struct {
 	// ProcessPath is the absolute path of the process file, "" for a
 	// built-in process.
 	ProcessPath string
-	// Conditions are the process, the supply and the temperature (default
-	// 27 °C) a stage must work at.
+	// Conditions are the nominal condition: the process at its nominal
+	// corner, the nominal supply and temperature (default 27 °C).
 	topologies.Conditions
+	// Signoff is every condition a stage must work at (docs/conditions.md).
+	Signoff Signoff
+	// corners holds the process at each corner of Signoff.
+	corners map[string]*device.Process
 	// SaturationMargin is the sheet's saturation_margin, V, overriding the
 	// process's (Process already carries it); 0 when the sheet gives none.
 	SaturationMargin float64
@@ -168,7 +176,7 @@ func ReadSpec(file string, data []byte, baseDir string) (*Spec, error) {
 
 // The fields of each section of a spec sheet.
 func specKeys() []string {
-	return []string{"name", "process", "supply", "temperature", "saturation_margin", "input_range", "targets", "pareto", "topologies", "search"}
+	return append([]string{"name", "process", "saturation_margin", "input_range", "targets", "pareto", "topologies", "search"}, signoffKeys()...)
 }
 func rangeKeys() []string  { return []string{"low", "high", "step"} }
 func targetKeys() []string { return targetOrder() }
@@ -196,11 +204,15 @@ func readSpec(m *units.Map, baseDir string) (*Spec, error) {
 	}
 	s.ProcessRef, s.ProcessPath, s.Conditions = cond.ProcessRef, cond.ProcessPath, cond.Conditions
 	s.SaturationMargin = cond.Margin
-	s.Range, s.Step = Range{Low: 0, High: s.Supply}, DefaultStep
+	s.Signoff, s.corners = cond.Signoff, cond.corners
+	s.Range, s.Step = Range{Low: 0, High: s.Supply, Follows: true}, DefaultStep
 	if rm, ok, err := m.Map("input_range"); err != nil {
 		return nil, err
 	} else if ok {
-		if s.Range.Low, s.Range.High, s.Step, err = readRange(rm, s.Supply); err != nil {
+		if s.Range.Low, s.Range.High, s.Step, s.Range.Follows, err = readRange(rm, s.Supply); err != nil {
+			return nil, err
+		}
+		if err := checkFollowing(rm, s.Range.Low, s.Step, s.Range.Follows, s.Signoff); err != nil {
 			return nil, err
 		}
 	}
@@ -406,13 +418,7 @@ func readTopologies(m *units.Map) ([]string, error) {
 			return nil, at(i, fmt.Sprintf("each family once (%s is also topologies[%d])", n, j))
 		}
 	}
-	var out []string
-	for _, k := range known {
-		if slices.Contains(names, k) {
-			out = append(out, k)
-		}
-	}
-	return out, nil
+	return inOrderOf(known, names), nil
 }
 
 func readSearch(sm *units.Map, se *Search) error {
@@ -485,7 +491,7 @@ func (s *Spec) Design(topology string, params topologies.Values) *Design {
 		v[k] = x
 	}
 	return &Design{Topology: topology, ProcessRef: ref, Conditions: s.Conditions, SaturationMargin: s.SaturationMargin,
-		Sweep: s.Sweep(), Params: v}
+		Sweep: s.Sweep(), Params: v, Signoff: s.Signoff, FollowSupply: s.Range.Follows, corners: s.corners}
 }
 
 // MarshalJSON writes the spec as summary.json's "spec": the spec sheet's
@@ -504,20 +510,57 @@ func (s Spec) MarshalJSON() ([]byte, error) {
 		Seed        int64   `json:"seed"`
 		Time        float64 `json:"time,omitempty"`
 	}
+	span := func(sp Span) any {
+		if sp.IsSingle() {
+			return sp.Nominal
+		}
+		return struct {
+			Min     float64 `json:"min"`
+			Nominal float64 `json:"nominal"`
+			Max     float64 `json:"max"`
+		}{sp.Min, sp.Nominal, sp.Max}
+	}
+	so := s.Signoff
+	if len(so.Corners) == 0 { // a spec made in code
+		so = Signoff{Supply: Single(s.Supply), Temperature: Single(s.TempK), Sigma: DefaultSigma}
+	}
+	var load *float64
+	if so.Load > 0 {
+		load = &so.Load
+	}
+	type mismatch struct {
+		Sigma float64 `json:"sigma"`
+	}
 	return json.Marshal(struct {
 		Name        string   `json:"name"`
 		Process     string   `json:"process"`
-		Supply      float64  `json:"supply"`
-		Temperature float64  `json:"temperature"`
+		Supply      any      `json:"supply"`
+		Temperature any      `json:"temperature"`
+		Corners     []string `json:"corners,omitempty"`
+		Mismatch    mismatch `json:"mismatch"`
+		Load        *float64 `json:"load,omitempty"`
 		InputRange  rng      `json:"input_range"`
 		Targets     Targets  `json:"targets"`
 		Pareto      []string `json:"pareto"`
 		Topologies  []string `json:"topologies"`
 		Search      search   `json:"search"`
 	}{
-		Name: s.Name, Process: s.ProcessRef, Supply: s.Supply, Temperature: s.TempK,
+		Name: s.Name, Process: s.ProcessRef, Supply: span(so.Supply), Temperature: span(so.Temperature),
+		Corners: so.Corners, Mismatch: mismatch{so.Sigma}, Load: load,
 		InputRange: rng{s.Range.Low, s.Range.High, s.Step},
 		Targets:    s.Targets, Pareto: s.Pareto, Topologies: s.Topologies,
 		Search: search{s.Search.Evaluations, s.Search.Seed, s.Search.Time.Seconds()},
 	})
+}
+
+// inOrderOf returns the names of known that names holds, in known's
+// order: a list the file may write in any order, read in a fixed one.
+func inOrderOf(known, names []string) []string {
+	var out []string
+	for _, k := range known {
+		if slices.Contains(names, k) {
+			out = append(out, k)
+		}
+	}
+	return out
 }

@@ -150,7 +150,7 @@ func TestReadSpecDefaults(t *testing.T) {
 	if s.Name != "min" {
 		t.Errorf("name %q, want the file's base name", s.Name)
 	}
-	if s.TempK != 300.15 || s.Range != (objectives.Range{Low: 0, High: 3.3}) || s.Step != 0.01 {
+	if s.TempK != 300.15 || s.Range != (objectives.Range{Low: 0, High: 3.3, Follows: true}) || s.Step != 0.01 {
 		t.Errorf("temperature %g K, range %+v, step %g", s.TempK, s.Range, s.Step)
 	}
 	if n := s.Targets.Names(); len(n) != 0 {
@@ -177,13 +177,16 @@ func TestReadSpecDefaults(t *testing.T) {
 		{"bare temperature is celsius", "temperature: -40", func(s *objectives.Spec) bool { return s.TempK == 233.15 }},
 		{"kelvin", "temperature: 350K", func(s *objectives.Spec) bool { return s.TempK == 350 }},
 		{"only low", "input_range: {low: 0.5V}", func(s *objectives.Spec) bool {
-			return s.Range == objectives.Range{Low: 0.5, High: 3.3} && s.Step == 0.01
+			return s.Range == objectives.Range{Low: 0.5, High: 3.3, Follows: true} && s.Step == 0.01
 		}},
 		{"only high, own step", "input_range: {high: 2V, step: 5mV}", func(s *objectives.Spec) bool {
 			return s.Range == objectives.Range{Low: 0, High: 2} && s.Step == 0.005
 		}},
 		{"beyond the rails by less than the supply", "input_range: {low: -0.3V, high: 3.6V}", func(s *objectives.Spec) bool {
 			return s.Range == objectives.Range{Low: -0.3, High: 3.6}
+		}},
+		{"high follows the supply when written so", "input_range: {low: 0.2V, high: supply}", func(s *objectives.Spec) bool {
+			return s.Range == objectives.Range{Low: 0.2, High: 3.3, Follows: true}
 		}},
 		{"families in registry order", "topologies: [zener, n-pair, current-switch]", func(s *objectives.Spec) bool {
 			return slices.Equal(s.Topologies, []string{"n-pair", "current-switch", "zener"})

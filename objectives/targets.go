@@ -206,12 +206,17 @@ type Violation struct {
 	// Amount is the normalised violation, ≥ 0 and finite, 0 when the
 	// target is met; see Targets.Check.
 	Amount float64
+	// Condition names where the value was measured ("ss, 1.62 V,
+	// 125 °C") when the design is measured at more than one condition:
+	// where the target binds (CheckWorst); "" at one.
+	Condition string
 }
 
 // Met reports whether the target is met.
 func (v Violation) Met() bool { return v.Amount == 0 }
 
-// MarshalJSON writes {"target", "value", "limit", "amount"} in SI units,
+// MarshalJSON writes {"target", "value", "limit", "amount", "condition"}
+// in SI units (condition left out at a single condition),
 // with a NaN or infinite value (a missing switchover, an unbounded ripple)
 // as null, as Metrics does.
 func (v Violation) MarshalJSON() ([]byte, error) {
@@ -220,7 +225,8 @@ func (v Violation) MarshalJSON() ([]byte, error) {
 		Value  *float64 `json:"value"`
 		Limit  *float64 `json:"limit"`
 		Amount float64  `json:"amount"`
-	}{v.Target, finite(v.Value), finite(v.Limit), v.Amount})
+		Cond   string   `json:"condition,omitempty"`
+	}{v.Target, finite(v.Value), finite(v.Limit), v.Amount, v.Condition})
 }
 
 // Check measures m against every set target and returns one Violation per

@@ -265,19 +265,23 @@ type familyJSON struct {
 }
 
 type candidateJSON struct {
-	ID             string                 `json:"id"`
-	Topology       string                 `json:"topology"`
-	Design         string                 `json:"design"`
-	Netlist        string                 `json:"netlist"`
-	NetlistModel   string                 `json:"netlist_model"` // DeckLevel1 or DeckLevel1Equivalent
-	Feasible       bool                   `json:"feasible"`
-	Pareto         bool                   `json:"pareto"`
-	Score          *float64               `json:"score"`
-	TotalViolation float64                `json:"total_violation"`
-	Axes           map[string]*float64    `json:"axes"`
-	Params         map[string]float64     `json:"params"`
-	Metrics        objectives.Metrics     `json:"metrics"`
-	Violations     []objectives.Violation `json:"violations"`
+	ID             string              `json:"id"`
+	Topology       string              `json:"topology"`
+	Design         string              `json:"design"`
+	Netlist        string              `json:"netlist"`
+	NetlistModel   string              `json:"netlist_model"` // DeckLevel1 or DeckLevel1Equivalent
+	Feasible       bool                `json:"feasible"`
+	Pareto         bool                `json:"pareto"`
+	Score          *float64            `json:"score"`
+	TotalViolation float64             `json:"total_violation"`
+	Axes           map[string]*float64 `json:"axes"`
+	Params         map[string]float64  `json:"params"`
+	// Metrics are the nominal condition's, as `eval --json` writes
+	// them; Worst the worst case the candidate is judged on, each
+	// figure with its condition.
+	Metrics    objectives.Metrics              `json:"metrics"`
+	Worst      map[string]objectives.WorstJSON `json:"worst"`
+	Violations []objectives.Violation          `json:"violations"`
 }
 
 type summaryJSON struct {
@@ -287,6 +291,7 @@ type summaryJSON struct {
 	Feasible             bool             `json:"feasible"`
 	Best                 *string          `json:"best"`
 	Binding              []string         `json:"binding"`
+	BindingConditions    []string         `json:"binding_conditions"`
 	Evaluations          int              `json:"evaluations"`
 	FirstFeasible        *int             `json:"first_feasible"`
 	Stopped              *string          `json:"stopped"`
@@ -334,13 +339,14 @@ func Summary(res *sizing.Result, opt RunOptions) ([]byte, error) {
 	spec := res.Spec
 	s := summaryJSON{
 		RunID: opt.RunID, Spec: spec, Strategy: opt.Strategy.String(), Feasible: res.Best != nil,
-		Binding: append([]string{}, res.Binding...), Evaluations: res.Evaluations,
-		Seconds: res.Elapsed.Seconds(), EvaluationsPerSecond: Rate(res),
+		Binding: append([]string{}, res.Binding...), BindingConditions: append([]string{}, res.BindingAt...),
+		Evaluations: res.Evaluations,
+		Seconds:     res.Elapsed.Seconds(), EvaluationsPerSecond: Rate(res),
 		Caution: objectives.Caution, Families: []familyJSON{}, Candidates: []candidateJSON{},
 	}
 	if res.Best != nil {
 		s.Best = &res.Best.ID
-		s.Binding = []string{}
+		s.Binding, s.BindingConditions = []string{}, []string{}
 	}
 	if res.Search != nil && res.Search.FirstFeasible > 0 {
 		n := res.Search.FirstFeasible
@@ -367,6 +373,9 @@ func Summary(res *sizing.Result, opt RunOptions) ([]byte, error) {
 			TotalViolation: objectives.TotalViolation(c.Violations),
 			Axes:           map[string]*float64{}, Params: map[string]float64{},
 			Metrics: c.Metrics, Violations: Misses(c.Violations),
+		}
+		if c.Eval != nil {
+			cj.Metrics, cj.Worst = c.Eval.Metrics, c.Worst.JSON(c.Eval.Conditions)
 		}
 		for i, v := range spec.Axes(c.Metrics) {
 			cj.Axes[spec.Pareto[i]] = jnum(v)

@@ -104,8 +104,11 @@ func TestWriteRun(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if !ev.Metrics.Same(c.Metrics) {
-			t.Errorf("%s: read back %+v, reported %+v", c.ID, ev.Metrics, c.Metrics)
+		if !ev.Metrics.Same(c.Eval.Metrics) {
+			t.Errorf("%s: read back %+v, reported %+v", c.ID, ev.Metrics, c.Eval.Metrics)
+		}
+		if w := ev.WorstFor(res.Spec.Targets).Metrics; !w.Same(c.Metrics) {
+			t.Errorf("%s: read back the worst case %+v, reported %+v", c.ID, w, c.Metrics)
 		}
 	}
 	// A run directory that is a file cannot be written.

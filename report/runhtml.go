@@ -71,7 +71,7 @@ type pageData struct {
 	Conditions string
 	Feasible   bool
 	Best       *pageCandidate
-	Binding    []string
+	Binding    []bindingItem
 	Nearest    *pageCandidate
 	Facts      []pageRow
 	Spec       []pageRow
@@ -299,7 +299,7 @@ func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG []byte) ([
 		Caution:    objectives.Caution,
 		Conditions: specConditions(spec),
 		Feasible:   res.Best != nil,
-		Binding:    res.Binding,
+		Binding:    bindingItems(res.Binding, res.BindingAt),
 		Spec:       specRows(spec),
 		FrontText:  FrontText(res),
 		Thinned:    whole > reported,
@@ -443,7 +443,7 @@ dl.glossary dd { margin: 0.1rem 0 0 1.5rem; }
 {{.Best.Ranked}}.
 Files: <a href="{{.Best.Design}}"><code>{{.Best.Design}}</code></a>, <a href="{{.Best.Netlist}}"><code>{{.Best.Netlist}}</code></a>.</div>
 {{else}}<div class="verdict miss"><strong>No candidate meets the spec.</strong>
-{{if .Binding}}The targets that bind: {{range $i, $b := .Binding}}{{if $i}}, {{end}}<code>{{$b}}</code>{{end}}.{{end}}
+{{if .Binding}}The targets that bind: {{range $i, $b := .Binding}}{{if $i}}; {{end}}<code>{{$b.Target}}</code>{{if $b.At}} at {{$b.At}}{{end}}{{end}}.{{end}}
 {{with .Nearest}}The nearest candidate, <strong><a href="#{{.ID}}">{{.ID}}</a></strong> ({{.Topology}}), misses: {{range $i, $m := .Misses}}{{if $i}}; {{end}}{{$m}}{{end}}.{{end}}</div>
 {{end}}
 <table>
@@ -543,4 +543,19 @@ func deckText(p *device.Process) string {
 	}
 	return "testbench decks with the common-mode sweep, printing gm: ngspice cannot simulate this " + KindName(p.Kind) +
 		" process, so they carry its nearest level-1 equivalent (their first lines say so); ngspice -b runs them as they are, but their numbers differ from these, most in weak and moderate inversion"
+}
+
+// bindingItem is a target that binds and the condition where it does
+// ("" at a single condition).
+type bindingItem struct{ Target, At string }
+
+func bindingItems(binding, at []string) []bindingItem {
+	out := make([]bindingItem, len(binding))
+	for i, b := range binding {
+		out[i].Target = b
+		if i < len(at) {
+			out[i].At = at[i]
+		}
+	}
+	return out
 }

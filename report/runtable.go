@@ -86,7 +86,7 @@ func RunTable(w io.Writer, res *sizing.Result, dir string) error {
 		e.printf("best: %s (%s), score %s; %d candidates written, %s\n",
 			b.ID, b.Topology, ScoreText(b.Score), len(res.Candidates), FrontText(res))
 	} else {
-		e.printf("no candidate meets the spec; the targets that bind: %s\n", strings.Join(res.Binding, ", "))
+		e.printf("no candidate meets the spec; the targets that bind: %s\n", BindingText(res.Binding, res.BindingAt))
 		if near := nearest(res); near != nil {
 			e.printf("nearest: %s (%s) misses %s\n", near.ID, near.Topology, strings.Join(CandidateMisses(spec, near), "; "))
 		}
@@ -174,4 +174,21 @@ func runeWidth(rows [][]string, col int) int {
 		}
 	}
 	return w
+}
+
+// BindingText writes the targets that bind, worst first, each with the
+// condition where it binds when there is one: "gm_ripple_max at ss,
+// 1.62 V, 125 °C; saturation at ff, 1.98 V, -40 °C" (semicolons, since a
+// condition holds commas), or "gm_ripple_max, gm_min" at one condition.
+func BindingText(binding, at []string) string {
+	parts := make([]string, len(binding))
+	sep := ", "
+	for i, b := range binding {
+		parts[i] = b
+		if i < len(at) && at[i] != "" {
+			parts[i] += " at " + at[i]
+			sep = "; "
+		}
+	}
+	return strings.Join(parts, sep)
 }

@@ -126,6 +126,11 @@ func MetricsTable(w io.Writer, ev *objectives.Evaluation) error {
 		}
 		t.add(name, num, unit, meaning)
 	}
+	if len(ev.Conditions) > 1 {
+		worstTable(e, ev, single)
+		e.printf("\n%s\n", objectives.Caution)
+		return e.err
+	}
 	for _, f := range figuresUpTo(objectives.InEval) {
 		v, note := figureParts(f, f.Value(m), true, single)
 		row(f.Key, v, note, f.Words.Meaning)
@@ -133,6 +138,33 @@ func MetricsTable(w io.Writer, ev *objectives.Evaluation) error {
 	t.write(e, "  ")
 	e.printf("\n%s\n", objectives.Caution)
 	return e.err
+}
+
+// worstTable writes the figures of an evaluation at more than one
+// condition: each figure's nominal value, its worst case and the
+// condition where that is measured (docs/conditions.md#worst-case).
+func worstTable(e *errWriter, ev *objectives.Evaluation, single bool) {
+	e.printf("worst case over %d conditions (nominal %s)\n\n", len(ev.Conditions), ev.Conditions[0].Condition)
+	// Columns: metric, nominal number and unit, worst number and unit,
+	// where, meaning.
+	t := &textTable{right: []bool{false, true, false, true, false, false, false}, tight: []bool{false, false, true, false, true, false, false}}
+	t.add("", "nominal", "", "worst", "", "at", "")
+	for _, f := range figuresUpTo(objectives.InEval) {
+		nv, nnote := figureParts(f, f.Value(ev.Metrics), true, single)
+		wv, wnote := figureParts(f, f.Value(ev.Worst), true, single)
+		nnum, nunit, _ := strings.Cut(nv, " ")
+		wnum, wunit, _ := strings.Cut(wv, " ")
+		at := ""
+		if i, ok := ev.WorstAt[f.Key]; ok && i >= 0 && i < len(ev.Conditions) {
+			at = ev.Conditions[i].Condition.String()
+		}
+		meaning := f.Words.Meaning
+		if note := or(wnote, nnote); note != "" {
+			meaning = note + "  " + meaning
+		}
+		t.add(f.Key, nnum, nunit, wnum, wunit, at, meaning)
+	}
+	t.write(e, "  ")
 }
 
 // areaText writes an area in m² as µm², the unit layout uses, to four

@@ -8,6 +8,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 
 	"pairsmith/objectives"
 	"pairsmith/optimize"
@@ -53,6 +54,9 @@ type Problem struct {
 	// defaults' first sweep point, where every candidate's first Newton
 	// iterations begin (objectives.MeasureStaged).
 	starts [][]float64
+	// order is the spec's conditions in the order a candidate meets them
+	// (conditionOrder).
+	order []objectives.Condition
 }
 
 var (
@@ -68,6 +72,7 @@ func NewProblem(spec *objectives.Spec) (*Problem, error) {
 		return nil, errors.New("sizing: a spec with a process is needed")
 	}
 	p := &Problem{Spec: spec, targets: spec.Targets.Tightened(Margin)}
+	p.order = conditionOrder(spec.Design("", nil).AllConditions())
 	for _, name := range spec.Topologies {
 		f, err := topologies.Lookup(name)
 		if err != nil {
@@ -175,31 +180,35 @@ type Outcome struct {
 	Metrics objectives.Metrics
 	// Violations are against the tightened targets the search uses.
 	Violations []objectives.Violation
-	// Coarse marks a candidate judged on the coarse sweep alone.
-	Coarse bool
+	// Measured is how many of the spec's conditions were measured, Fine
+	// how many of them had a look at the spec's step
+	// (objectives.MeasureWorst).
+	Measured, Fine int
 	// Err is why an evaluation failed (no DC solution, say).
 	Err string
 }
 
-// Evaluate implements optimize.Problem: a coarse sweep first; a candidate
-// missing a target or failing a check by CoarseReject or more is judged
-// on it (a candidate that cannot be built costs no fine sweep), the others
-// are swept at the spec's step (objectives.MeasureStaged).
+// Evaluate implements optimize.Problem: the worst case over the spec's
+// conditions, measured lazily (objectives.MeasureWorst, the conditions in
+// conditionOrder's order): a candidate missing a target or failing a
+// check by CoarseReject or more on its coarse looks is judged on them,
+// so that a candidate that cannot be built, or is far off, costs no
+// sweep at the spec's step.
 func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 	d := p.Design(pt)
-	m, fs, fine, err := objectives.MeasureStaged(d, &p.solvers, CoarseStep, p.starts[pt.Family], func(m objectives.Metrics, fs []objectives.Finding) bool {
-		for _, v := range p.Checks(m, fs, p.targets) {
+	cs, fine, err := objectives.MeasureWorst(d, p.order, &p.solvers, CoarseStep, p.starts[pt.Family], p.targets, func(cs []objectives.ConditionEval) bool {
+		for _, v := range p.Checks(cs, p.targets) {
 			if v.Amount >= CoarseReject {
 				return true
 			}
 		}
 		return false
 	})
-	coarse := !fine && d.Sweep.Step < CoarseStep
 	if err != nil {
-		return optimize.Outcome{Failed: true, Payload: &Outcome{Coarse: coarse, Err: err.Error()}}
+		return optimize.Outcome{Failed: true, Payload: &Outcome{Measured: len(cs), Fine: fine, Err: err.Error()}}
 	}
-	vs := p.Checks(m, fs, p.targets)
+	w := objectives.WorstOver(cs, p.targets)
+	vs := objectives.CheckWorst(w, cs, p.targets)
 	amounts := make([]float64, len(vs))
 	hard := 0.0
 	for i, v := range vs {
@@ -210,19 +219,46 @@ func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 		}
 	}
 	return optimize.Outcome{
-		Objectives: p.Spec.Axes(m),
+		Objectives: p.Spec.Axes(w.Metrics),
 		Violations: amounts,
 		Hard:       hard,
-		Payload:    &Outcome{Metrics: m, Violations: vs, Coarse: coarse},
+		Payload:    &Outcome{Metrics: w.Metrics, Violations: vs, Measured: len(cs), Fine: fine},
 	}
 }
 
-// Checks returns the violations of a stage against targets, followed by
-// the evaluator's always-on checks (objectives.CheckViolations: geometry
-// rules, saturation margins, and on a level-1 process the square law's
-// validity), which every candidate must pass whatever the spec.
-func (p *Problem) Checks(m objectives.Metrics, fs []objectives.Finding, t objectives.Targets) []objectives.Violation {
-	return append(t.Check(m), objectives.CheckViolations(fs)...)
+// Checks returns the violations of a stage measured under the conditions
+// cs against targets (the worst case, objectives.CheckWorst), followed by
+// the evaluator's always-on checks (geometry rules, saturation margins,
+// and on a level-1 process the square law's validity) at every one of
+// them, which every candidate must pass whatever the spec.
+func (p *Problem) Checks(cs []objectives.ConditionEval, t objectives.Targets) []objectives.Violation {
+	return objectives.CheckWorst(objectives.WorstOver(cs, t), cs, t)
+}
+
+// conditionOrder is the order in which a candidate meets the spec's
+// conditions: the nominal one first, then those farthest from it — that
+// differ from it in corner, supply and temperature — before those that
+// differ in two and then in one, each group in the spec's order. The
+// farthest are where a stage most often fails (a slow corner at the low
+// supply and the hot end, say), so a failing candidate is stopped early.
+func conditionOrder(cs []objectives.Condition) []objectives.Condition {
+	nom := cs[0]
+	away := func(c objectives.Condition) int {
+		n := 0
+		if c.Corner != nom.Corner {
+			n++
+		}
+		if c.Supply != nom.Supply {
+			n++
+		}
+		if c.TempK != nom.TempK {
+			n++
+		}
+		return n
+	}
+	out := append([]objectives.Condition{nom}, cs[1:]...)
+	slices.SortStableFunc(out[1:], func(a, b objectives.Condition) int { return away(b) - away(a) })
+	return out
 }
 
 // String describes the problem.

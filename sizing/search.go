@@ -18,11 +18,14 @@ import (
 // again through objectives.Evaluate — the path `eval` takes — so that its
 // design file reproduces its metrics exactly.
 type Candidate struct {
-	ID         string // c01, c02, … (c001, … past 99) in report order
-	Topology   string
-	Design     *objectives.Design
-	Eval       *objectives.Evaluation
+	ID       string // c01, c02, … (c001, … past 99) in report order
+	Topology string
+	Design   *objectives.Design
+	Eval     *objectives.Evaluation
+	// Metrics are the worst case over the spec's conditions, judged with
+	// its targets (Worst; Eval's Metrics are the nominal condition's).
 	Metrics    objectives.Metrics
+	Worst      objectives.WorstCase
 	Violations []objectives.Violation // one per target the spec sets, then one per always-on check (objectives.CheckNames)
 	Feasible   bool
 	Pareto     bool         // on the front of the feasible candidates
@@ -69,6 +72,9 @@ type Result struct {
 	// Best is the candidate of lowest Score among those that meet every
 	// target with the guard band (Margin) to spare; nil when none does.
 	Best *Candidate
+	// BindingAt names, for each of Binding, the condition where it binds
+	// ("" when the spec has one condition).
+	BindingAt []string
 	// Binding names, when nothing is feasible, the targets the least
 	// violating candidate misses, worst first.
 	Binding     []string
@@ -102,11 +108,12 @@ func reevaluate(prob *Problem, c optimize.Candidate, scales []float64) (*Candida
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", d.Topology, err)
 	}
-	vs := prob.Checks(ev.Metrics, ev.Findings, prob.Spec.Targets)
+	w := ev.WorstFor(prob.Spec.Targets)
+	vs := objectives.CheckWorst(w, ev.Conditions, prob.Spec.Targets)
 	return &Candidate{
-		Topology: d.Topology, Design: d, Eval: ev, Metrics: ev.Metrics, Violations: vs,
+		Topology: d.Topology, Design: d, Eval: ev, Metrics: w.Metrics, Worst: w, Violations: vs,
 		Feasible: objectives.TotalViolation(vs) == 0,
-		Score:    optimize.Score(prob.Spec.Axes(ev.Metrics), scales, nil), Key: c.Key,
+		Score:    optimize.Score(prob.Spec.Axes(w.Metrics), scales, nil), Key: c.Key,
 	}, nil
 }
 
@@ -392,6 +399,7 @@ func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimi
 			for _, v := range vs {
 				if v.Amount > 0 {
 					out.Binding = append(out.Binding, v.Target)
+					out.BindingAt = append(out.BindingAt, v.Condition)
 				}
 			}
 		}

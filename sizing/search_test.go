@@ -137,7 +137,7 @@ func TestGatherBlockedFamily(t *testing.T) {
 // objectives' own unphysical case) — is left out with its reason, and the
 // rest of the result stands, instead of failing the whole run.
 func TestGatherLeavesOutFailedCandidates(t *testing.T) {
-	spec, err := objectives.ReadSpec("hot.yaml", []byte("process: demo18\nsupply: 1.8V\ntemperature: 86C\ntopologies: [current-switch]\n"), t.TempDir())
+	spec, err := objectives.ReadSpec("hot.yaml", []byte("process: demo18\nsupply: 1.8V\ntemperature: 86C\ncorners: tt\ntopologies: [current-switch]\n"), t.TempDir())
 	if err != nil {
 		t.Fatal(err)
 	}

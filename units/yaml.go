@@ -513,6 +513,13 @@ func (m *Map) Bool(key string) (bool, bool, error) {
 	return b, true, nil
 }
 
+// IsMap reports whether the field is written as a mapping ({min: …,
+// max: …}) rather than a single value.
+func (m *Map) IsMap(key string) bool {
+	n, ok := m.val[key]
+	return ok && n.Kind == yaml.MappingNode
+}
+
 // Map reads a field holding a mapping, in block or flow style. The nested
 // map's errors name the field path from the root, as in "sweep.step".
 func (m *Map) Map(key string) (*Map, bool, error) {

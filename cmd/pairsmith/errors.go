@@ -51,13 +51,14 @@ func badInput(format string, args ...any) error {
 // by the exit code (exitInfeasible).
 type infeasibleError struct {
 	binding []string // the targets that bind, worst first
+	at      []string // where each binds ("" at a single condition)
 	dir     string   // where the results are
 }
 
 func (e *infeasibleError) Error() string {
 	msg := "no candidate meets the spec"
 	if len(e.binding) > 0 {
-		msg += "; the targets that bind: " + strings.Join(e.binding, ", ")
+		msg += "; the targets that bind: " + report.BindingText(e.binding, e.at)
 	}
 	return msg + " (the nearest candidates are in " + e.dir + ")"
 }

@@ -148,7 +148,7 @@ func TestDemoDesigns(t *testing.T) {
 			if raw.Process != wantProc || raw.Supply != wantSupply || raw.Temperature != "27C" {
 				t.Errorf("process %q supply %q temperature %q, want %q %q 27C", raw.Process, raw.Supply, raw.Temperature, wantProc, wantSupply)
 			}
-			if raw.Sweep["low"] != "0V" || raw.Sweep["high"] != wantSupply || raw.Sweep["step"] != "10mV" {
+			if raw.Sweep["low"] != "0V" || raw.Sweep["high"] != objectives.HighSupply || raw.Sweep["step"] != "10mV" {
 				t.Errorf("sweep %v, want rail to rail in 10mV steps", raw.Sweep)
 			}
 			fam, err := topologies.Lookup(raw.Topology)

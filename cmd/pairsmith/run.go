@@ -187,7 +187,7 @@ func runSearch(cmd *cobra.Command, f *runFlags, specPath string, stdout, stderr 
 	case interrupted:
 		return &interruptedError{evaluations: res.Evaluations, dir: f.out}
 	case res.Best == nil:
-		return &infeasibleError{binding: res.Binding, dir: f.out}
+		return &infeasibleError{binding: res.Binding, at: res.BindingAt, dir: f.out}
 	}
 	return nil
 }

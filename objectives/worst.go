@@ -1,0 +1,268 @@
+package objectives
+
+import (
+	"fmt"
+	"runtime"
+	"sync"
+)
+
+// ConditionEval is a design measured under one of its conditions.
+type ConditionEval struct {
+	Condition Condition
+	Metrics   Metrics
+	// Findings are the always-on checks the stage fails there.
+	Findings []Finding
+	// Fine says it was measured at the design's own step; a search's
+	// coarse looks at the other conditions are not (MeasureWorst).
+	Fine bool
+}
+
+// WorstCase is the worst case of one design's measurements under its
+// conditions (docs/conditions.md#worst-case).
+type WorstCase struct {
+	// Metrics are each figure's worst value (Worst).
+	Metrics Metrics
+	// At is, per figure key, the index of the condition the worst value
+	// was measured at.
+	At map[string]int
+	// Findings are, per check and device, the finding of the largest
+	// amount over the conditions, each naming its condition when there
+	// is more than one; in the order they are first found, the nominal
+	// condition's first.
+	Findings []Finding
+}
+
+// WorstOver returns the worst case over cs, at least one, judged with
+// targets t (the switchover's worst is the farthest from t's centre). A
+// single condition is its own worst case, bit for bit, its findings
+// untagged.
+func WorstOver(cs []ConditionEval, t Targets) WorstCase {
+	ms := make([]Metrics, len(cs))
+	for i, c := range cs {
+		ms[i] = c.Metrics
+	}
+	m, idx := worstIndexOf(catalog, ms, t)
+	w := WorstCase{Metrics: m, At: map[string]int{}}
+	for k, e := range catalog {
+		if idx[k] >= 0 {
+			w.At[e.Key] = idx[k]
+		}
+	}
+	if len(cs) == 1 {
+		w.Findings = cs[0].Findings
+		return w
+	}
+	type key struct{ check, device string }
+	where := map[key]int{}
+	for _, c := range cs {
+		for _, f := range c.Findings {
+			f.Condition = c.Condition.String()
+			k := key{f.Check, f.Device}
+			if i, ok := where[k]; !ok {
+				where[k] = len(w.Findings)
+				w.Findings = append(w.Findings, f)
+			} else if f.Amount > w.Findings[i].Amount {
+				w.Findings[i] = f
+			}
+		}
+	}
+	return w
+}
+
+// Binding returns the condition at which the figure of a target or axis
+// key is worst, and whether there is one.
+func (w WorstCase) Binding(cs []ConditionEval, key string) (Condition, bool) {
+	e, ok := Lookup(key)
+	if !ok {
+		return Condition{}, false
+	}
+	i, ok := w.At[e.Key]
+	if !ok || i < 0 || i >= len(cs) {
+		return Condition{}, false
+	}
+	return cs[i].Condition, true
+}
+
+// ConditionJSON is one condition of `eval --json`'s conditions list:
+// where, and the metrics measured there (docs/files.md#eval-json).
+type ConditionJSON struct {
+	Corner      string  `json:"corner"`
+	Supply      float64 `json:"supply"`      // V
+	Temperature float64 `json:"temperature"` // K
+	Metrics     Metrics `json:"metrics"`
+}
+
+// WorstJSON is one figure's worst case in JSON: its value (null for NaN
+// or an unbounded ripple, as in Metrics) and the condition where it is
+// measured.
+type WorstJSON struct {
+	Value       *float64 `json:"value"`
+	Corner      string   `json:"corner"`
+	Supply      float64  `json:"supply"`      // V
+	Temperature float64  `json:"temperature"` // K
+}
+
+// ConditionsJSON returns cs as `eval --json` writes them.
+func ConditionsJSON(cs []ConditionEval) []ConditionJSON {
+	out := make([]ConditionJSON, len(cs))
+	for i, c := range cs {
+		out[i] = ConditionJSON{Corner: c.Condition.Corner, Supply: c.Condition.Supply, Temperature: c.Condition.TempK, Metrics: c.Metrics}
+	}
+	return out
+}
+
+// JSON returns the worst case of every figure by its key, with the
+// condition of cs where it is measured.
+func (w WorstCase) JSON(cs []ConditionEval) map[string]WorstJSON {
+	out := map[string]WorstJSON{}
+	for _, e := range catalog {
+		i, ok := w.At[e.Key]
+		if !ok || i < 0 || i >= len(cs) {
+			continue
+		}
+		c := cs[i].Condition
+		out[e.Key] = WorstJSON{Value: finite(e.Value(w.Metrics)), Corner: c.Corner, Supply: c.Supply, Temperature: c.TempK}
+	}
+	return out
+}
+
+// CheckWorst returns the violations of the worst case w over cs against
+// targets t, followed by those of the always-on checks
+// (CheckViolations of w.Findings), each naming the condition where it is
+// measured when there is more than one.
+func CheckWorst(w WorstCase, cs []ConditionEval, t Targets) []Violation {
+	vs := t.Check(w.Metrics)
+	if len(cs) > 1 {
+		for i := range vs {
+			if c, ok := w.Binding(cs, vs[i].Target); ok {
+				vs[i].Condition = c.String()
+			}
+		}
+	}
+	return append(vs, CheckViolations(w.Findings)...)
+}
+
+// WorstFor returns the evaluation's worst case judged with targets t
+// (the switchover farthest from t's window; Worst is judged without
+// targets).
+func (ev *Evaluation) WorstFor(t Targets) WorstCase { return WorstOver(ev.Conditions, t) }
+
+// MeasureWorst measures d under each of order's conditions (order[0]
+// being d's nominal one) as a search judges a candidate over its
+// sign-off (docs/conditions.md#in-the-search), lazily:
+//
+//  1. the nominal condition in two looks (MeasureStaged, from start):
+//     a candidate that reject turns down on its coarse look is judged on
+//     that look alone;
+//  2. every other condition on its coarse look, each from the nominal
+//     condition's first solution: a candidate that reject turns down on
+//     the worst case of these looks is judged on them;
+//  3. the conditions where a figure of the worst case (judged with
+//     targets t) is measured are looked at again at d's step, and their
+//     fine looks replace their coarse ones.
+//
+// Every condition is measured before a candidate that passes the
+// nominal one is judged, so that a candidate's violation is that of its
+// worst case, not of the conditions measured before one failed. It
+// returns the conditions measured, in order's order, and how many had a
+// fine look. A condition whose sweep fails ends it with an error naming
+// the condition.
+func MeasureWorst(d *Design, order []Condition, cache *SolverCache, coarse float64, start []float64, t Targets, reject func(cs []ConditionEval) bool) (cs []ConditionEval, fine int, err error) {
+	cs = make([]ConditionEval, 1, len(order))
+	var first []float64
+	keep := &first
+	if len(order) == 1 {
+		keep = nil
+	}
+	m, fs, nomFine, err := measureStaged(d.Under(order[0]), cache, coarse, start, func(m Metrics, fs []Finding) bool {
+		cs[0].Metrics, cs[0].Findings = m, fs
+		return reject(cs)
+	}, keep)
+	if err != nil {
+		return cs, 0, err
+	}
+	cs[0] = ConditionEval{Condition: order[0], Metrics: m, Findings: fs, Fine: nomFine || d.Sweep.Step >= coarse}
+	if nomFine {
+		fine++
+	}
+	if len(order) == 1 || (!nomFine && d.Sweep.Step < coarse) {
+		return cs, fine, nil
+	}
+	stop := func(Metrics, []Finding) bool { return true }
+	look := func(c Condition, st func(Metrics, []Finding) bool) (ConditionEval, bool, error) {
+		m, fs, fine, err := measureStaged(d.Under(c), cache, coarse, first, st, nil)
+		if err != nil {
+			return ConditionEval{}, false, fmt.Errorf("at %s: %w", c, err)
+		}
+		return ConditionEval{Condition: c, Metrics: m, Findings: fs, Fine: fine || d.Sweep.Step >= coarse}, fine, nil
+	}
+	for _, c := range order[1:] {
+		ce, _, err := look(c, stop)
+		if err != nil {
+			return cs, fine, err
+		}
+		cs = append(cs, ce)
+	}
+	if reject(cs) || d.Sweep.Step >= coarse {
+		return cs, fine, nil
+	}
+	w := WorstOver(cs, t)
+	again := map[int]bool{}
+	for _, e := range catalog {
+		if i, ok := w.At[e.Key]; ok && e.Sense != 0 && i > 0 {
+			again[i] = true
+		}
+	}
+	for i := range cs {
+		if !again[i] {
+			continue
+		}
+		ce, ok, err := look(cs[i].Condition, func(Metrics, []Finding) bool { return false })
+		if err != nil {
+			return cs, fine, err
+		}
+		cs[i] = ce
+		if ok {
+			fine++
+		}
+	}
+	return cs, fine, nil
+}
+
+// measureConditions measures d under each of conds (not the nominal
+// one) on workers goroutines, each with compiled solvers from cache, into
+// out[i] for conds[i]; the first failure, in the conditions' order, is
+// returned naming its condition.
+func measureConditions(d *Design, conds []Condition, out []ConditionEval, cache *SolverCache, workers int) error {
+	errs := make([]error, len(conds))
+	next := make(chan int)
+	var wg sync.WaitGroup
+	for range max(1, min(workers, len(conds))) {
+		wg.Go(func() {
+			for i := range next {
+				c := conds[i]
+				sw, err := sweep(d.Under(c), cache)
+				if err != nil {
+					errs[i] = fmt.Errorf("at %s: %w", c, err)
+					continue
+				}
+				out[i] = ConditionEval{Condition: c, Metrics: sw.metrics, Findings: sw.findings, Fine: true}
+			}
+		})
+	}
+	for i := range conds {
+		next <- i
+	}
+	close(next)
+	wg.Wait()
+	for _, err := range errs {
+		if err != nil {
+			return err
+		}
+	}
+	return nil
+}
+
+// conditionWorkers is how many goroutines measure a design's other
+// conditions: one per core.
+func conditionWorkers() int { return runtime.GOMAXPROCS(0) }
