@@ -129,6 +129,21 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 			return nil, err
 		}
 		for _, p := range fam.Params() {
+			if p.Scale == topologies.Choice {
+				word, ok, err := pm.String(p.Name)
+				if err != nil {
+					return nil, err
+				}
+				if !ok {
+					continue
+				}
+				x, known := p.Choose(word)
+				if !known {
+					return nil, pm.Errorf(p.Name, "one of %s", strings.Join(p.Choices, ", "))
+				}
+				given[p.Name] = x
+				continue
+			}
 			x, ok, err := pm.Quantity(p.Name, p.Unit)
 			if err != nil {
 				return nil, err
@@ -203,7 +218,7 @@ func (d *Design) Format() []byte {
 	}
 	for _, p := range fam.Params() {
 		if v, ok := d.Params[p.Name]; ok {
-			fmt.Fprintf(&b, "  %s: %s\n", p.Name, units.Format(v, p.Unit))
+			fmt.Fprintf(&b, "  %s: %s\n", p.Name, p.Text(v))
 		}
 	}
 	return b.Bytes()

@@ -143,13 +143,7 @@ func TestReadDesignDefaults(t *testing.T) {
 func randomDesign(r *rand.Rand, f topologies.Family) *objectives.Design {
 	v := topologies.Values{}
 	for _, p := range f.Params() {
-		var x float64
-		if p.Scale == topologies.Log {
-			x = math.Exp(math.Log(p.Min) + r.Float64()*(math.Log(p.Max)-math.Log(p.Min)))
-		} else {
-			x = p.Min + r.Float64()*(p.Max-p.Min)
-		}
-		v[p.Name] = math.Min(p.Max, math.Max(p.Min, x))
+		v[p.Name] = p.FromUnit(r.Float64())
 	}
 	supply := 0.5 + r.Float64()*19.5
 	low := -supply + r.Float64()*2*supply

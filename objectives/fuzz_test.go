@@ -207,11 +207,7 @@ func fuzzDesign(family, process uint8, supply, temp uint16, params []byte) *obje
 			break
 		}
 		u := fraction(binary.LittleEndian.Uint16(params[2*i:]))
-		x := p.Min + u*(p.Max-p.Min)
-		if p.Scale == topologies.Log {
-			x = p.Min * math.Pow(p.Max/p.Min, u)
-		}
-		v[p.Name] = math.Min(p.Max, math.Max(p.Min, x))
+		v[p.Name] = p.FromUnit(u)
 	}
 	return &objectives.Design{
 		Topology: fam.Name(), ProcessRef: name, Conditions: topologies.Conditions{Process: proc, Supply: vdd, TempK: float64(int(temp)%fuzzTempSteps-40) + units.ZeroCelsius},

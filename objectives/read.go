@@ -63,6 +63,7 @@ func readConditions(m *units.Map, baseDir string) (conditions, error) {
 		return c, err
 	}
 	c.Supply, c.TempK = c.Signoff.Supply.Nominal, c.Signoff.Temperature.Nominal
+	c.BiasRefK = c.TempK // the reference currents' values hold at the nominal temperature
 	if m.Has("saturation_margin") {
 		if c.Margin, _, err = m.Quantity("saturation_margin", units.Volt); err != nil {
 			return c, err

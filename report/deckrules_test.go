@@ -426,16 +426,12 @@ func TestDemoDesignDecksObeyRules(t *testing.T) {
 
 // randomLegal draws one parameter vector within the bounds the process
 // sets (topologies.ParamsFor), each parameter on its own scale: log-uniform
-// for a Log parameter, uniform for a Linear one.
+// for a Log parameter, uniform for a Linear one, each word alike for a
+// Choice (topologies.Param.FromUnit).
 func randomLegal(rng *rand.Rand, ps []topologies.Param) topologies.Values {
 	v := topologies.Values{}
 	for _, q := range ps {
-		u := rng.Float64()
-		x := q.Min + u*(q.Max-q.Min)
-		if q.Scale == topologies.Log {
-			x = q.Min * math.Pow(q.Max/q.Min, u)
-		}
-		v[q.Name] = math.Min(q.Max, math.Max(q.Min, x))
+		v[q.Name] = q.FromUnit(rng.Float64())
 	}
 	return v
 }

@@ -30,8 +30,7 @@ func FamiliesTable(w io.Writer, fams []topologies.Family) error {
 		t := &textTable{right: []bool{false, true, true, true, false, false}}
 		t.add("param", "default", "min", "max", "scale", "")
 		for _, p := range f.Params() {
-			t.add(p.Name, units.Format(p.Default, p.Unit), units.Format(p.Min, p.Unit),
-				units.Format(p.Max, p.Unit), p.Scale.String(), p.Doc)
+			t.add(p.Name, p.Text(p.Default), p.Text(p.Min), p.Text(p.Max), p.Scale.String(), p.Doc)
 		}
 		t.write(e, "  ")
 	}

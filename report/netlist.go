@@ -66,7 +66,14 @@ func writeStage(w *bufio.Writer, st *topologies.Stage, sub bool) {
 		}
 	}
 	for _, i := range c.ISources {
-		if !i.Bench {
+		switch {
+		case i.Bench:
+		case i.Law != nil:
+			// A reference current with a temperature law: a behavioural
+			// source that ngspice evaluates at its own .temp (temper, °C).
+			fmt.Fprintf(w, "B%s %s %s I = %s*pow((temper+%s)/%s, %s)\n", i.Name, nd(i.P), nd(i.N),
+				num(i.Law.Ref), num(units.ZeroCelsius), num(i.Law.RefK), num(i.Law.Exp))
+		default:
 			fmt.Fprintf(w, "%s %s %s DC %s\n", i.Name, nd(i.P), nd(i.N), num(i.Value.DC))
 		}
 	}
@@ -91,7 +98,7 @@ func header(w *bufio.Writer, d *objectives.Design, what string, notice ...string
 	if err == nil {
 		var parts []string
 		for _, p := range fam.Params() {
-			parts = append(parts, p.Name+"="+units.Format(d.Params[p.Name], p.Unit))
+			parts = append(parts, p.Name+"="+p.Text(d.Params[p.Name]))
 		}
 		for len(parts) > 0 {
 			k := min(6, len(parts))

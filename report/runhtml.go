@@ -14,6 +14,7 @@ import (
 	"pairsmith/objectives"
 	"pairsmith/sim/device"
 	"pairsmith/sizing"
+	"pairsmith/topologies"
 )
 
 // pageRow is one row of a two-column table on the report page.
@@ -189,7 +190,11 @@ func paramRows(d *objectives.Design) []pageParam {
 			if !ok {
 				continue
 			}
-			rows = append(rows, pageParam{p.Name, paramText(v, UnitSymbol(p.Unit)), p.Doc})
+			text := paramText(v, UnitSymbol(p.Unit))
+			if p.Scale == topologies.Choice {
+				text = p.Text(v)
+			}
+			rows = append(rows, pageParam{p.Name, text, p.Doc})
 			done[p.Name] = true
 		}
 	}

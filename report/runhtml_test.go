@@ -11,6 +11,7 @@ import (
 
 	"pairsmith/objectives"
 	"pairsmith/optimize"
+	"pairsmith/topologies"
 )
 
 // TestFrontText: the cap on the reported front is said wherever the
@@ -121,8 +122,11 @@ func TestRunPageContents(t *testing.T) {
 		t.Fatal(err)
 	}
 	for _, p := range fams.Params() {
-		want := fmt.Sprintf("<tr><td><code>%s</code></td><td class=\"num\">%s</td>", p.Name,
-			paramText(best.Design.Params[p.Name], UnitSymbol(p.Unit)))
+		text := paramText(best.Design.Params[p.Name], UnitSymbol(p.Unit))
+		if p.Scale == topologies.Choice {
+			text = p.Text(best.Design.Params[p.Name])
+		}
+		want := fmt.Sprintf("<tr><td><code>%s</code></td><td class=\"num\">%s</td>", p.Name, text)
 		if !strings.Contains(sec, want) {
 			t.Errorf("best candidate: no parameter row %q", want)
 		}

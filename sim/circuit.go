@@ -72,6 +72,17 @@ type ISource struct {
 	P, N  Node
 	Value Drive
 	Bench bool
+	// Law, when not nil, says how the current depends on temperature
+	// (Value holds it at the circuit's temperature): a netlist writes it
+	// as a source ngspice evaluates at its own .temp.
+	Law *TempLaw
+}
+
+// TempLaw is a current's power law in temperature: Ref·(T/RefK)^Exp.
+type TempLaw struct {
+	Ref  float64 // A, the current at RefK
+	RefK float64 // K
+	Exp  float64
 }
 
 // VCCS is a voltage-controlled current source (SPICE G element): a current

@@ -7,7 +7,6 @@ package sizing
 import (
 	"errors"
 	"fmt"
-	"math"
 	"slices"
 
 	"pairsmith/objectives"
@@ -48,7 +47,8 @@ type Problem struct {
 	Spec    *objectives.Spec
 	fams    []topologies.Family
 	params  [][]topologies.Param
-	targets objectives.Targets // the spec's, tightened by Margin
+	fixed   []topologies.Values // the parameters not searched, at their defaults
+	targets objectives.Targets  // the spec's, tightened by Margin
 	solvers objectives.SolverCache
 	// starts holds each family's reference solution (nil for none): its
 	// defaults' first sweep point, where every candidate's first Newton
@@ -83,7 +83,21 @@ func NewProblem(spec *objectives.Spec) (*Problem, error) {
 		if err != nil {
 			return nil, fmt.Errorf("sizing: %w", err)
 		}
+		// The reference currents' temperature law changes nothing at a
+		// single temperature (every law gives the parameter's current
+		// at the nominal one): it is searched only over a range.
+		fixed := topologies.Values{}
+		if spec.Signoff.Temperature.IsSingle() {
+			ps = slices.DeleteFunc(ps, func(q topologies.Param) bool {
+				if q.Name == topologies.PBiasLaw.Name {
+					fixed[q.Name] = q.Default
+					return true
+				}
+				return false
+			})
+		}
 		p.params = append(p.params, ps)
+		p.fixed = append(p.fixed, fixed)
 	}
 	if len(p.fams) == 0 {
 		return nil, errors.New("sizing: the spec names no topology")
@@ -137,19 +151,16 @@ func (p *Problem) ParamNames(f int) []string {
 	return out
 }
 
-// Values maps normalised coordinates of family f to parameter values.
+// Values maps normalised coordinates of family f to parameter values
+// (topologies.Param.FromUnit), the parameters the search leaves fixed at
+// their defaults.
 func (p *Problem) Values(f int, x []float64) topologies.Values {
-	v := make(topologies.Values, len(p.params[f]))
+	v := make(topologies.Values, len(p.params[f])+len(p.fixed[f]))
 	for i, q := range p.params[f] {
-		u := optimize.Clamp01(x[i])
-		var val float64
-		if q.Scale == topologies.Log {
-			val = q.Min * math.Pow(q.Max/q.Min, u)
-		} else {
-			val = q.Min + u*(q.Max-q.Min)
-		}
-		// Exactly on the bounds at the box's faces, whatever the rounding.
-		v[q.Name] = math.Min(q.Max, math.Max(q.Min, val))
+		v[q.Name] = q.FromUnit(optimize.Clamp01(x[i]))
+	}
+	for k, x := range p.fixed[f] {
+		v[k] = x
 	}
 	return v
 }
@@ -158,13 +169,7 @@ func (p *Problem) Values(f int, x []float64) topologies.Values {
 func (p *Problem) Normalize(f int, v topologies.Values) []float64 {
 	x := make([]float64, len(p.params[f]))
 	for i, q := range p.params[f] {
-		val := v[q.Name]
-		if q.Scale == topologies.Log {
-			x[i] = math.Log(val/q.Min) / math.Log(q.Max/q.Min)
-		} else {
-			x[i] = (val - q.Min) / (q.Max - q.Min)
-		}
-		x[i] = optimize.Clamp01(x[i])
+		x[i] = optimize.Clamp01(q.ToUnit(v[q.Name]))
 	}
 	return x
 }

@@ -27,12 +27,27 @@ var (
 	pLT    = Param{Name: "lt", Unit: units.Metre, Size: Length, Min: 0.18e-6, Max: 10e-6, Default: 2e-6, Scale: Log, Doc: "length of all tail, mirror and reference transistors"}
 	pKBias = Param{Name: "kbias", Unit: units.Dimensionless, Min: 1, Max: 10, Default: 4, Scale: Linear, Doc: "tail current over reference-branch current"}
 	pVHead = Param{Name: "vhead", Unit: units.Volt, Size: Headroom, Min: 0.05, Max: 0.6, Default: 0.2, Scale: Linear, Doc: "headroom of the summing nodes from the rails (at least the summing stage's V_DSAT plus the saturation margin)"}
+	// PBiasLaw is every family's reference-current temperature law
+	// (BiasLaws, docs/families.md#reference-temperature-laws).
+	PBiasLaw = Param{Name: "bias_law", Unit: units.Dimensionless, Min: 0, Max: float64(len(BiasLaws) - 1), Default: 0, Scale: Choice,
+		Choices: BiasLaws, Doc: "temperature law of the reference currents: constant, ptat (∝ T) or constant-gm (a β-multiplier's, ∝ 1/KP_n(T))"}
+)
+
+// BiasLaws are the reference currents' temperature laws, by the index
+// the bias_law parameter holds: constant, ptat and constant-gm.
+var BiasLaws = []string{"constant", "ptat", "constant-gm"}
+
+// The indices of BiasLaws.
+const (
+	LawConstant = iota
+	LawPTAT
+	LawConstantGM
 )
 
 func pairParams(n, p bool, extra ...Param) []Param {
 	// One allocation: the search reads a family's parameters several times
 	// an evaluation.
-	ps := make([]Param, 0, 9+len(extra))
+	ps := make([]Param, 0, 10+len(extra))
 	if n {
 		ps = append(ps, pWN, pLN)
 	}
@@ -47,7 +62,7 @@ func pairParams(n, p bool, extra ...Param) []Param {
 		ps = append(ps, pWTP)
 	}
 	ps = append(ps, pLT, pKBias, pVHead)
-	return append(ps, extra...)
+	return append(append(ps, extra...), PBiasLaw)
 }
 
 // builder assembles a stage and its bench.
@@ -254,6 +269,9 @@ func (b *builder) finish() (*Stage, error) {
 		return nil, b.err
 	}
 	c := b.c
+	if err := b.applyBiasLaw(); err != nil {
+		return nil, err
+	}
 	c.AddProbe(ProbeOut, b.iout...)
 	c.AddProbe(ProbeIN, b.in...)
 	c.AddProbe(ProbeIP, b.ip...)
@@ -275,4 +293,52 @@ func (b *builder) finish() (*Stage, error) {
 	b.st.VHead = b.p(pVHead)
 	b.st.Supply = b.cond.Supply
 	return b.st, nil
+}
+
+// applyBiasLaw puts the family's reference-current temperature law on
+// every reference current of the stage (its sources that are not the
+// bench's): each has its parameter value at the reference temperature
+// (Conditions.BiasRefK) and scales as (T/T_ref)^e at the circuit's
+// temperature T — e = 0 for constant, 1 for ptat, and for constant-gm
+// minus the NMOS card's mobility exponent, the current of a β-multiplier
+// reference with a temperature-independent resistor, I ∝ 1/(KP_n·R²)
+// (Razavi, Design of Analog CMOS Integrated Circuits, "constant-Gm
+// biasing", from memory), which holds a square-law device's gm constant.
+// At the reference temperature every law leaves the currents as they
+// are, bit for bit.
+func (b *builder) applyBiasLaw() error {
+	law := b.p(PBiasLaw)
+	if b.err != nil {
+		return b.err
+	}
+	exp := 0.0
+	switch int(law) {
+	case LawPTAT:
+		exp = 1
+	case LawConstantGM:
+		e, ok := device.MobilityExponent(b.nm)
+		if !ok {
+			return fmt.Errorf("%s: bias_law constant-gm needs a card with a power-law mobility, and the NMOS card of %s has none", b.st.Family, b.cond.Process.Name)
+		}
+		exp = -e
+	}
+	ref := b.cond.BiasRefK
+	if ref == 0 {
+		ref = b.cond.TempK
+	}
+	factor := 1.0
+	if exp != 0 && ref != b.cond.TempK {
+		factor = math.Pow(b.cond.TempK/ref, exp)
+	}
+	for i := range b.c.ISources {
+		is := &b.c.ISources[i]
+		if is.Bench {
+			continue
+		}
+		if exp != 0 {
+			is.Law = &sim.TempLaw{Ref: is.Value.DC, RefK: ref, Exp: exp}
+		}
+		is.Value.DC *= factor
+	}
+	return nil
 }

@@ -14,4 +14,8 @@ type Conditions struct {
 	Process *device.Process
 	Supply  float64 // V
 	TempK   float64 // K
+	// BiasRefK is the temperature at which the reference currents take
+	// their parameter values (the design's nominal temperature), K; 0 is
+	// TempK. Away from it they follow the family's bias_law.
+	BiasRefK float64
 }

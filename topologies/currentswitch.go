@@ -33,7 +33,7 @@ func (currentSwitch) Summary() string {
 	return "one PMOS tail; a switch at vref hands its current to the NMOS pair through a mirror"
 }
 func (currentSwitch) Params() []Param {
-	return []Param{pWN, pLN, pWP, pLP, pITail, pWTP, pLT, pKBias, pVHead, pVRef, pRatio, pWSw, pWM}
+	return []Param{pWN, pLN, pWP, pLP, pITail, pWTP, pLT, pKBias, pVHead, pVRef, pRatio, pWSw, pWM, PBiasLaw}
 }
 
 func (f currentSwitch) Build(v Values, cond Conditions) (*Stage, error) {

@@ -30,12 +30,18 @@ type Scale int
 const (
 	Linear Scale = iota
 	Log
+	// Choice is one of a list of words (Param.Choices), held as its index
+	// 0, 1, … and searched as a choice among them.
+	Choice
 )
 
-// String returns "lin" or "log".
+// String returns "lin", "log" or "choice".
 func (s Scale) String() string {
-	if s == Log {
+	switch s {
+	case Log:
 		return "log"
+	case Choice:
+		return "choice"
 	}
 	return "lin"
 }
@@ -50,6 +56,62 @@ type Param struct {
 	// Size says which process rule bounds the parameter (ParamsFor).
 	Size SizeKind
 	Doc  string
+	// Choices are the words of a Choice parameter, its values being
+	// their indices (Min 0, Max len−1).
+	Choices []string
+}
+
+// Text writes a value of the parameter as files take it: the word of a
+// choice, else the quantity in its unit.
+func (p Param) Text(v float64) string {
+	if p.Scale == Choice {
+		if i := int(v); float64(i) == v && i >= 0 && i < len(p.Choices) {
+			return p.Choices[i]
+		}
+	}
+	return units.Format(v, p.Unit)
+}
+
+// FromUnit maps u in [0, 1] onto the parameter's bounds as its scale
+// says: log or linear, and for a choice the index of the equal share of
+// [0, 1] u falls in. The bounds' faces map exactly onto the bounds.
+func (p Param) FromUnit(u float64) float64 {
+	u = math.Min(1, math.Max(0, u))
+	var v float64
+	switch p.Scale {
+	case Log:
+		v = p.Min * math.Pow(p.Max/p.Min, u)
+	case Choice:
+		v = math.Min(p.Max, p.Min+math.Floor(u*(p.Max-p.Min+1)))
+	default:
+		v = p.Min + u*(p.Max-p.Min)
+	}
+	return math.Min(p.Max, math.Max(p.Min, v))
+}
+
+// ToUnit is FromUnit's inverse, clamped to [0, 1]: a choice maps to the
+// middle of its share.
+func (p Param) ToUnit(v float64) float64 {
+	var u float64
+	switch p.Scale {
+	case Log:
+		u = math.Log(v/p.Min) / math.Log(p.Max/p.Min)
+	case Choice:
+		u = (v - p.Min + 0.5) / (p.Max - p.Min + 1)
+	default:
+		u = (v - p.Min) / (p.Max - p.Min)
+	}
+	return math.Min(1, math.Max(0, u))
+}
+
+// Choose returns the index of a choice's word, and whether it is one.
+func (p Param) Choose(word string) (float64, bool) {
+	for i, c := range p.Choices {
+		if c == word {
+			return float64(i), true
+		}
+	}
+	return 0, false
 }
 
 // Values maps parameter names to SI values.
@@ -181,9 +243,12 @@ func Complete(f Family, given Values) (Values, error) {
 			return nil, &RangeError{Param: k, Given: given[k], Want: want}
 		}
 		x := given[k]
-		if math.IsNaN(x) || x < p.Min || x > p.Max {
-			return nil, &RangeError{Param: k, Given: x,
-				Want: fmt.Sprintf("%s … %s", units.Format(p.Min, p.Unit), units.Format(p.Max, p.Unit))}
+		if math.IsNaN(x) || x < p.Min || x > p.Max || (p.Scale == Choice && x != math.Trunc(x)) {
+			want := fmt.Sprintf("%s … %s", units.Format(p.Min, p.Unit), units.Format(p.Max, p.Unit))
+			if p.Scale == Choice {
+				want = "one of " + strings.Join(p.Choices, ", ")
+			}
+			return nil, &RangeError{Param: k, Given: x, Want: want}
 		}
 		v[k] = x
 	}

@@ -47,6 +47,10 @@ func sizings(f topologies.Family, supply float64, n int, rng *rand.Rand) []topol
 		v := topologies.Values{}
 		for _, p := range f.Params() {
 			x := base[p.Name]
+			if p.Scale == topologies.Choice {
+				v[p.Name] = math.Floor(rng.Float64() * float64(len(p.Choices)))
+				continue
+			}
 			if p.Scale == topologies.Log {
 				x *= math.Pow(3, 2*rng.Float64()-1)
 			} else {
@@ -102,8 +106,10 @@ func TestFamiliesAgainstNgspice(t *testing.T) {
 // TestFamiliesAtCornersAgainstNgspice: every family at its defaults on
 // demo18-l1 at two far conditions — the fast corner at the highest supply
 // and temperature (ff, 1.98 V, 125 °C) and the slow one at the lowest
-// (ss, 1.62 V, −40 °C) — against ngspice running the deck written with
-// that corner's cards, supply and .temp.
+// (ss, 1.62 V, −40 °C) — with each temperature law of the reference
+// currents, referred to 27 °C, against ngspice running the deck written
+// with that corner's cards, supply and .temp, the laws as behavioural
+// sources of ngspice's own temperature (temper).
 //
 // Source: ngspice (Debian package), as TestFamiliesAgainstNgspice. Check
 // (issue 9): gm within 1 % of the peak at every point. The drain currents
@@ -129,12 +135,16 @@ func TestFamiliesAtCornersAgainstNgspice(t *testing.T) {
 			t.Fatal(err)
 		}
 		for _, f := range topologies.All() {
-			t.Run(fmt.Sprintf("%s/%gV/%gC/%s", c.corner, c.supply, c.tempC, f.Name()), func(t *testing.T) {
-				// 36 steps rail to rail, so that ngspice's .dc ends at the
-				// rail as pairsmith's sweep does.
-				gm, _ := compareWithNgspice(t, f, sizings(f, c.supply, 0, nil)[0], at, c.supply, c.tempC+device.ZeroC, c.supply/36, false)
-				worst = math.Max(worst, gm)
-			})
+			for law, name := range topologies.BiasLaws {
+				t.Run(fmt.Sprintf("%s/%gV/%gC/%s/%s", c.corner, c.supply, c.tempC, f.Name(), name), func(t *testing.T) {
+					v := sizings(f, c.supply, 0, nil)[0]
+					v[topologies.PBiasLaw.Name] = float64(law)
+					// 36 steps rail to rail, so that ngspice's .dc ends at the
+					// rail as pairsmith's sweep does.
+					gm, _ := compareWithNgspice(t, f, v, at, c.supply, c.tempC+device.ZeroC, c.supply/36, false)
+					worst = math.Max(worst, gm)
+				})
+			}
 		}
 	}
 	t.Logf("worst gm error %.3g of peak gm", worst)
@@ -143,7 +153,7 @@ func TestFamiliesAtCornersAgainstNgspice(t *testing.T) {
 func compareWithNgspice(t *testing.T, f topologies.Family, v topologies.Values, proc *device.Process, supply, tempK, step float64, checkID bool) (gmErr, idErr float64) {
 	t.Helper()
 	d := &objectives.Design{
-		Topology: f.Name(), ProcessRef: proc.Name, Conditions: topologies.Conditions{Process: proc, Supply: supply, TempK: tempK},
+		Topology: f.Name(), ProcessRef: proc.Name, Conditions: topologies.Conditions{Process: proc, Supply: supply, TempK: tempK, BiasRefK: 27 + device.ZeroC},
 		Sweep: sim.SweepSpec{Low: 0, High: supply, Step: step},
 	}
 	var err error

@@ -189,9 +189,11 @@ type paramJSON struct {
 	Unit    string  `json:"unit"` // SI unit; "" for a plain number or fraction
 	Min     float64 `json:"min"`
 	Max     float64 `json:"max"`
-	Scale   string  `json:"scale"` // "lin" or "log"
+	Scale   string  `json:"scale"` // "lin", "log" or "choice"
 	Default float64 `json:"default"`
 	Doc     string  `json:"doc"`
+	// Choices are a choice's words; its values are their indices.
+	Choices []string `json:"choices,omitempty"`
 }
 
 func familiesDoc() familiesJSON {
@@ -201,7 +203,7 @@ func familiesDoc() familiesJSON {
 		for _, p := range f.Params() {
 			fj.Params = append(fj.Params, paramJSON{
 				Name: p.Name, Unit: report.UnitSymbol(p.Unit), Min: p.Min, Max: p.Max,
-				Scale: p.Scale.String(), Default: p.Default, Doc: p.Doc,
+				Scale: p.Scale.String(), Default: p.Default, Doc: p.Doc, Choices: p.Choices,
 			})
 		}
 		doc.Families = append(doc.Families, fj)

@@ -160,7 +160,7 @@ func TestDemoDesigns(t *testing.T) {
 			}
 			want := demoParams(name, fam)
 			for _, p := range fam.Params() {
-				if got, want := raw.Params[p.Name], units.Format(want[p.Name], p.Unit); got != want {
+				if got, want := raw.Params[p.Name], p.Text(want[p.Name]); got != want {
 					t.Errorf("params.%s = %q, want %q (the default, or demoSizing)", p.Name, got, want)
 				}
 			}
@@ -372,6 +372,7 @@ func TestTopologiesJSON(t *testing.T) {
 				Scale   string   `json:"scale"`
 				Default *float64 `json:"default"`
 				Doc     string   `json:"doc"`
+				Choices []string `json:"choices"`
 			} `json:"params"`
 		} `json:"families"`
 	}
@@ -417,6 +418,10 @@ func TestTopologiesJSON(t *testing.T) {
 			case "log":
 				if !(*p.Min > 0) {
 					t.Errorf("%s.%s: log scale from %g", f.Name, p.Name, *p.Min)
+				}
+			case "choice":
+				if len(p.Choices) < 2 || *p.Min != 0 || *p.Max != float64(len(p.Choices)-1) {
+					t.Errorf("%s.%s: choices %v over %g … %g", f.Name, p.Name, p.Choices, *p.Min, *p.Max)
 				}
 			default:
 				t.Errorf("%s.%s: scale %q", f.Name, p.Name, p.Scale)

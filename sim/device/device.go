@@ -163,3 +163,26 @@ type Model interface {
 type SpiceCarder interface {
 	SpiceCard(name string, tempK float64) string
 }
+
+// mobilityCard is a card whose KP follows a power law in temperature.
+type mobilityCard interface{ mobilityExponent() float64 }
+
+// MobilityExponent returns e of a card whose KP scales as (T/Tnom)^e:
+// −1.5 for the SPICE level-1 law, BEX for EKV and for level 1's linear
+// law; false for a card without such a law.
+func MobilityExponent(m Model) (float64, bool) {
+	c, ok := m.(mobilityCard)
+	if !ok {
+		return 0, false
+	}
+	return c.mobilityExponent(), true
+}
+
+func (c *Level1) mobilityExponent() float64 {
+	if c.LinearTemp {
+		return c.BEX
+	}
+	return -1.5
+}
+
+func (c *EKV) mobilityExponent() float64 { return c.BEX }
