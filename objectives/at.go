@@ -87,3 +87,11 @@ func (d *Design) Under(c Condition) *Design {
 	out.corners = nil
 	return &out
 }
+
+// sigma returns the k of the design's k-sigma mismatch figures.
+func (d *Design) sigma() float64 {
+	if d.Signoff.Sigma > 0 {
+		return d.Signoff.Sigma
+	}
+	return DefaultSigma
+}

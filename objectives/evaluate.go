@@ -97,6 +97,7 @@ type swept struct {
 	res      *sim.Result
 	metrics  Metrics
 	findings []Finding
+	mismatch *MismatchResult // nil on a process without mismatch coefficients
 }
 
 // sweep builds, sweeps and checks a design: the one code path behind
@@ -135,7 +136,29 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 	}
 	sw.findings = Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK)
 	wg.Wait()
+	if mismatchOK(d.Process) {
+		mm, err := analyseMismatch(st, s, res, d.Process)
+		if err != nil {
+			return nil, err
+		}
+		sw.mismatch = mm.result(d.sigma())
+		sw.mismatch.fill(&sw.metrics)
+	}
 	return sw, nil
+}
+
+// addMismatch estimates the mismatch of a sweep into m's figures, on a
+// process that gives coefficients.
+func addMismatch(m *Metrics, st *topologies.Stage, s *sim.Solver, res *sim.Result, d *Design) error {
+	if !mismatchOK(d.Process) {
+		return nil
+	}
+	mm, err := analyseMismatch(st, s, res, d.Process)
+	if err != nil {
+		return err
+	}
+	mm.result(d.sigma()).fill(m)
+	return nil
 }
 
 // SolverCache keeps compiled solvers by family, each with the buffers
@@ -196,12 +219,13 @@ func (sc *SolverCache) put(family string, b *bench) {
 // search's candidates reach in fewer iterations than from the circuit's
 // guess; nil starts from the guess.
 func MeasureStaged(d *Design, cache *SolverCache, coarse float64, start []float64, reject func(Metrics, []Finding) bool) (m Metrics, fs []Finding, fine bool, err error) {
-	return measureStaged(d, cache, coarse, start, reject, nil)
+	return measureStaged(d, cache, coarse, start, reject, nil, true)
 }
 
 // measureStaged is MeasureStaged that also copies the first point's
-// unknowns into *first when first is not nil.
-func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float64, reject func(Metrics, []Finding) bool, first *[]float64) (m Metrics, fs []Finding, fine bool, err error) {
+// unknowns into *first when first is not nil, and estimates mismatch on
+// each look only when wantMismatch says so.
+func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float64, reject func(Metrics, []Finding) bool, first *[]float64, wantMismatch bool) (m Metrics, fs []Finding, fine bool, err error) {
 	st, err := Build(d)
 	if err != nil {
 		return Metrics{}, nil, false, err
@@ -229,6 +253,11 @@ func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float6
 		*first = append((*first)[:0], res.X[:s.Unknowns()]...)
 	}
 	m, fs = Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr)
+	if wantMismatch {
+		if err := addMismatch(&m, st, s, res, d); err != nil {
+			return Metrics{}, nil, false, err
+		}
+	}
 	if look.Step == d.Sweep.Step || reject(m, fs) {
 		return m, fs, false, nil
 	}
@@ -245,7 +274,11 @@ func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float6
 	if err := CheckPhysical(st, res); err != nil {
 		return Metrics{}, nil, true, err
 	}
-	return Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr), true, nil
+	m, fs = Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr)
+	if wantMismatch {
+		err = addMismatch(&m, st, s, res, d)
+	}
+	return m, fs, true, err
 }
 
 // FirstSolution returns the solver's unknowns at the first point of d's
@@ -306,7 +339,7 @@ func Evaluate(d *Design) (*Evaluation, error) {
 	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: sw.metrics, Findings: sw.findings}
 	conds := d.AllConditions()
 	ev.Conditions = make([]ConditionEval, len(conds))
-	ev.Conditions[0] = ConditionEval{Condition: conds[0], Metrics: sw.metrics, Findings: sw.findings, Fine: true}
+	ev.Conditions[0] = ConditionEval{Condition: conds[0], Metrics: sw.metrics, Findings: sw.findings, Fine: true, Mismatch: sw.mismatch}
 	if len(conds) > 1 {
 		if err := measureConditions(d, conds[1:], ev.Conditions[1:], &SolverCache{}, conditionWorkers()); err != nil {
 			return nil, err
@@ -351,7 +384,9 @@ type JSON struct {
 	// the nominal one first; Worst each figure's worst case and where.
 	Conditions []ConditionJSON      `json:"conditions"`
 	Worst      map[string]WorstJSON `json:"worst"`
-	Caution    string               `json:"caution"`
+	// Mismatch is null on a process without mismatch coefficients.
+	Mismatch *MismatchJSON `json:"mismatch"`
+	Caution  string        `json:"caution"`
 }
 
 // Doc returns the evaluation as its JSON document.
@@ -362,7 +397,8 @@ func (ev *Evaluation) Doc() JSON {
 		Curve: ev.Curve(), Metrics: ev.Metrics, MidVCM: ev.MidVCM, Devices: ev.Devices,
 		Checks:     append([]Finding{}, ev.Findings...),
 		Conditions: ConditionsJSON(ev.Conditions), Worst: ev.WorstFor(NoTargets()).JSON(ev.Conditions),
-		Caution: Caution,
+		Mismatch: mismatchJSON(ev.Conditions),
+		Caution:  Caution,
 	}
 }
 

@@ -39,6 +39,12 @@ type Metrics struct {
 	// which has no weak inversion, can exceed that, so a large value flags
 	// a design outside the model's validity. NaN when no pair conducts.
 	GMOverIDMin float64
+	// Offset is the k-sigma input offset from device mismatch, the
+	// largest over the range, and OffsetDrift the k-sigma change of
+	// offset between two common modes, V, with k the design's
+	// mismatch.sigma (docs/mismatch.md); NaN when not estimated (a process
+	// without mismatch coefficients, or a search's look that needs none).
+	Offset, OffsetDrift float64
 }
 
 // MarshalJSON writes the metrics by their catalog keys (their names in
@@ -117,6 +123,7 @@ func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 	var m Metrics
 	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
 	m.GMMin, m.GMMax, m.GMOverIDMin = math.Inf(1), math.Inf(-1), math.Inf(1)
+	m.Offset, m.OffsetDrift = math.NaN(), math.NaN()
 	for i, g := range res.GM {
 		// A gm below zero here lies within the solver's tolerance of it
 		// (CheckPhysical refuses a sweep with one beyond): it is zero.

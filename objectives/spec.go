@@ -227,6 +227,9 @@ func readSpec(m *units.Map, baseDir string) (*Spec, error) {
 	if s.Pareto, err = readPareto(m); err != nil {
 		return nil, err
 	}
+	if err := checkMismatchAsked(m, s); err != nil {
+		return nil, err
+	}
 	if s.Topologies, err = readTopologies(m); err != nil {
 		return nil, err
 	}

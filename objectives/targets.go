@@ -14,6 +14,8 @@ const (
 	TargetAreaMax            = "area_max"
 	TargetSwitchover         = "switchover"
 	TargetTransitionWidthMax = "transition_width_max"
+	TargetOffsetMax          = "offset_max"
+	TargetOffsetDriftMax     = "offset_drift_max"
 )
 
 // targetOrder is the order of Check and Names: the spec keys of the
@@ -38,6 +40,8 @@ const (
 	AxisArea            = "area"
 	AxisGMMin           = "gm_min"
 	AxisTransitionWidth = "transition_width"
+	AxisOffset          = "offset"
+	AxisOffsetDrift     = "offset_drift"
 )
 
 // AxisNames returns every trade-off axis a spec may name, in a fixed
@@ -77,6 +81,7 @@ const (
 	DefaultScaleArea            = 1e-8  // 10 000 µm²
 	DefaultScaleGMMin           = 1e-4  // 100 µS
 	DefaultScaleTransitionWidth = 0.2   // 200 mV
+	DefaultScaleOffset          = 1e-3  // 1 mV
 	defaultScaleUnknown         = 1.0   // an axis name Spec does not know
 	worstAxisValue              = 1e300 // a failed evaluation's power or area on an axis
 )
@@ -110,6 +115,8 @@ type Targets struct {
 	AreaMax            float64          // m²
 	Switchover         SwitchoverTarget // V; set when its Tolerance is
 	TransitionWidthMax float64          // V
+	OffsetMax          float64          // V, k-sigma
+	OffsetDriftMax     float64          // V, k-sigma
 }
 
 // SwitchoverTarget asks for the handover's centre (Metrics.Switchover)

@@ -103,6 +103,7 @@ type Solver struct {
 	ops []device.LargeSignal
 
 	save []float64 // scratch copy of v
+	adj  []float64 // Sensitivities' weights of the residual rows
 	// tan[k] is d x / d vcm at a sweep's k-th last point, newest first
 	// (the sweeps that record tangents: shorter than SplitPoints).
 	tan [hermitePoints][]float64

@@ -32,16 +32,23 @@ func (c Corner) shifted(m Model, t Type) Model {
 	if t == PMOS {
 		sh = c.P
 	}
-	sign := float64(t) // +1 for an NMOS, −1 for a PMOS (SPICE signs)
+	return Shifted(m, sh)
+}
+
+// Shifted returns a copy of card m with its threshold's magnitude moved
+// by sh.DVT (V) and its KP scaled by 1 + sh.DKP: a corner's card, or one
+// device's own card in a mismatch sample. A card of another kind is
+// returned as it is.
+func Shifted(m Model, sh Shift) Model {
 	switch card := m.(type) {
 	case *Level1:
 		out := *card
-		out.VTO += sign * sh.DVT
+		out.VTO += float64(card.Polarity) * sh.DVT // +1 for an NMOS, −1 for a PMOS (SPICE signs)
 		out.KP *= 1 + sh.DKP
 		return &out
 	case *EKV:
 		out := *card
-		out.VTO += sign * sh.DVT
+		out.VTO += float64(card.Polarity) * sh.DVT
 		out.KP *= 1 + sh.DKP
 		return &out
 	}

@@ -1,0 +1,101 @@
+package objectives_test
+
+import (
+	"errors"
+	"math"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"pairsmith/objectives"
+	"pairsmith/units"
+)
+
+// TestPelgromNPair: the sensitivity estimate of an n-pair's input offset
+// on the level-1 demo process equals the textbook closed form for a
+// square-law pair, σ(V_os) = √(σ(ΔV_T)² + (V_ov/2 · σ(Δβ/β))²), with
+// σ(ΔV_T) = A_VT/√(W·L) and σ(Δβ/β) = A_β/√(W·L) of the pair's devices
+// (Pelgrom, Duinmaijer, Welbers, IEEE JSSC 24(5), 1989; the β term from
+// any analog design text), within 5 % (issue 9), at three common modes
+// where the pair conducts; and the k-sigma figures are k times the
+// one-sigma ones.
+func TestPelgromNPair(t *testing.T) {
+	text := "topology: n-pair\nprocess: demo18-l1\nsupply: 1.8V\ncorners: tt\nmismatch: {sigma: 4}\n" +
+		"sweep: {low: 0.9V, high: 1.5V, step: 0.3V}\nparams: {wn: 10um, ln: 2um, itail: 40uA}\n"
+	d, err := objectives.ReadDesign("n.yaml", []byte(text), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ev, err := objectives.Evaluate(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mm := ev.Conditions[0].Mismatch
+	if mm == nil {
+		t.Fatal("no mismatch estimate on demo18-l1")
+	}
+	p := d.Process.Mismatch.N
+	area := 10e-6 * 2e-6
+	svt, sb := p.AVT/math.Sqrt(area), p.ABeta/math.Sqrt(area)
+	for i, vcm := range mm.VCM {
+		// The pair's overdrive at this point: from a design evaluated
+		// there alone (its device report is at the middle of its sweep).
+		one := *d
+		one.Sweep.Low, one.Sweep.High = vcm, vcm
+		at, err := objectives.Evaluate(&one)
+		if err != nil {
+			t.Fatal(err)
+		}
+		m1 := at.Devices[0]
+		if m1.Role != "nmos input" {
+			t.Fatalf("first device %s is a %s", m1.Name, m1.Role)
+		}
+		vov := m1.VGS - m1.VTH
+		want := math.Hypot(svt, vov/2*sb)
+		t.Logf("vcm %g V: σ(V_os) %.5g V, Pelgrom %.5g V (%+.3g %%)", vcm, mm.Offset[i], want, 100*(mm.Offset[i]/want-1))
+		if got := mm.Offset[i]; math.Abs(got-want) > 0.05*want {
+			t.Errorf("vcm %g V: σ(V_os) %g V, Pelgrom's %g V (V_ov %g V)", vcm, got, want, vov)
+		}
+	}
+	if got := ev.Metrics.Offset; got != 4*mm.OffsetSigma {
+		t.Errorf("offset %g, want 4 × %g", got, mm.OffsetSigma)
+	}
+	if got := ev.Metrics.OffsetDrift; got != 4*mm.DriftSigma || !(mm.DriftSigma < mm.OffsetSigma) {
+		t.Errorf("offset drift %g (σ %g), want 4σ and below the offset σ %g for one pair", got, mm.DriftSigma, mm.OffsetSigma)
+	}
+}
+
+// TestOffsetNeedsCoefficients: a sheet that bounds or trades on an offset
+// on a process without mismatch coefficients is refused at that field,
+// and one with them reads.
+func TestOffsetNeedsCoefficients(t *testing.T) {
+	dir := t.TempDir()
+	data, err := os.ReadFile("../sim/device/processes/demo18.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var kept []string
+	for _, l := range strings.Split(string(data), "\n") {
+		if !strings.HasPrefix(l, "mismatch:") {
+			kept = append(kept, l)
+		}
+	}
+	if err := os.WriteFile(filepath.Join(dir, "plain.yaml"), []byte(strings.Join(kept, "\n")), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	for _, tt := range []struct{ text, field string }{
+		{"process: plain.yaml\nsupply: 1.8V\ntargets: {offset_max: 4mV}\n", "targets.offset_max"},
+		{"process: plain.yaml\nsupply: 1.8V\ntargets:\n  offset_drift_max: 1mV\n", "targets.offset_drift_max"},
+		{"process: plain.yaml\nsupply: 1.8V\npareto: [power, offset]\n", "pareto[1]"},
+	} {
+		_, err := objectives.ReadSpec(filepath.Join(dir, "s.yaml"), []byte(tt.text), dir)
+		var ue *units.Error
+		if !errors.As(err, &ue) || ue.Field != tt.field || !strings.Contains(err.Error(), "mismatch") {
+			t.Errorf("%q: error %v, want one at %s naming the mismatch section", tt.text, err, tt.field)
+		}
+	}
+	if _, err := objectives.ReadSpec("s.yaml", []byte("process: demo18\nsupply: 1.8V\ntargets: {offset_max: 4mV}\npareto: [offset]\n"), ""); err != nil {
+		t.Errorf("demo18 with an offset target: %v", err)
+	}
+}
