@@ -329,8 +329,29 @@ func MeasureCached(d *Design, cache *SolverCache) (Metrics, []Finding, error) {
 	return sw.metrics, sw.findings, nil
 }
 
-// Evaluate builds, sweeps, measures and checks a design.
-func Evaluate(d *Design) (*Evaluation, error) {
+// Evaluate builds, sweeps, measures and checks a design at each of its
+// conditions.
+func Evaluate(d *Design) (*Evaluation, error) { return EvaluateWith(d, EvalOptions{}) }
+
+// EvalOptions change how Evaluate estimates mismatch.
+type EvalOptions struct {
+	// MonteCarlo, when positive, draws that many Monte Carlo samples at
+	// every condition instead of the sensitivity estimate, from Seed
+	// (MismatchShifts), on Workers goroutines (0: one per core); the
+	// result does not depend on Workers.
+	MonteCarlo int
+	Seed       int64
+	Workers    int
+}
+
+// EvaluateWith is Evaluate with options.
+func EvaluateWith(d *Design, opt EvalOptions) (*Evaluation, error) {
+	if opt.MonteCarlo > 0 && !mismatchOK(d.Process) {
+		return nil, errNoMismatch(d.Process)
+	}
+	if opt.MonteCarlo == 1 || opt.MonteCarlo > MaxSamples {
+		return nil, fmt.Errorf("monte carlo: %d samples, want 2 to %d", opt.MonteCarlo, MaxSamples)
+	}
 	sw, err := sweep(d, nil)
 	if err != nil {
 		return nil, err
@@ -344,6 +365,32 @@ func Evaluate(d *Design) (*Evaluation, error) {
 		if err := measureConditions(d, conds[1:], ev.Conditions[1:], &SolverCache{}, conditionWorkers()); err != nil {
 			return nil, err
 		}
+	}
+	if opt.MonteCarlo > 0 {
+		workers := opt.Workers
+		if workers <= 0 {
+			workers = conditionWorkers()
+		}
+		for i := range ev.Conditions {
+			c := &ev.Conditions[i]
+			dc := d.Under(c.Condition)
+			stc := st
+			if i > 0 {
+				if stc, err = Build(dc); err != nil {
+					return nil, err
+				}
+			}
+			mc, err := monteCarlo(dc, stc, opt.MonteCarlo, opt.Seed, workers)
+			if err != nil {
+				if len(ev.Conditions) > 1 {
+					err = fmt.Errorf("at %s: %w", c.Condition, err)
+				}
+				return nil, err
+			}
+			c.Mismatch = mc
+			mc.fill(&c.Metrics)
+		}
+		ev.Metrics = ev.Conditions[0].Metrics
 	}
 	w := WorstOver(ev.Conditions, NoTargets())
 	ev.Worst, ev.WorstAt, ev.Findings = w.Metrics, w.At, w.Findings

@@ -227,11 +227,15 @@ type MismatchResult struct {
 	// change of offset between two common modes, SwitchoverSigma the
 	// one-sigma shift of the handover's centre (NaN without one); V.
 	OffsetSigma, DriftSigma, SwitchoverSigma float64
+	// Method is MethodSensitivity or MethodMonteCarlo, Samples the
+	// number of Monte Carlo samples (0 for sensitivities).
+	Method  string
+	Samples int
 }
 
 // result turns the model into the figures of a design whose k is sigma.
 func (mm *mismatchModel) result(sigma float64) *MismatchResult {
-	r := &MismatchResult{Sigma: sigma, VCM: mm.vcm, Offset: mm.offsetSigmas()}
+	r := &MismatchResult{Sigma: sigma, VCM: mm.vcm, Offset: mm.offsetSigmas(), Method: MethodSensitivity}
 	for _, x := range r.Offset {
 		if !math.IsNaN(x) {
 			r.OffsetSigma = math.Max(r.OffsetSigma, x)
@@ -283,7 +287,7 @@ func mismatchJSON(cs []ConditionEval) *MismatchJSON {
 		return nil
 	}
 	nom := cs[0].Mismatch
-	out := &MismatchJSON{Sigma: nom.Sigma, Method: MethodSensitivity}
+	out := &MismatchJSON{Sigma: nom.Sigma, Method: nom.Method, Samples: nom.Samples}
 	var off, drift, sw float64
 	for _, c := range cs {
 		if m := c.Mismatch; m != nil {

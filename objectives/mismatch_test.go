@@ -99,3 +99,81 @@ func TestOffsetNeedsCoefficients(t *testing.T) {
 		t.Errorf("demo18 with an offset target: %v", err)
 	}
 }
+
+// TestMonteCarloAgainstSensitivity: 2000 Monte Carlo samples, each
+// device its own threshold and current factor and every offset solved
+// from the sample's own circuit, agree with the first-order sensitivity
+// estimate within three standard errors of a sample standard deviation,
+// σ/√(2(N−1)) (issue 9; the standard error from any statistics text), at
+// every common mode, for an n-pair and for the current switch, whose
+// offset moves from one pair's to the other's across the handover; the
+// switchover's spread too. The same seed gives the same result bit for
+// bit on one worker and on three.
+func TestMonteCarloAgainstSensitivity(t *testing.T) {
+	const samples = 2000
+	for _, family := range []string{"n-pair", "current-switch"} {
+		t.Run(family, func(t *testing.T) {
+			text := "topology: " + family + "\nprocess: demo18-l1\nsupply: 1.8V\ncorners: tt\nsweep: {low: 0.2V, high: 1.6V, step: 0.1V}\n"
+			d, err := objectives.ReadDesign("d.yaml", []byte(text), "")
+			if err != nil {
+				t.Fatal(err)
+			}
+			sens, err := objectives.Evaluate(d)
+			if err != nil {
+				t.Fatal(err)
+			}
+			mc, err := objectives.EvaluateWith(d, objectives.EvalOptions{MonteCarlo: samples, Seed: 7, Workers: 3})
+			if err != nil {
+				t.Fatal(err)
+			}
+			a, b := sens.Conditions[0].Mismatch, mc.Conditions[0].Mismatch
+			if b.Method != objectives.MethodMonteCarlo || b.Samples != samples {
+				t.Fatalf("method %s with %d samples", b.Method, b.Samples)
+			}
+			se := func(sigma float64) float64 { return 3 * sigma / math.Sqrt(2*(samples-1)) }
+			checked := 0
+			for i := range a.Offset {
+				if math.IsNaN(a.Offset[i]) {
+					if !math.IsNaN(b.Offset[i]) {
+						t.Errorf("vcm %g: dead for the sensitivities, %g by Monte Carlo", a.VCM[i], b.Offset[i])
+					}
+					continue
+				}
+				checked++
+				if math.Abs(b.Offset[i]-a.Offset[i]) > se(a.Offset[i]) {
+					t.Errorf("vcm %g V: Monte Carlo σ %g V, sensitivity %g V (3 SE %g V)", a.VCM[i], b.Offset[i], a.Offset[i], se(a.Offset[i]))
+				}
+			}
+			if checked < 10 {
+				t.Errorf("only %d live points checked", checked)
+			}
+			if family == "current-switch" {
+				if math.Abs(b.SwitchoverSigma-a.SwitchoverSigma) > se(a.SwitchoverSigma) || !(a.SwitchoverSigma > 0) {
+					t.Errorf("switchover σ: Monte Carlo %g V, sensitivity %g V", b.SwitchoverSigma, a.SwitchoverSigma)
+				}
+				if math.Abs(b.DriftSigma-a.DriftSigma) > se(a.DriftSigma) {
+					t.Errorf("offset drift σ: Monte Carlo %g V, sensitivity %g V", b.DriftSigma, a.DriftSigma)
+				}
+			}
+			t.Logf("offset σ: sensitivity %.4g V, Monte Carlo %.4g V; drift σ %.4g / %.4g V; switchover σ %.4g / %.4g V",
+				a.OffsetSigma, b.OffsetSigma, a.DriftSigma, b.DriftSigma, a.SwitchoverSigma, b.SwitchoverSigma)
+			one, err := objectives.EvaluateWith(d, objectives.EvalOptions{MonteCarlo: 200, Seed: 7, Workers: 1})
+			if err != nil {
+				t.Fatal(err)
+			}
+			three, err := objectives.EvaluateWith(d, objectives.EvalOptions{MonteCarlo: 200, Seed: 7, Workers: 3})
+			if err != nil {
+				t.Fatal(err)
+			}
+			p, q := one.Conditions[0].Mismatch, three.Conditions[0].Mismatch
+			for i := range p.Offset {
+				if math.Float64bits(p.Offset[i]) != math.Float64bits(q.Offset[i]) {
+					t.Fatalf("vcm %g: %g on one worker, %g on three", p.VCM[i], p.Offset[i], q.Offset[i])
+				}
+			}
+			if !one.Metrics.Same(three.Metrics) {
+				t.Errorf("metrics differ between one worker and three")
+			}
+		})
+	}
+}

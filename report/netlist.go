@@ -41,14 +41,30 @@ func modelName(t device.Type) string {
 	return NMOSModel
 }
 
+// ownCard returns the name of transistor m's own card — one that is not
+// process p's card of its type, as in a Monte Carlo sample
+// (objectives.WithShifts) — and whether it has one.
+func ownCard(m sim.Mosfet, p *device.Process) (string, bool) {
+	if p == nil || m.Model == p.Card(m.Model.Type()) {
+		return "", false
+	}
+	return modelName(m.Model.Type()) + "_" + strings.ToLower(m.Name), true
+}
+
 // writeStage writes the stage's own elements: every transistor, resistor
 // and controlled source, and the sources that are not part of the bench.
-func writeStage(w *bufio.Writer, st *topologies.Stage, sub bool) {
+// A transistor whose card is not process p's refers to its own
+// (ownCard).
+func writeStage(w *bufio.Writer, st *topologies.Stage, sub bool, p *device.Process) {
 	c := st.Circuit
 	nd := func(n sim.Node) string { return spiceNode(c, n, sub) }
 	for _, m := range c.Mosfets {
+		model := modelName(m.Model.Type())
+		if own, ok := ownCard(m, p); ok {
+			model = own
+		}
 		line := fmt.Sprintf("%s %s %s %s %s %s w=%s l=%s", m.Name, nd(m.D), nd(m.G), nd(m.S), nd(m.B),
-			modelName(m.Model.Type()), num(m.Geom.W), num(m.Geom.L))
+			model, num(m.Geom.W), num(m.Geom.L))
 		if m.Geom.Mult() != 1 {
 			line += " m=" + num(m.Geom.Mult())
 		}
@@ -145,7 +161,7 @@ func Subckt(out io.Writer, d *objectives.Design, st *topologies.Stage) error {
 	}
 	fmt.Fprintf(w, "* ports: %s\n", strings.Join(ports, " "))
 	fmt.Fprintf(w, ".subckt %s %s\n", SubcktName(d), strings.Join(ports, " "))
-	writeStage(w, st, true)
+	writeStage(w, st, true, nil)
 	fmt.Fprintf(w, ".ends %s\n", SubcktName(d))
 	return w.Flush()
 }
@@ -356,6 +372,22 @@ func Testbench(out io.Writer, d *objectives.Design, st *topologies.Stage, opt Te
 	}
 	fmt.Fprintln(w, proc.N.(device.SpiceCarder).SpiceCard(NMOSModel, d.TempK))
 	fmt.Fprintln(w, proc.P.(device.SpiceCarder).SpiceCard(PMOSModel, d.TempK))
+	first := true
+	for _, m := range c.Mosfets {
+		name, ok := ownCard(m, d.Process)
+		if !ok {
+			continue
+		}
+		sc, spice := m.Model.(device.SpiceCarder)
+		if equivalent || !spice {
+			return fmt.Errorf("testbench: transistor %s has a card of its own, which a level-1 equivalent deck cannot carry", m.Name)
+		}
+		if first {
+			fmt.Fprintln(w, "* each transistor's own card (a mismatch sample): the process's shifted in vto and kp")
+			first = false
+		}
+		fmt.Fprintln(w, sc.SpiceCard(name, d.TempK))
+	}
 	fmt.Fprintf(w, ".temp %s\n", celsius(d.TempK))
 	fmt.Fprintln(w, "*")
 	fmt.Fprintln(w, "* bench: supply, inputs, summing nodes, output current")
@@ -405,7 +437,7 @@ func Testbench(out io.Writer, d *objectives.Design, st *topologies.Stage, opt Te
 	}
 	fmt.Fprintln(w, "*")
 	fmt.Fprintln(w, "* stage")
-	writeStage(w, st, false)
+	writeStage(w, st, false, d.Process)
 	if opt.DC {
 		writeGMControl(w, d, points)
 	}

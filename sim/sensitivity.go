@@ -117,3 +117,26 @@ func (s *Solver) Sensitivities(res *Result, i int, probes []int, out [][]float64
 	}
 	return nil
 }
+
+// OutputNear solves the circuit at (vcm, vid) by Newton from start, the
+// unknowns of a solution nearby (a sweep's point at another vid, say),
+// falling back to a fresh solve, and returns the output probe's value
+// and its derivative with respect to vid (gm) there.
+func (s *Solver) OutputNear(start []float64, vcm, vid float64) (out, gm float64, err error) {
+	sys := s.sys
+	if sys.output < 0 {
+		return 0, 0, fmt.Errorf("circuit %q names no output", sys.c.Title)
+	}
+	if len(start) != sys.n {
+		return 0, 0, fmt.Errorf("solve %s near a start of %d unknowns, want %d", sys.c.Title, len(start), sys.n)
+	}
+	copy(s.v[:sys.n], start)
+	s.setFixed(s.v, vcm, vid, 1)
+	if !s.newton(vcm, vid, 1, 0, referenceIterations) {
+		if err := s.solveFresh(vcm, vid); err != nil {
+			return 0, 0, err
+		}
+	}
+	s.post(true)
+	return s.probeValue(sys.output), s.probeSlope(sys.output), nil
+}

@@ -227,6 +227,8 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 		asJSON, devices, plotSet bool
 		plotPath                 string
 		cond                     conditionFlags
+		samples                  int
+		seed                     int64
 	)
 	c := &cobra.Command{
 		Use:   "eval DESIGN.yaml",
@@ -255,7 +257,13 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 			// (scripts/bench-vs-ngspice). The heap's peak stays near what
 			// the evaluation keeps.
 			debug.SetGCPercent(evalGCPercent)
-			ev, err := objectives.Evaluate(d)
+			if samples < 0 || samples == 1 || samples > objectives.MaxSamples {
+				return badInput("--monte-carlo %d: want 2 to %d samples (0 for the sensitivity estimate)", samples, objectives.MaxSamples)
+			}
+			if samples > 0 && !d.Process.Mismatch.Given {
+				return badInput("--monte-carlo: process %s gives no mismatch coefficients (a mismatch section in its file)", d.Process.Name)
+			}
+			ev, err := objectives.EvaluateWith(d, objectives.EvalOptions{MonteCarlo: samples, Seed: seed})
 			if err != nil {
 				return fmt.Errorf("eval %s: %w", args[0], err)
 			}
@@ -292,6 +300,8 @@ func newEvalCmd(stdout, stderr io.Writer) *cobra.Command {
 	c.Flags().StringVar(&plotPath, "plot", "", "also draw gm and the pair currents to `FILE` (.svg or .png)")
 	c.PreRun = func(cmd *cobra.Command, _ []string) { plotSet = cmd.Flags().Changed("plot") }
 	c.Flags().BoolVar(&devices, "devices", false, "also list the transistors at the middle of the sweep")
+	c.Flags().IntVar(&samples, "monte-carlo", 0, "estimate mismatch from `N` Monte Carlo samples instead of sensitivities")
+	c.Flags().Int64Var(&seed, "seed", 1, "random seed of the Monte Carlo samples")
 	cond.add(c)
 	return c
 }
@@ -305,6 +315,8 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 		testbench, dc, equivalent bool
 		out                       string
 		cond                      conditionFlags
+		sample                    int
+		seed                      int64
 	)
 	c := &cobra.Command{
 		Use:   "netlist DESIGN.yaml",
@@ -331,6 +343,14 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 			st, err := objectives.Build(d)
 			if err != nil {
 				return fmt.Errorf("netlist %s: %w", args[0], err)
+			}
+			if sample >= 0 {
+				if !d.Process.Mismatch.Given {
+					return badInput("--mismatch-sample: process %s gives no mismatch coefficients (a mismatch section in its file)", d.Process.Name)
+				}
+				one := *st
+				one.Circuit = objectives.WithShifts(st.Circuit, objectives.MismatchShifts(st, d.Process, seed, sample))
+				st = &one
 			}
 			var b bytes.Buffer
 			what := "netlist"
@@ -382,8 +402,16 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 	c.Flags().BoolVar(&equivalent, level1EquivalentFlag, false,
 		"with --testbench, write an EKV process's nearest level-1 equivalent instead of refusing")
 	c.Flags().StringVarP(&out, "output", "o", "", "write to `FILE` instead of stdout")
+	c.Flags().IntVar(&sample, "mismatch-sample", -1, "with --testbench, give each transistor its own card: Monte Carlo sample `K` (0, 1, ...) of eval --monte-carlo")
+	c.Flags().Int64Var(&seed, "seed", 1, "random seed of --mismatch-sample, as eval --monte-carlo's")
 	cond.add(c)
 	c.PreRunE = func(*cobra.Command, []string) error {
+		if sample >= 0 && !testbench {
+			return errors.New("--mismatch-sample needs --testbench")
+		}
+		if sample < -1 {
+			return fmt.Errorf("--mismatch-sample %d: want a sample number from 0", sample)
+		}
 		if dc && !testbench {
 			return errors.New("--dc needs --testbench")
 		}

@@ -92,3 +92,64 @@ func TestConditionFlags(t *testing.T) {
 		}
 	}
 }
+
+// TestMismatchFlags: eval --monte-carlo N --seed S writes the Monte Carlo
+// estimate (objectives.EvaluateWith: bit for bit), netlist --testbench
+// --mismatch-sample K gives every transistor its own card, and values
+// that cannot be used are bad input naming the flag.
+func TestMismatchFlags(t *testing.T) {
+	path := filepath.Join(designsDir, "current-switch-l1.yaml")
+	code, stdout, stderr := runCmd(t, "eval", "--json", "--corner", "tt", "--monte-carlo", "40", "--seed", "3", path)
+	if code != exitOK {
+		t.Fatalf("eval: exit %d: %s", code, stderr)
+	}
+	var doc struct {
+		Mismatch struct {
+			OffsetSigma float64 `json:"offset_sigma"`
+			Method      string  `json:"method"`
+			Samples     int     `json:"samples"`
+		} `json:"mismatch"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &doc); err != nil {
+		t.Fatal(err)
+	}
+	d, err := objectives.LoadDesign(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	at, err := d.At("tt", d.Supply, d.TempK)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ev, err := objectives.EvaluateWith(at, objectives.EvalOptions{MonteCarlo: 40, Seed: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if m := doc.Mismatch; m.Method != "monte-carlo" || m.Samples != 40 || m.OffsetSigma != ev.Conditions[0].Mismatch.OffsetSigma {
+		t.Errorf("mismatch %+v, want monte-carlo, 40 samples, offset σ %g", m, ev.Conditions[0].Mismatch.OffsetSigma)
+	}
+	code, stdout, stderr = runCmd(t, "netlist", "--testbench", "--mismatch-sample", "2", "--seed", "3", path)
+	if code != exitOK {
+		t.Fatalf("netlist: exit %d: %s", code, stderr)
+	}
+	for _, name := range []string{"M1", "M2", "M5"} {
+		card := "nch_" + strings.ToLower(name)
+		if !strings.Contains(stdout, ".model "+card+" ") && !strings.Contains(stdout, ".model p"+card[1:]+" ") {
+			t.Errorf("the deck has no card of %s's own", name)
+		}
+	}
+	for _, tt := range []struct {
+		args []string
+		flag string
+	}{
+		{[]string{"eval", "--monte-carlo", "1", path}, "--monte-carlo"},
+		{[]string{"eval", "--monte-carlo", "-3", path}, "--monte-carlo"},
+		{[]string{"netlist", "--mismatch-sample", "2", path}, "--mismatch-sample"},
+		{[]string{"netlist", "--testbench", "--mismatch-sample", "-2", path}, "--mismatch-sample"},
+	} {
+		code, _, stderr := runCmd(t, tt.args...)
+		if code != exitBadInput || !strings.Contains(stderr, tt.flag) {
+			t.Errorf("%v: exit %d, %q; want %d naming %s", tt.args, code, stderr, exitBadInput, tt.flag)
+		}
+	}
+}

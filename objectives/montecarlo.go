@@ -1,0 +1,220 @@
+package objectives
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"slices"
+	"sync"
+
+	"pairsmith/sim"
+	"pairsmith/sim/device"
+	"pairsmith/topologies"
+)
+
+// MaxSamples bounds `eval --monte-carlo`: more is a typo, not a study.
+const MaxSamples = 1_000_000
+
+// MismatchShifts returns Monte Carlo sample k's mismatch of every
+// transistor of st, in the circuit's order: each its own threshold
+// magnitude shift (DVT, V) and current-factor shift (DKP = Δβ/β), drawn
+// as independent Gaussians of the σ that deviceSigmas gives (Pelgrom's
+// law) from a generator seeded by (seed, k) alone, so that a sample is
+// the same whichever worker draws it and whatever the others.
+func MismatchShifts(st *topologies.Stage, p *device.Process, seed int64, k int) []device.Shift {
+	rng := rand.New(rand.NewPCG(uint64(seed), uint64(k)))
+	sig := deviceSigmas(st, p)
+	out := make([]device.Shift, len(st.Devices))
+	for i := range out {
+		out[i] = device.Shift{DVT: rng.NormFloat64() * sig[2*i], DKP: rng.NormFloat64() * sig[2*i+1]}
+	}
+	return out
+}
+
+// WithShifts returns a copy of circuit c whose transistor k has its own
+// card, c's shifted by shifts[k] (device.Shifted): one Monte Carlo
+// sample's circuit. c itself is not changed.
+func WithShifts(c *sim.Circuit, shifts []device.Shift) *sim.Circuit {
+	out := *c
+	out.Mosfets = slices.Clone(c.Mosfets)
+	for k := range out.Mosfets {
+		out.Mosfets[k].Model = device.Shifted(out.Mosfets[k].Model, shifts[k])
+	}
+	return &out
+}
+
+// sampleOffsets solves one sample's circuit c over sweep sp on solver s
+// (rebound to it) and returns its input offset at every point — the
+// differential input that zeroes the output current, found by Newton on
+// vid from the vid = 0 sweep (to 1 nV, at most eight steps) — and its
+// switchover at vid = 0 (NaN without a handover).
+func sampleOffsets(s *sim.Solver, c *sim.Circuit, st *topologies.Stage, sp sim.SweepSpec, res *sim.Result) ([]float64, float64, error) {
+	if err := s.Rebind(c); err != nil {
+		return nil, 0, err
+	}
+	if err := s.Sweep(sp, res); err != nil {
+		return nil, 0, err
+	}
+	out := st.Circuit.ProbeIndex(topologies.ProbeOut)
+	n := res.Unknowns
+	off := make([]float64, res.Len())
+	gmMax := slices.Max(res.GM)
+	for i := range off {
+		v, iout, gm := 0.0, res.Probe[out][i], res.GM[i]
+		for range 8 {
+			if !(gm > DeadGM*gmMax) { // no input there: the offset is not defined
+				v = math.NaN()
+				break
+			}
+			step := -iout / gm
+			v += step
+			var err error
+			if iout, gm, err = s.OutputNear(res.X[i*n:(i+1)*n], res.VCM[i], v); err != nil {
+				return nil, 0, fmt.Errorf("offset at vcm = %g V: %w", res.VCM[i], err)
+			}
+			if math.Abs(step) < 1e-9 {
+				break
+			}
+		}
+		off[i] = v
+	}
+	sw := math.NaN()
+	if st.PairN[0] != "" && st.PairP[0] != "" {
+		sw, _ = Handover(res.VCM, res.Probe[st.Circuit.ProbeIndex(topologies.ProbeIN)], res.Probe[st.Circuit.ProbeIndex(topologies.ProbeIP)])
+	}
+	return off, sw, nil
+}
+
+// monteCarlo draws samples Monte Carlo samples of design d (at its one
+// condition) on workers goroutines and returns the spread of its offset,
+// of the offset's change across the range and of its switchover, as a
+// MismatchResult of method monte-carlo. Sample k is the same whatever the
+// number of workers (MismatchShifts), so the result is too, bit for bit.
+func monteCarlo(d *Design, st *topologies.Stage, samples int, seed int64, workers int) (*MismatchResult, error) {
+	np, err := d.Sweep.Points()
+	if err != nil {
+		return nil, err
+	}
+	offs := make([][]float64, samples)
+	sws := make([]float64, samples)
+	errs := make([]error, samples)
+	next := make(chan int)
+	var wg sync.WaitGroup
+	for range max(1, min(workers, samples)) {
+		wg.Go(func() {
+			s, err := sim.NewSolver(st.Circuit, sim.Options{})
+			res := &sim.Result{}
+			for k := range next {
+				if err != nil {
+					errs[k] = err
+					continue
+				}
+				c := WithShifts(st.Circuit, MismatchShifts(st, d.Process, seed, k))
+				offs[k], sws[k], errs[k] = sampleOffsets(s, c, st, d.Sweep, res)
+			}
+		})
+	}
+	for k := range samples {
+		next <- k
+	}
+	close(next)
+	wg.Wait()
+	for k, err := range errs {
+		if err != nil {
+			return nil, fmt.Errorf("monte carlo sample %d: %w", k, err)
+		}
+	}
+	vcm := make([]float64, np)
+	for i := range vcm {
+		vcm[i] = d.Sweep.At(i, np)
+	}
+	r := &MismatchResult{Sigma: d.sigma(), VCM: vcm, Offset: make([]float64, np), Method: MethodMonteCarlo, Samples: samples}
+	// Centre every point's offsets on their mean: the spread is what
+	// mismatch adds to the stage's own (systematic) offset.
+	mean := make([]float64, np)
+	for i := range np {
+		for k := range samples {
+			mean[i] += offs[k][i] / float64(samples)
+		}
+	}
+	for i := range np {
+		v := 0.0
+		for k := range samples {
+			t := offs[k][i] - mean[i]
+			v += t * t
+		}
+		r.Offset[i] = math.Sqrt(v / float64(samples-1))
+		if !math.IsNaN(r.Offset[i]) {
+			r.OffsetSigma = math.Max(r.OffsetSigma, r.Offset[i])
+		}
+	}
+	// The change between two points: the largest spread of
+	// V_os(a) − V_os(b) over every pair of live points.
+	var drift float64
+	for a := range np {
+		if math.IsNaN(r.Offset[a]) {
+			continue
+		}
+		for b := a + 1; b < np; b++ {
+			if math.IsNaN(r.Offset[b]) {
+				continue
+			}
+			v, m := 0.0, mean[a]-mean[b]
+			for k := range samples {
+				t := offs[k][a] - offs[k][b] - m
+				v += t * t
+			}
+			drift = math.Max(drift, v)
+		}
+	}
+	r.DriftSigma = math.Sqrt(drift / float64(samples-1))
+	r.SwitchoverSigma = stddev(sws)
+	return r, nil
+}
+
+// stddev is the sample standard deviation of xs (NaN when one is NaN or
+// there are fewer than two).
+func stddev(xs []float64) float64 {
+	if len(xs) < 2 {
+		return math.NaN()
+	}
+	m := 0.0
+	for _, x := range xs {
+		m += x / float64(len(xs))
+	}
+	v := 0.0
+	for _, x := range xs {
+		v += (x - m) * (x - m)
+	}
+	return math.Sqrt(v / float64(len(xs)-1))
+}
+
+// SampleResult is one Monte Carlo sample of a design at its nominal
+// condition: the common modes, the input offset at each (NaN where gm is
+// dead) and gm at vid = 0.
+type SampleResult struct {
+	VCM, Offset, GM []float64
+}
+
+// MismatchSample solves Monte Carlo sample k of seed (MismatchShifts) of
+// design d at its nominal condition: what `netlist --testbench
+// --mismatch-sample k --seed seed` exports for ngspice to run.
+func MismatchSample(d *Design, seed int64, k int) (*SampleResult, error) {
+	if !mismatchOK(d.Process) {
+		return nil, errNoMismatch(d.Process)
+	}
+	st, err := Build(d)
+	if err != nil {
+		return nil, err
+	}
+	s, err := sim.NewSolver(st.Circuit, sim.Options{})
+	if err != nil {
+		return nil, err
+	}
+	res := &sim.Result{}
+	off, _, err := sampleOffsets(s, WithShifts(st.Circuit, MismatchShifts(st, d.Process, seed, k)), st, d.Sweep, res)
+	if err != nil {
+		return nil, err
+	}
+	return &SampleResult{VCM: slices.Clone(res.VCM), Offset: off, GM: slices.Clone(res.GM)}, nil
+}
