@@ -144,20 +144,38 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 		sw.mismatch = mm.result(d.sigma())
 		sw.mismatch.fill(&sw.metrics)
 	}
+	if err := addSlew(&sw.metrics, st, s, res, d); err != nil {
+		return nil, err
+	}
 	return sw, nil
 }
 
-// addMismatch estimates the mismatch of a sweep into m's figures, on a
-// process that gives coefficients.
-func addMismatch(m *Metrics, st *topologies.Stage, s *sim.Solver, res *sim.Result, d *Design) error {
-	if !mismatchOK(d.Process) {
-		return nil
+// Extras are the figures beyond the sweep's own that a look estimates
+// from the solved circuit: each costs solves at every point, so a search
+// asks only for those its spec bounds or trades on.
+type Extras struct {
+	Mismatch bool // offset and offset_drift (docs/mismatch.md)
+	Slew     bool // slew_current and slew (docs/metrics.md#slew)
+}
+
+// AllExtras asks for every extra figure, as `eval` does.
+func AllExtras() Extras { return Extras{Mismatch: true, Slew: true} }
+
+// addExtras estimates the figures ex asks for into m: mismatch on a
+// process that gives coefficients, the slew.
+func addExtras(m *Metrics, st *topologies.Stage, s *sim.Solver, res *sim.Result, d *Design, ex Extras) error {
+	if ex.Mismatch && mismatchOK(d.Process) {
+		mm, err := analyseMismatch(st, s, res, d.Process)
+		if err != nil {
+			return err
+		}
+		mm.result(d.sigma()).fill(m)
 	}
-	mm, err := analyseMismatch(st, s, res, d.Process)
-	if err != nil {
-		return err
+	if ex.Slew {
+		if err := addSlew(m, st, s, res, d); err != nil {
+			return err
+		}
 	}
-	mm.result(d.sigma()).fill(m)
 	return nil
 }
 
@@ -219,13 +237,13 @@ func (sc *SolverCache) put(family string, b *bench) {
 // search's candidates reach in fewer iterations than from the circuit's
 // guess; nil starts from the guess.
 func MeasureStaged(d *Design, cache *SolverCache, coarse float64, start []float64, reject func(Metrics, []Finding) bool) (m Metrics, fs []Finding, fine bool, err error) {
-	return measureStaged(d, cache, coarse, start, reject, nil, true)
+	return measureStaged(d, cache, coarse, start, reject, nil, AllExtras())
 }
 
 // measureStaged is MeasureStaged that also copies the first point's
 // unknowns into *first when first is not nil, and estimates mismatch on
-// each look only when wantMismatch says so.
-func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float64, reject func(Metrics, []Finding) bool, first *[]float64, wantMismatch bool) (m Metrics, fs []Finding, fine bool, err error) {
+// each look the figures ex asks for.
+func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float64, reject func(Metrics, []Finding) bool, first *[]float64, ex Extras) (m Metrics, fs []Finding, fine bool, err error) {
 	st, err := Build(d)
 	if err != nil {
 		return Metrics{}, nil, false, err
@@ -253,10 +271,8 @@ func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float6
 		*first = append((*first)[:0], res.X[:s.Unknowns()]...)
 	}
 	m, fs = Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr)
-	if wantMismatch {
-		if err := addMismatch(&m, st, s, res, d); err != nil {
-			return Metrics{}, nil, false, err
-		}
+	if err := addExtras(&m, st, s, res, d, ex); err != nil {
+		return Metrics{}, nil, false, err
 	}
 	if look.Step == d.Sweep.Step || reject(m, fs) {
 		return m, fs, false, nil
@@ -275,9 +291,7 @@ func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float6
 		return Metrics{}, nil, true, err
 	}
 	m, fs = Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr)
-	if wantMismatch {
-		err = addMismatch(&m, st, s, res, d)
-	}
+	err = addExtras(&m, st, s, res, d, ex)
 	return m, fs, true, err
 }
 

@@ -62,13 +62,16 @@ func TestMeasure(t *testing.T) {
 			if got, want := res.Len(), 181; got != want {
 				t.Fatalf("%d points, want %d", got, want)
 			}
-			// Measure reads the sweep alone; the mismatch figures need the
-			// solver (TestPelgromNPair checks them) and are left NaN.
+			// Measure reads the sweep alone; the mismatch and slew figures
+			// need the solver (TestPelgromNPair and TestSlewAgainstNgspice
+			// check them) and are left NaN.
 			again := objectives.Measure(ev.Stage, res)
-			if !math.IsNaN(again.Offset) || !math.IsNaN(again.OffsetDrift) {
-				t.Errorf("Measure gives offsets %g, %g, want NaN", again.Offset, again.OffsetDrift)
+			for _, x := range []float64{again.Offset, again.OffsetDrift, again.SlewCurrent, again.Slew} {
+				if !math.IsNaN(x) {
+					t.Errorf("Measure gives a solver figure %g, want NaN", x)
+				}
 			}
-			again.Offset, again.OffsetDrift = m.Offset, m.OffsetDrift
+			again.Offset, again.OffsetDrift, again.SlewCurrent, again.Slew = m.Offset, m.OffsetDrift, m.SlewCurrent, m.Slew
 			if !m.Same(again) {
 				t.Errorf("Evaluation.Metrics %+v, Measure of its sweep %+v", m, again)
 			}
@@ -201,9 +204,9 @@ func TestEvaluateDoc(t *testing.T) {
 		family string
 		nulls  []string
 	}{
-		{"n-pair", []string{"gm_ripple", "switchover", "transition_width"}},
-		{"p-pair", []string{"gm_ripple", "switchover", "transition_width"}},
-		{"current-switch", nil},
+		{"n-pair", []string{"gm_ripple", "switchover", "transition_width", "slew"}},
+		{"p-pair", []string{"gm_ripple", "switchover", "transition_width", "slew"}},
+		{"current-switch", []string{"slew"}},
 	}
 	for _, tt := range tests {
 		t.Run(tt.family, func(t *testing.T) {
@@ -244,10 +247,10 @@ func TestEvaluateDoc(t *testing.T) {
 				}
 			}
 			metrics, _ := doc["metrics"].(map[string]any)
-			if len(metrics) != 10 {
-				t.Errorf("metrics %v, want the seven of docs/files.md#eval-json, gm_id_min, offset and offset_drift", metrics)
+			if len(metrics) != 12 {
+				t.Errorf("metrics %v, want the seven of docs/files.md#eval-json, gm_id_min, offset, offset_drift, slew_current and slew", metrics)
 			}
-			for _, k := range []string{"gm_min", "gm_max", "gm_ripple", "power", "area", "switchover", "transition_width", "gm_id_min", "offset", "offset_drift"} {
+			for _, k := range []string{"gm_min", "gm_max", "gm_ripple", "power", "area", "switchover", "transition_width", "gm_id_min", "offset", "offset_drift", "slew_current", "slew"} {
 				val, ok := metrics[k]
 				if !ok {
 					t.Errorf("metrics lack %s", k)

@@ -45,6 +45,11 @@ type Metrics struct {
 	// mismatch.sigma (docs/mismatch.md); NaN when not estimated (a process
 	// without mismatch coefficients, or a search's look that needs none).
 	Offset, OffsetDrift float64
+	// SlewCurrent is the smallest output current the stage delivers for a
+	// large input over the range, A, and Slew that current into the
+	// design's load, V/s (NaN without a load): docs/metrics.md#slew. NaN
+	// when not estimated.
+	SlewCurrent, Slew float64
 }
 
 // MarshalJSON writes the metrics by their catalog keys (their names in
@@ -124,6 +129,7 @@ func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
 	m.GMMin, m.GMMax, m.GMOverIDMin = math.Inf(1), math.Inf(-1), math.Inf(1)
 	m.Offset, m.OffsetDrift = math.NaN(), math.NaN()
+	m.SlewCurrent, m.Slew = math.NaN(), math.NaN()
 	for i, g := range res.GM {
 		// A gm below zero here lies within the solver's tolerance of it
 		// (CheckPhysical refuses a sweep with one beyond): it is zero.

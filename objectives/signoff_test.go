@@ -113,6 +113,8 @@ func TestSignoffErrors(t *testing.T) {
 		{name: "sigma unknown field", text: head + "supply: 1.8V\nmismatch: {k: 3}\n", field: "mismatch.k", line: 3},
 		{name: "load in volts", text: head + "supply: 1.8V\nload: 5V\n", field: "load", line: 3, given: "5V", msg: []string{"capacitance"}},
 		{name: "load too big", text: head + "supply: 1.8V\nload: 1F\n", field: "load", line: 3, given: "1F"},
+		{name: "slew without a load", text: head + "supply: 1.8V\ntargets: {slew_min: 2V/us}\n", field: "targets.slew_min", line: 3, msg: []string{"load"}},
+		{name: "slew axis without a load", text: head + "supply: 1.8V\npareto: [power, slew]\n", field: "pareto[1]", line: 3, msg: []string{"load"}},
 		{name: "range above the lowest supply", text: head + "supply: {min: 1V, max: 1.98V}\ninput_range: {low: 0.995V}\n",
 			field: "input_range.low", line: 3, msg: []string{"lowest supply"}},
 	}

@@ -230,6 +230,9 @@ func readSpec(m *units.Map, baseDir string) (*Spec, error) {
 	if err := checkMismatchAsked(m, s); err != nil {
 		return nil, err
 	}
+	if err := checkLoadAsked(m, s); err != nil {
+		return nil, err
+	}
 	if s.Topologies, err = readTopologies(m); err != nil {
 		return nil, err
 	}

@@ -16,6 +16,7 @@ const (
 	TargetTransitionWidthMax = "transition_width_max"
 	TargetOffsetMax          = "offset_max"
 	TargetOffsetDriftMax     = "offset_drift_max"
+	TargetSlewMin            = "slew_min"
 )
 
 // targetOrder is the order of Check and Names: the spec keys of the
@@ -42,6 +43,7 @@ const (
 	AxisTransitionWidth = "transition_width"
 	AxisOffset          = "offset"
 	AxisOffsetDrift     = "offset_drift"
+	AxisSlew            = "slew"
 )
 
 // AxisNames returns every trade-off axis a spec may name, in a fixed
@@ -82,6 +84,7 @@ const (
 	DefaultScaleGMMin           = 1e-4  // 100 µS
 	DefaultScaleTransitionWidth = 0.2   // 200 mV
 	DefaultScaleOffset          = 1e-3  // 1 mV
+	DefaultScaleSlew            = 1e6   // 1 V/µs
 	defaultScaleUnknown         = 1.0   // an axis name Spec does not know
 	worstAxisValue              = 1e300 // a failed evaluation's power or area on an axis
 )
@@ -117,6 +120,7 @@ type Targets struct {
 	TransitionWidthMax float64          // V
 	OffsetMax          float64          // V, k-sigma
 	OffsetDriftMax     float64          // V, k-sigma
+	SlewMin            float64          // V/s into the load
 }
 
 // SwitchoverTarget asks for the handover's centre (Metrics.Switchover)

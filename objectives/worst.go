@@ -169,7 +169,7 @@ func (ev *Evaluation) WorstFor(t Targets) WorstCase { return WorstOver(ev.Condit
 // returns the conditions measured, in order's order, and how many had a
 // fine look. A condition whose sweep fails ends it with an error naming
 // the condition.
-func MeasureWorst(d *Design, order []Condition, cache *SolverCache, coarse float64, start []float64, t Targets, wantMismatch bool, reject func(cs []ConditionEval) bool) (cs []ConditionEval, fine int, err error) {
+func MeasureWorst(d *Design, order []Condition, cache *SolverCache, coarse float64, start []float64, t Targets, ex Extras, reject func(cs []ConditionEval) bool) (cs []ConditionEval, fine int, err error) {
 	cs = make([]ConditionEval, 1, len(order))
 	var first []float64
 	keep := &first
@@ -179,7 +179,7 @@ func MeasureWorst(d *Design, order []Condition, cache *SolverCache, coarse float
 	m, fs, nomFine, err := measureStaged(d.Under(order[0]), cache, coarse, start, func(m Metrics, fs []Finding) bool {
 		cs[0].Metrics, cs[0].Findings = m, fs
 		return reject(cs)
-	}, keep, wantMismatch)
+	}, keep, ex)
 	if err != nil {
 		return cs, 0, err
 	}
@@ -192,7 +192,7 @@ func MeasureWorst(d *Design, order []Condition, cache *SolverCache, coarse float
 	}
 	stop := func(Metrics, []Finding) bool { return true }
 	look := func(c Condition, st func(Metrics, []Finding) bool) (ConditionEval, bool, error) {
-		m, fs, fine, err := measureStaged(d.Under(c), cache, coarse, first, st, nil, wantMismatch)
+		m, fs, fine, err := measureStaged(d.Under(c), cache, coarse, first, st, nil, ex)
 		if err != nil {
 			return ConditionEval{}, false, fmt.Errorf("at %s: %w", c, err)
 		}

@@ -124,11 +124,11 @@ func TestMeasureWorst(t *testing.T) {
 	d := signoffDesign(t, "supply: {min: 1.62V, max: 1.98V}\ncorners: [tt, ss, ff]\n")
 	order := d.AllConditions()
 	var cache objectives.SolverCache
-	cs, fine, err := objectives.MeasureWorst(d, order, &cache, 0.05, nil, objectives.NoTargets(), true, func([]objectives.ConditionEval) bool { return true })
+	cs, fine, err := objectives.MeasureWorst(d, order, &cache, 0.05, nil, objectives.NoTargets(), objectives.AllExtras(), func([]objectives.ConditionEval) bool { return true })
 	if err != nil || len(cs) != 1 || fine != 0 {
 		t.Fatalf("rejected at nominal: %d conditions, %d fine, %v", len(cs), fine, err)
 	}
-	cs, fine, err = objectives.MeasureWorst(d, order, &cache, 0.05, nil, objectives.NoTargets(), true, func([]objectives.ConditionEval) bool { return false })
+	cs, fine, err = objectives.MeasureWorst(d, order, &cache, 0.05, nil, objectives.NoTargets(), objectives.AllExtras(), func([]objectives.ConditionEval) bool { return false })
 	if err != nil || len(cs) != len(order) {
 		t.Fatalf("kept: %d conditions of %d, %v", len(cs), len(order), err)
 	}
@@ -174,7 +174,7 @@ func TestMeasureWorst(t *testing.T) {
 	} else if _, err := objectives.Evaluate(cool); err != nil {
 		t.Fatalf("the hot sizing fails at its nominal 27 °C: %v", err)
 	}
-	_, _, err = objectives.MeasureWorst(hot, hot.AllConditions(), &cache, 0.05, nil, objectives.NoTargets(), true, func([]objectives.ConditionEval) bool { return false })
+	_, _, err = objectives.MeasureWorst(hot, hot.AllConditions(), &cache, 0.05, nil, objectives.NoTargets(), objectives.AllExtras(), func([]objectives.ConditionEval) bool { return false })
 	_, everr := objectives.Evaluate(hot)
 	for _, err := range []error{err, everr} {
 		var ue *objectives.UnphysicalError

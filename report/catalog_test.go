@@ -24,7 +24,7 @@ import (
 // reference.
 func catalogResult(t *testing.T) *sizing.Result {
 	t.Helper()
-	text := "process: demo18\nsupply: 1.8V\ninput_range: {low: 0V, high: 1.8V}\npareto: [" +
+	text := "process: demo18\nsupply: 1.8V\nload: 5pF\ninput_range: {low: 0V, high: 1.8V}\npareto: [" +
 		strings.Join(objectives.AxisNames(), ", ") + "]\n"
 	spec, err := objectives.ReadSpec("all.yaml", []byte(text), ".")
 	if err != nil {

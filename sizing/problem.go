@@ -57,10 +57,10 @@ type Problem struct {
 	// order is the spec's conditions in the order a candidate meets them
 	// (conditionOrder).
 	order []objectives.Condition
-	// mismatch says the spec bounds or trades on an offset figure, so
-	// that every look estimates mismatch (it costs a factorisation a
-	// point); otherwise none does.
-	mismatch bool
+	// extras are the figures beyond the sweep's that the spec bounds or
+	// trades on (an offset, the slew): every look estimates those, and
+	// only those (each costs solves at every point).
+	extras objectives.Extras
 }
 
 var (
@@ -77,8 +77,9 @@ func NewProblem(spec *objectives.Spec) (*Problem, error) {
 	}
 	p := &Problem{Spec: spec, targets: spec.Targets.Tightened(Margin)}
 	p.order = conditionOrder(spec.Design("", nil).AllConditions())
-	p.mismatch = spec.Targets.Has(objectives.TargetOffsetMax) || spec.Targets.Has(objectives.TargetOffsetDriftMax) ||
-		slices.Contains(spec.Pareto, objectives.AxisOffset) || slices.Contains(spec.Pareto, objectives.AxisOffsetDrift)
+	asks := func(target, axis string) bool { return spec.Targets.Has(target) || slices.Contains(spec.Pareto, axis) }
+	p.extras.Mismatch = asks(objectives.TargetOffsetMax, objectives.AxisOffset) || asks(objectives.TargetOffsetDriftMax, objectives.AxisOffsetDrift)
+	p.extras.Slew = asks(objectives.TargetSlewMin, objectives.AxisSlew)
 	for _, name := range spec.Topologies {
 		f, err := topologies.Lookup(name)
 		if err != nil {
@@ -207,7 +208,7 @@ type Outcome struct {
 // sweep at the spec's step.
 func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 	d := p.Design(pt)
-	cs, fine, err := objectives.MeasureWorst(d, p.order, &p.solvers, CoarseStep, p.starts[pt.Family], p.targets, p.mismatch, func(cs []objectives.ConditionEval) bool {
+	cs, fine, err := objectives.MeasureWorst(d, p.order, &p.solvers, CoarseStep, p.starts[pt.Family], p.targets, p.extras, func(cs []objectives.ConditionEval) bool {
 		for _, v := range p.Checks(cs, p.targets) {
 			if v.Amount >= CoarseReject {
 				return true
