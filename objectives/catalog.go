@@ -331,6 +331,18 @@ var catalog = []Entry{
 			Doc: "slew_current divided by the sheet's load: the slowest slew rate over the range."},
 	},
 	{
+		Key: AxisMinSupply, Kind: Figure, Dim: units.Volt, Sense: AtMost, Combine: Highest,
+		Field:     func(m *Metrics) *float64 { return &m.MinSupply },
+		Unbounded: true, Cap: MaxSupply,
+		Column: "min_supply_V",
+		Target: Target{Key: TargetMinSupplyMax, Want: "a supply above 0 V, for example 1.5V",
+			Limit: func(t *Targets) *float64 { return &t.MinSupplyMax }},
+		Axis: Axis{Scale: DefaultScaleMinSupply, Missing: func(Range) float64 { return MaxSupply }},
+		Words: Words{Meaning: "lowest supply that still works rail to rail", Shown: InEval,
+			Unbounded: "not even at the highest supply", Missing: "not estimated", Incomplete: "not estimated",
+			Doc: "the lowest supply, to 5 mV, at which the stage still meets the sheet's gm_min and gm_ripple_max (without those targets: keeps gm alive) rail to rail at every corner and temperature of its sign-off, found by bisection."},
+	},
+	{
 		Key: CheckGeometry, Kind: Constraint, Dim: units.Metre, Sense: AtLeast,
 		Words: Words{Miss: "geometry: a drawn size %s against the rule %s"},
 	},

@@ -71,6 +71,16 @@ type Evaluation struct {
 	SummingCurrent float64
 }
 
+// SetMinSupply puts a design's lowest working supply into the metrics of
+// every condition (it is one value for the whole design) and the
+// nominal ones; the worst case is the caller's to form again.
+func (ev *Evaluation) SetMinSupply(v float64) {
+	ev.Metrics.MinSupply = v
+	for i := range ev.Conditions {
+		ev.Conditions[i].Metrics.MinSupply = v
+	}
+}
+
 // Curve returns the gm and pair-current curves of the sweep.
 func (ev *Evaluation) Curve() []CurvePoint { return Curve(ev.Stage, ev.Result) }
 
@@ -406,6 +416,7 @@ func EvaluateWith(d *Design, opt EvalOptions) (*Evaluation, error) {
 		}
 		ev.Metrics = ev.Conditions[0].Metrics
 	}
+	ev.SetMinSupply(MinSupplyOf(d, NoTargets()))
 	w := WorstOver(ev.Conditions, NoTargets())
 	ev.Worst, ev.WorstAt, ev.Findings = w.Metrics, w.At, w.Findings
 	ev.SummingCurrent = summingCurrent(st, res)

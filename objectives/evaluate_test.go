@@ -66,12 +66,12 @@ func TestMeasure(t *testing.T) {
 			// need the solver (TestPelgromNPair and TestSlewAgainstNgspice
 			// check them) and are left NaN.
 			again := objectives.Measure(ev.Stage, res)
-			for _, x := range []float64{again.Offset, again.OffsetDrift, again.SlewCurrent, again.Slew} {
+			for _, x := range []float64{again.Offset, again.OffsetDrift, again.SlewCurrent, again.Slew, again.MinSupply} {
 				if !math.IsNaN(x) {
 					t.Errorf("Measure gives a solver figure %g, want NaN", x)
 				}
 			}
-			again.Offset, again.OffsetDrift, again.SlewCurrent, again.Slew = m.Offset, m.OffsetDrift, m.SlewCurrent, m.Slew
+			again.Offset, again.OffsetDrift, again.SlewCurrent, again.Slew, again.MinSupply = m.Offset, m.OffsetDrift, m.SlewCurrent, m.Slew, m.MinSupply
 			if !m.Same(again) {
 				t.Errorf("Evaluation.Metrics %+v, Measure of its sweep %+v", m, again)
 			}
@@ -204,8 +204,8 @@ func TestEvaluateDoc(t *testing.T) {
 		family string
 		nulls  []string
 	}{
-		{"n-pair", []string{"gm_ripple", "switchover", "transition_width", "slew"}},
-		{"p-pair", []string{"gm_ripple", "switchover", "transition_width", "slew"}},
+		{"n-pair", []string{"gm_ripple", "switchover", "transition_width", "slew", "min_supply"}},
+		{"p-pair", []string{"gm_ripple", "switchover", "transition_width", "slew", "min_supply"}},
 		{"current-switch", []string{"slew"}},
 	}
 	for _, tt := range tests {
@@ -247,10 +247,10 @@ func TestEvaluateDoc(t *testing.T) {
 				}
 			}
 			metrics, _ := doc["metrics"].(map[string]any)
-			if len(metrics) != 12 {
-				t.Errorf("metrics %v, want the seven of docs/files.md#eval-json, gm_id_min, offset, offset_drift, slew_current and slew", metrics)
+			if len(metrics) != 13 {
+				t.Errorf("metrics %v, want the seven of docs/files.md#eval-json, gm_id_min, offset, offset_drift, slew_current, slew and min_supply", metrics)
 			}
-			for _, k := range []string{"gm_min", "gm_max", "gm_ripple", "power", "area", "switchover", "transition_width", "gm_id_min", "offset", "offset_drift", "slew_current", "slew"} {
+			for _, k := range []string{"gm_min", "gm_max", "gm_ripple", "power", "area", "switchover", "transition_width", "gm_id_min", "offset", "offset_drift", "slew_current", "slew", "min_supply"} {
 				val, ok := metrics[k]
 				if !ok {
 					t.Errorf("metrics lack %s", k)

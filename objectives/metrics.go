@@ -50,6 +50,12 @@ type Metrics struct {
 	// design's load, V/s (NaN without a load): docs/metrics.md#slew. NaN
 	// when not estimated.
 	SlewCurrent, Slew float64
+	// MinSupply is the lowest supply at which the stage still works rail
+	// to rail at every corner and temperature of its sign-off, V
+	// (MinSupplyOf; docs/metrics.md#min_supply): one value for the whole
+	// design, the same under each of its conditions. NaN when not
+	// estimated, +Inf when it does not work at the highest supply.
+	MinSupply float64
 }
 
 // MarshalJSON writes the metrics by their catalog keys (their names in
@@ -129,7 +135,7 @@ func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
 	m.GMMin, m.GMMax, m.GMOverIDMin = math.Inf(1), math.Inf(-1), math.Inf(1)
 	m.Offset, m.OffsetDrift = math.NaN(), math.NaN()
-	m.SlewCurrent, m.Slew = math.NaN(), math.NaN()
+	m.SlewCurrent, m.Slew, m.MinSupply = math.NaN(), math.NaN(), math.NaN()
 	for i, g := range res.GM {
 		// A gm below zero here lies within the solver's tolerance of it
 		// (CheckPhysical refuses a sweep with one beyond): it is zero.

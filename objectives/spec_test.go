@@ -408,7 +408,7 @@ func TestReadSpecErrors(t *testing.T) {
 		{name: "axis named like its target", text: head + "pareto:\n  - gm_ripple_max\n",
 			field: "pareto[0]", line: 5, given: "gm_ripple_max", msg: []string{`did you mean "gm_ripple"`}},
 		{name: "unknown axis listing the known", text: head + "pareto: [noise]\n",
-			field: "pareto[0]", line: 4, given: "noise", msg: []string{"gm_ripple, power, area, gm_min, transition_width, offset, offset_drift, slew"}},
+			field: "pareto[0]", line: 4, given: "noise", msg: []string{"gm_ripple, power, area, gm_min, transition_width, offset, offset_drift, slew, min_supply"}},
 		{name: "duplicate axis", text: head + "pareto: [power, area, power]\n",
 			field: "pareto[2]", line: 4, given: "power", msg: []string{"once", "pareto[0]"}},
 		{name: "empty pareto", text: head + "pareto: []\n",

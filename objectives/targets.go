@@ -17,6 +17,7 @@ const (
 	TargetOffsetMax          = "offset_max"
 	TargetOffsetDriftMax     = "offset_drift_max"
 	TargetSlewMin            = "slew_min"
+	TargetMinSupplyMax       = "min_supply_max"
 )
 
 // targetOrder is the order of Check and Names: the spec keys of the
@@ -44,6 +45,7 @@ const (
 	AxisOffset          = "offset"
 	AxisOffsetDrift     = "offset_drift"
 	AxisSlew            = "slew"
+	AxisMinSupply       = "min_supply"
 )
 
 // AxisNames returns every trade-off axis a spec may name, in a fixed
@@ -85,6 +87,7 @@ const (
 	DefaultScaleTransitionWidth = 0.2   // 200 mV
 	DefaultScaleOffset          = 1e-3  // 1 mV
 	DefaultScaleSlew            = 1e6   // 1 V/µs
+	DefaultScaleMinSupply       = 0.1   // 100 mV
 	defaultScaleUnknown         = 1.0   // an axis name Spec does not know
 	worstAxisValue              = 1e300 // a failed evaluation's power or area on an axis
 )
@@ -121,6 +124,7 @@ type Targets struct {
 	OffsetMax          float64          // V, k-sigma
 	OffsetDriftMax     float64          // V, k-sigma
 	SlewMin            float64          // V/s into the load
+	MinSupplyMax       float64          // V
 }
 
 // SwitchoverTarget asks for the handover's centre (Metrics.Switchover)

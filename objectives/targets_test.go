@@ -284,7 +284,7 @@ func TestAxisScale(t *testing.T) {
 			t.Errorf("AxisScale(%q) with targets = %g, want %g", tt.axis, got, tt.withTgt)
 		}
 	}
-	if !slices.Equal(objectives.AxisNames(), []string{"gm_ripple", "power", "area", "gm_min", "transition_width", "offset", "offset_drift", "slew"}) {
+	if !slices.Equal(objectives.AxisNames(), []string{"gm_ripple", "power", "area", "gm_min", "transition_width", "offset", "offset_drift", "slew", "min_supply"}) {
 		t.Errorf("AxisNames() = %v", objectives.AxisNames())
 	}
 }

@@ -136,6 +136,9 @@ func CheckWorst(w WorstCase, cs []ConditionEval, t Targets) []Violation {
 	vs := t.Check(w.Metrics)
 	if len(cs) > 1 {
 		for i := range vs {
+			if vs[i].Target == TargetMinSupplyMax {
+				continue // one value for the whole sign-off
+			}
 			if c, ok := w.Binding(cs, vs[i].Target); ok {
 				vs[i].Condition = c.String()
 			}

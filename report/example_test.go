@@ -25,7 +25,7 @@ func ExampleMetricsTable() {
 		Stage: &topologies.Stage{PairN: [2]string{"M1", "M2"}, PairP: [2]string{"M3", "M4"}},
 		Metrics: objectives.Metrics{
 			GMMin: 1.957e-4, GMMax: 2.211e-4, GMRipple: 0.13, Power: 8.014e-5, Area: 4.2e-10,
-			Switchover: 0.9833, TransitionWidth: math.NaN(), Offset: 3.37e-3, OffsetDrift: 3.85e-3, SlewCurrent: 19.6e-6, Slew: math.NaN(),
+			Switchover: 0.9833, TransitionWidth: math.NaN(), Offset: 3.37e-3, OffsetDrift: 3.85e-3, SlewCurrent: 19.6e-6, Slew: math.NaN(), MinSupply: 1.405,
 		},
 		Result: &sim.Result{VCM: make([]float64, 181)},
 	}
@@ -46,6 +46,7 @@ func ExampleMetricsTable() {
 	//   offset_drift      3.850 mV   k-sigma change of offset across the sweep
 	//   slew_current      19.60 µA   smallest output current for a large input over the sweep
 	//   slew                  —      (no load given)  slew_current into the load
+	//   min_supply        1.405 V    lowest supply that still works rail to rail
 	//
 	// Estimates from compact models; verify with the foundry's models and a licensed sign-off flow before use.
 }

@@ -7,6 +7,7 @@ package sizing
 import (
 	"errors"
 	"fmt"
+	"math"
 	"slices"
 
 	"pairsmith/objectives"
@@ -61,6 +62,10 @@ type Problem struct {
 	// trades on (an offset, the slew): every look estimates those, and
 	// only those (each costs solves at every point).
 	extras objectives.Extras
+	// minSupply says the spec bounds or trades on the lowest working
+	// supply, which a candidate its looks keep then gets
+	// (objectives.MinSupplyOf, with the tightened targets).
+	minSupply bool
 }
 
 var (
@@ -80,6 +85,7 @@ func NewProblem(spec *objectives.Spec) (*Problem, error) {
 	asks := func(target, axis string) bool { return spec.Targets.Has(target) || slices.Contains(spec.Pareto, axis) }
 	p.extras.Mismatch = asks(objectives.TargetOffsetMax, objectives.AxisOffset) || asks(objectives.TargetOffsetDriftMax, objectives.AxisOffsetDrift)
 	p.extras.Slew = asks(objectives.TargetSlewMin, objectives.AxisSlew)
+	p.minSupply = asks(objectives.TargetMinSupplyMax, objectives.AxisMinSupply)
 	for _, name := range spec.Topologies {
 		f, err := topologies.Lookup(name)
 		if err != nil {
@@ -208,16 +214,17 @@ type Outcome struct {
 // sweep at the spec's step.
 func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 	d := p.Design(pt)
-	cs, fine, err := objectives.MeasureWorst(d, p.order, &p.solvers, CoarseStep, p.starts[pt.Family], p.targets, p.extras, func(cs []objectives.ConditionEval) bool {
-		for _, v := range p.Checks(cs, p.targets) {
-			if v.Amount >= CoarseReject {
-				return true
-			}
-		}
-		return false
-	})
+	cs, fine, err := objectives.MeasureWorst(d, p.order, &p.solvers, CoarseStep, p.starts[pt.Family], p.targets, p.extras, p.rejects)
 	if err != nil {
 		return optimize.Outcome{Failed: true, Payload: &Outcome{Measured: len(cs), Fine: fine, Err: err.Error()}}
+	}
+	if p.minSupply && !p.rejects(cs) {
+		// The lowest working supply costs a bisection: only for a
+		// candidate its looks did not turn down.
+		ms := objectives.MinSupplyOf(d, p.targets)
+		for i := range cs {
+			cs[i].Metrics.MinSupply = ms
+		}
 	}
 	w := objectives.WorstOver(cs, p.targets)
 	vs := objectives.CheckWorst(w, cs, p.targets)
@@ -236,6 +243,19 @@ func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 		Hard:       hard,
 		Payload:    &Outcome{Metrics: w.Metrics, Violations: vs, Measured: len(cs), Fine: fine},
 	}
+}
+
+// rejects reports whether a candidate measured under cs misses a target
+// or fails a check by CoarseReject or more: it is judged on what was
+// measured. A figure not estimated yet (the lowest working supply) does
+// not count.
+func (p *Problem) rejects(cs []objectives.ConditionEval) bool {
+	for _, v := range p.Checks(cs, p.targets) {
+		if v.Amount >= CoarseReject && !(v.Target == objectives.TargetMinSupplyMax && math.IsNaN(v.Value)) {
+			return true
+		}
+	}
+	return false
 }
 
 // Checks returns the violations of a stage measured under the conditions

@@ -108,6 +108,10 @@ func reevaluate(prob *Problem, c optimize.Candidate, scales []float64) (*Candida
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", d.Topology, err)
 	}
+	if prob.minSupply {
+		// The spec's own targets set what "works" means.
+		ev.SetMinSupply(objectives.MinSupplyOf(d, prob.Spec.Targets))
+	}
 	w := ev.WorstFor(prob.Spec.Targets)
 	vs := objectives.CheckWorst(w, ev.Conditions, prob.Spec.Targets)
 	return &Candidate{
