@@ -154,7 +154,7 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 		sw.mismatch = mm.result(d.sigma())
 		sw.mismatch.fill(&sw.metrics)
 	}
-	if err := addSlew(&sw.metrics, st, s, res, d); err != nil {
+	if err := addSlew(&sw.metrics, st, s, res, d, d.Sweep.Step); err != nil {
 		return nil, err
 	}
 	return sw, nil
@@ -166,6 +166,11 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 type Extras struct {
 	Mismatch bool // offset and offset_drift (docs/mismatch.md)
 	Slew     bool // slew_current and slew (docs/metrics.md#slew)
+	// Coarse estimates them on a look's coarse sweep only and keeps
+	// those for its fine one (a search's choice: they vary slowly along
+	// the range, and cost a solve a point); otherwise each look makes
+	// its own.
+	Coarse bool
 }
 
 // AllExtras asks for every extra figure, as `eval` does.
@@ -173,7 +178,7 @@ func AllExtras() Extras { return Extras{Mismatch: true, Slew: true} }
 
 // addExtras estimates the figures ex asks for into m: mismatch on a
 // process that gives coefficients, the slew.
-func addExtras(m *Metrics, st *topologies.Stage, s *sim.Solver, res *sim.Result, d *Design, ex Extras) error {
+func addExtras(m *Metrics, st *topologies.Stage, s *sim.Solver, res *sim.Result, d *Design, step float64, ex Extras) error {
 	if ex.Mismatch && mismatchOK(d.Process) {
 		mm, err := analyseMismatch(st, s, res, d.Process)
 		if err != nil {
@@ -182,7 +187,7 @@ func addExtras(m *Metrics, st *topologies.Stage, s *sim.Solver, res *sim.Result,
 		mm.result(d.sigma()).fill(m)
 	}
 	if ex.Slew {
-		if err := addSlew(m, st, s, res, d); err != nil {
+		if err := addSlew(m, st, s, res, d, step); err != nil {
 			return err
 		}
 	}
@@ -281,13 +286,13 @@ func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float6
 		*first = append((*first)[:0], res.X[:s.Unknowns()]...)
 	}
 	m, fs = Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr)
-	if err := addExtras(&m, st, s, res, d, ex); err != nil {
+	if err := addExtras(&m, st, s, res, d, look.Step, ex); err != nil {
 		return Metrics{}, nil, false, err
 	}
 	if look.Step == d.Sweep.Step || reject(m, fs) {
 		return m, fs, false, nil
 	}
-	coarseRes := res
+	coarseRes, coarseM := res, m
 	res = &b.fine
 	if n, _ := d.Sweep.Points(); n >= sim.SplitPoints { // SweepParallel splits it
 		err = s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0))
@@ -301,7 +306,11 @@ func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float6
 		return Metrics{}, nil, true, err
 	}
 	m, fs = Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr)
-	err = addExtras(&m, st, s, res, d, ex)
+	if ex.Coarse {
+		m.Offset, m.OffsetDrift, m.SlewCurrent, m.Slew = coarseM.Offset, coarseM.OffsetDrift, coarseM.SlewCurrent, coarseM.Slew
+		return m, fs, true, nil
+	}
+	err = addExtras(&m, st, s, res, d, d.Sweep.Step, ex)
 	return m, fs, true, err
 }
 

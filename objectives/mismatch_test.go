@@ -177,3 +177,35 @@ func TestMonteCarloAgainstSensitivity(t *testing.T) {
 		})
 	}
 }
+
+// TestSlewAlongTheRange: the slew current of a whole sweep, found by
+// continuation sweeps at the large input and Newton towards the rails
+// (slewCurrents), is the smallest of those found at each of its points
+// alone (one point, solved from its vid = 0 solution: the path
+// TestSlewAgainstNgspice checks against ngspice), within 1e-6 relative
+// (the solver's tolerance; our own bound).
+func TestSlewAlongTheRange(t *testing.T) {
+	d, err := objectives.ReadDesign("d.yaml", []byte("topology: current-switch\nprocess: demo18-l1\nsupply: 1.8V\ncorners: tt\nsweep: {low: 0V, high: supply, step: 0.1V}\n"), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ev, err := objectives.Evaluate(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	least, at := math.Inf(1), 0.0
+	for _, vcm := range ev.Result.VCM {
+		one := *d
+		one.Sweep.Low, one.Sweep.High = vcm, vcm
+		p, err := objectives.Evaluate(&one)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if p.Metrics.SlewCurrent < least {
+			least, at = p.Metrics.SlewCurrent, vcm
+		}
+	}
+	if got := ev.Metrics.SlewCurrent; math.Abs(got-least) > 1e-6*least || !(least > 0) {
+		t.Errorf("slew current %g A along the range, %g A the least of the points alone (at %g V)", got, least, at)
+	}
+}

@@ -69,7 +69,7 @@ func sampleOffsets(s *sim.Solver, c *sim.Circuit, st *topologies.Stage, sp sim.S
 			step := -iout / gm
 			v += step
 			var err error
-			if iout, gm, err = s.OutputNear(res.X[i*n:(i+1)*n], res.VCM[i], v); err != nil {
+			if iout, gm, err = s.OutputNear(res.X[i*n:(i+1)*n], res.VCM[i], v, nil); err != nil {
 				return nil, 0, fmt.Errorf("offset at vcm = %g V: %w", res.VCM[i], err)
 			}
 			if math.Abs(step) < 1e-9 {

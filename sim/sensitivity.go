@@ -70,12 +70,9 @@ func (s *Solver) Sensitivities(res *Result, i int, probes []int, out [][]float64
 	}
 	copy(s.v[:n], res.X[i*n:(i+1)*n])
 	s.setFixed(s.v, res.VCM[i], res.VID, 1)
+	s.keep = evs // the load's own evaluations
 	s.load(res.VCM[i], res.VID, 1, 0, false)
-	var ls device.LargeSignal
-	for k := range sys.mos {
-		m := &sys.mos[k]
-		evs[k] = m.inst.EvalLarge(s.v[m.d], s.v[m.g], s.v[m.s], s.v[m.b], &ls)
-	}
+	s.keep = nil
 	w := s.w
 	if !luFactor(w[:n*n], n, n, s.piv) {
 		return fmt.Errorf("sensitivities of %s at vcm = %g V: the Jacobian is singular", sys.c.Title, res.VCM[i])
@@ -121,8 +118,10 @@ func (s *Solver) Sensitivities(res *Result, i int, probes []int, out [][]float64
 // OutputNear solves the circuit at (vcm, vid) by Newton from start, the
 // unknowns of a solution nearby (a sweep's point at another vid, say),
 // falling back to a fresh solve, and returns the output probe's value
-// and its derivative with respect to vid (gm) there.
-func (s *Solver) OutputNear(start []float64, vcm, vid float64) (out, gm float64, err error) {
+// and its derivative with respect to vid (gm) there; into, when it has
+// as many elements as the circuit has unknowns, receives the solution
+// (the start of the next solve along a path, say).
+func (s *Solver) OutputNear(start []float64, vcm, vid float64, into []float64) (out, gm float64, err error) {
 	sys := s.sys
 	if sys.output < 0 {
 		return 0, 0, fmt.Errorf("circuit %q names no output", sys.c.Title)
@@ -138,5 +137,8 @@ func (s *Solver) OutputNear(start []float64, vcm, vid float64) (out, gm float64,
 		}
 	}
 	s.post(true)
+	if len(into) == sys.n {
+		copy(into, s.v[:sys.n])
+	}
 	return s.probeValue(sys.output), s.probeSlope(sys.output), nil
 }

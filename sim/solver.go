@@ -104,6 +104,9 @@ type Solver struct {
 
 	save []float64 // scratch copy of v
 	adj  []float64 // Sensitivities' weights of the residual rows
+	// keep, when not nil, receives each transistor's evaluation at every
+	// load (Sensitivities asks for it; a sweep leaves it nil).
+	keep []device.Eval
 	// tan[k] is d x / d vcm at a sweep's k-th last point, newest first
 	// (the sweeps that record tangents: shorter than SplitPoints).
 	tan [hermitePoints][]float64
@@ -356,6 +359,9 @@ func (s *Solver) loadMos(w, r []float64, list []int) {
 			ops[i] = ops[prev]
 		}
 		last, prev, lvd, lvg, lvs, lvb = m.id, i, vd, vg, vs, vb
+		if s.keep != nil {
+			s.keep[i] = ev
+		}
 		w[m.dd] += ev.GD
 		w[m.dg] += ev.GG
 		w[m.ds] += ev.GS
