@@ -345,6 +345,20 @@ func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimi
 		}
 		out.Families = append(out.Families, fr)
 	}
+	// A family's best is judged again on the reported numbers: another
+	// of its feasible candidates, evaluated again at every condition, can
+	// score better than the one the search's lazier looks preferred.
+	for i := range out.Families {
+		fr := &out.Families[i]
+		if fr.Best == nil || !fr.Feasible {
+			continue
+		}
+		for _, sc := range out.Candidates {
+			if sc.Topology == fr.Topology && sc.Feasible && sc.Score < fr.Best.Score {
+				fr.Best = sc
+			}
+		}
+	}
 	// Ids of one width, so that they sort as text too.
 	width := max(2, len(fmt.Sprint(len(out.Candidates))))
 	for i, sc := range out.Candidates {

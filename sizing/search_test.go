@@ -168,3 +168,35 @@ func TestGatherLeavesOutFailedCandidates(t *testing.T) {
 		t.Errorf("unreported %v, want the bad candidate's UnphysicalError", out.Unreported)
 	}
 }
+
+// TestFamilyBestIsBestReported: a feasible family's best is the reported
+// candidate of that family with the lowest score, as evaluated again at
+// every condition (the search's own looks are lazier and can prefer
+// another), on the signed-off demo sheet with a short budget.
+func TestFamilyBestIsBestReported(t *testing.T) {
+	spec, err := objectives.LoadSpec("../testdata/specs/strain-gauge-signoff.yaml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	spec.Search.Evaluations = 1200
+	spec.Topologies = []string{"current-switch"}
+	res, err := Search(context.Background(), spec, Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	checked := 0
+	for _, f := range res.Families {
+		if f.Best == nil || !f.Feasible {
+			continue
+		}
+		for _, c := range res.Candidates {
+			if c.Topology == f.Topology && c.Feasible && c.Score < f.Best.Score {
+				t.Errorf("%s: best %s scores %g, %s scores %g", f.Topology, f.Best.ID, f.Best.Score, c.ID, c.Score)
+			}
+		}
+		checked++
+	}
+	if checked == 0 {
+		t.Fatal("no feasible family in 1200 evaluations of the signed-off demo")
+	}
+}
