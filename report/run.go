@@ -596,11 +596,30 @@ func processName(ref string, p *device.Process) string {
 }
 
 // specConditions describes a spec's conditions in one line: "on demo18
-// (ekv), supply 1.8 V, 27 °C, common mode 0 V … 1.8 V".
+// (ekv), supply 1.8 V, 27 °C, common mode 0 V … 1.8 V", with the
+// sign-off when it has more than one condition: "…, at 45 conditions
+// (corners tt ff ss fs sf, supply 1.62 V … 1.98 V, -40 °C … 125 °C)".
 func specConditions(spec *objectives.Spec) string {
-	return fmt.Sprintf("on %s, supply %s, %s, common mode %s … %s", processText(spec),
+	out := fmt.Sprintf("on %s, supply %s, %s, common mode %s … %s", processText(spec),
 		SI(spec.Supply, "V", tableDigits), Celsius(spec.TempK),
 		SI(spec.Range.Low, "V", tableDigits), SI(spec.Range.High, "V", tableDigits))
+	if so := spec.Signoff; len(so.Conditions()) > 1 {
+		out += fmt.Sprintf(", at %d conditions (%s)", len(so.Conditions()), signoffText(so))
+	}
+	return out
+}
+
+// signoffText writes a sign-off's corners, supplies and temperatures:
+// "corners tt ff ss, supply 1.62 V … 1.98 V, -40 °C … 125 °C".
+func signoffText(so objectives.Signoff) string {
+	span := func(s objectives.Span, one func(float64) string) string {
+		if s.IsSingle() {
+			return one(s.Nominal)
+		}
+		return one(s.Min) + " … " + one(s.Max) + " (nominal " + one(s.Nominal) + ")"
+	}
+	volts := func(v float64) string { return SI(v, "V", tableDigits) }
+	return fmt.Sprintf("corners %s, supply %s, %s", strings.Join(so.Corners, " "), span(so.Supply, volts), span(so.Temperature, Celsius))
 }
 
 // familyIndex is a family's place in topologies.All(), which fixes its

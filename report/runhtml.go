@@ -243,6 +243,9 @@ func specRows(spec *objectives.Spec) []pageRow {
 		{"input_range", fmt.Sprintf("%s … %s in %s steps", SI(spec.Range.Low, "V", tableDigits),
 			SI(spec.Range.High, "V", tableDigits), SI(spec.Step, "V", tableDigits))},
 	}
+	if so := spec.Signoff; len(so.Corners) > 0 {
+		rows = append(rows[:4], append([]pageRow{{"sign-off", fmt.Sprintf("%d conditions: %s", len(so.Conditions()), signoffText(so))}}, rows[4:]...)...)
+	}
 	targets := TargetTexts(spec.Targets)
 	if len(targets) == 0 {
 		targets = []string{"none (trade-offs only)"}
