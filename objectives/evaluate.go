@@ -393,7 +393,8 @@ func EvaluateWith(d *Design, opt EvalOptions) (*Evaluation, error) {
 	ev := &Evaluation{Design: d, Stage: st, Result: res, Metrics: sw.metrics, Findings: sw.findings}
 	conds := d.AllConditions()
 	ev.Conditions = make([]ConditionEval, len(conds))
-	ev.Conditions[0] = ConditionEval{Condition: conds[0], Metrics: sw.metrics, Findings: sw.findings, Fine: true, Mismatch: sw.mismatch}
+	ev.Conditions[0] = ConditionEval{Condition: conds[0], Metrics: sw.metrics, Findings: sw.findings, Fine: true, Mismatch: sw.mismatch,
+		Curve: Curve(st, res)}
 	if len(conds) > 1 {
 		if err := measureConditions(d, conds[1:], ev.Conditions[1:], &SolverCache{}, conditionWorkers()); err != nil {
 			return nil, err

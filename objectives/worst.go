@@ -17,6 +17,9 @@ type ConditionEval struct {
 	Fine bool
 	// Mismatch is the mismatch estimate there (nil when not made).
 	Mismatch *MismatchResult
+	// Curve is the gm and pair-current curve there, as Evaluate measures
+	// it (nil for a search's looks).
+	Curve []CurvePoint
 }
 
 // WorstCase is the worst case of one design's measurements under its
@@ -251,7 +254,8 @@ func measureConditions(d *Design, conds []Condition, out []ConditionEval, cache 
 					errs[i] = fmt.Errorf("at %s: %w", c, err)
 					continue
 				}
-				out[i] = ConditionEval{Condition: c, Metrics: sw.metrics, Findings: sw.findings, Fine: true, Mismatch: sw.mismatch}
+				out[i] = ConditionEval{Condition: c, Metrics: sw.metrics, Findings: sw.findings, Fine: true, Mismatch: sw.mismatch,
+					Curve: Curve(sw.st, sw.res)}
 			}
 		})
 	}

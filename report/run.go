@@ -28,8 +28,10 @@ const (
 	ParetoCSVFile  = "pareto.csv"
 	ParetoPlotFile = "pareto.svg"
 	CurvesPlotFile = "curves.svg"
-	ReportFile     = "report.html"
-	CandidatesDir  = "candidates"
+	// ConditionsPlotFile is the best candidate's gm at every condition.
+	ConditionsPlotFile = "conditions.svg"
+	ReportFile         = "report.html"
+	CandidatesDir      = "candidates"
 )
 
 // CandidateDesign returns the path of a candidate's design file relative
@@ -153,7 +155,11 @@ func WriteRun(dir string, res *sizing.Result, opt RunOptions) error {
 	if err != nil {
 		return err
 	}
-	page, err := RunPage(res, opt, paretoSVG, curvesSVG)
+	condSVG, err := plotSVG(ConditionsPlotFile, ConditionsFigure)
+	if err != nil {
+		return err
+	}
+	page, err := RunPage(res, opt, paretoSVG, curvesSVG, condSVG)
 	if err != nil {
 		return err
 	}

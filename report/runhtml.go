@@ -81,6 +81,7 @@ type pageData struct {
 	Thinned    bool
 	ParetoSVG  template.HTML
 	CurvesSVG  template.HTML
+	CondSVG    template.HTML
 	Front      []*pageCandidate
 	Others     []*pageCandidate
 	All        []*pageCandidate
@@ -298,7 +299,7 @@ func glossary() []pageTerm {
 // and transistors in a collapsible section, each linked to its design
 // file and deck, and a glossary of the metrics. Everything that comes
 // from the spec is escaped by html/template.
-func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG []byte) ([]byte, error) {
+func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG, condSVG []byte) ([]byte, error) {
 	spec := res.Spec
 	reported, whole := FrontSize(res)
 	d := pageData{
@@ -313,6 +314,7 @@ func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG []byte) ([
 		Thinned:    whole > reported,
 		ParetoSVG:  inlineSVG(paretoSVG),
 		CurvesSVG:  inlineSVG(curvesSVG),
+		CondSVG:    inlineSVG(condSVG),
 		Glossary:   glossary(),
 	}
 	d.RankedHeads = figureKeys(figuresUpTo(objectives.InRanking))
@@ -383,6 +385,7 @@ func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG []byte) ([
 		{ParetoCSVFile, "the reported Pareto candidates' metrics, one row each"},
 		{ParetoPlotFile, "the Pareto front plot"},
 		{CurvesPlotFile, "the gm curves plot"},
+		{ConditionsPlotFile, "the best candidate's gm at every condition"},
 		{CandidatesDir + "/<id>.yaml", "design files: pairsmith eval reads them as they are"},
 		{CandidatesDir + "/<id>.cir", deckText(res.Spec.Process)},
 		{ProcessFile, "the run's copy of its process, which the design files refer to"},
@@ -484,6 +487,8 @@ Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}
 <figure>{{.ParetoSVG}}</figure>
 <h2>gm over the input range</h2>
 <figure>{{.CurvesSVG}}</figure>
+<h2>gm at every condition</h2>
+<figure>{{.CondSVG}}</figure>
 
 <h2>Pareto candidates</h2>
 {{if .Front}}<p>{{.FrontText}}.{{if .Thinned}} The front holds more members than a run reports (at most ` + strconv.Itoa(sizing.MaxReportedFront) + `); the reported ones are those most spread along it by crowding distance, its extremes always kept.{{end}}</p>

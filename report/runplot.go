@@ -500,20 +500,14 @@ func CurvesFigure(res *sizing.Result) (*Figure, error) {
 		legend.Add(label, pl)
 	}
 	if len(thin) > 0 {
-		l, err := plotter.NewLine(plotter.XYs{{}, {X: 1}})
+		l, err := thinSwatch()
 		if err != nil {
 			return nil, err
 		}
-		l.LineStyle = draw.LineStyle{Color: styleGrey, Width: thinWidth}
 		legend.Add(fmt.Sprintf("thin: %d front members", len(thin)), l)
 	}
-	if finiteVal(gmTarget) {
-		bl, err := budgetLine(plotter.XYs{{X: spec.Range.Low, Y: gmTarget * scale}, {X: spec.Range.High, Y: gmTarget * scale}})
-		if err != nil {
-			return nil, err
-		}
-		p.Add(bl)
-		legend.Add("gm_min target", bl)
+	if err := addGMTarget(p, &legend, spec, gmTarget, scale); err != nil {
+		return nil, err
 	}
 	var sub string
 	switch {
@@ -557,3 +551,29 @@ const (
 	thinWidth = vg.Length(0.5)
 	boldWidth = vg.Length(2.2)
 )
+
+// thinSwatch is the legend's sample of the thin grey lines, a colour no
+// family has.
+func thinSwatch() (*plotter.Line, error) {
+	l, err := plotter.NewLine(plotter.XYs{{}, {X: 1}})
+	if err != nil {
+		return nil, err
+	}
+	l.LineStyle = draw.LineStyle{Color: styleGrey, Width: thinWidth}
+	return l, nil
+}
+
+// addGMTarget draws a gm_min target (when finite) across the spec's input
+// range as the dashed budget line, named in the legend.
+func addGMTarget(p *plot.Plot, legend *plot.Legend, spec *objectives.Spec, gmTarget, scale float64) error {
+	if !finiteVal(gmTarget) {
+		return nil
+	}
+	bl, err := budgetLine(plotter.XYs{{X: spec.Range.Low, Y: gmTarget * scale}, {X: spec.Range.High, Y: gmTarget * scale}})
+	if err != nil {
+		return err
+	}
+	p.Add(bl)
+	legend.Add("gm_min target", bl)
+	return nil
+}

@@ -1,0 +1,173 @@
+package report
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+	"sort"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
+
+	"pairsmith/objectives"
+	"pairsmith/sizing"
+)
+
+// conditionsCandidate is the candidate whose conditions the report draws:
+// the best, else the first reported one that was evaluated.
+func conditionsCandidate(res *sizing.Result) *sizing.Candidate {
+	if res.Best != nil && res.Best.Eval != nil {
+		return res.Best
+	}
+	for _, c := range res.Candidates {
+		if c.Eval != nil {
+			return c
+		}
+	}
+	return nil
+}
+
+// interpolate returns the curve's gm at vcm, linearly between its points,
+// and whether vcm lies within it.
+func interpolate(curve []objectives.CurvePoint, vcm float64) (float64, bool) {
+	n := len(curve)
+	if n == 0 || vcm < curve[0].VCM-1e-12 || vcm > curve[n-1].VCM+1e-12 {
+		return 0, false
+	}
+	k := sort.Search(n, func(i int) bool { return curve[i].VCM >= vcm })
+	if k == 0 {
+		return curve[0].GM, true
+	}
+	if k == n {
+		return curve[n-1].GM, true
+	}
+	a, b := curve[k-1], curve[k]
+	if b.VCM == a.VCM {
+		return b.GM, true
+	}
+	return a.GM + (vcm-a.VCM)/(b.VCM-a.VCM)*(b.GM-a.GM), true
+}
+
+// ConditionsFigure draws the gm of the run's best candidate (else its
+// first reported one) against the common mode at every condition of the
+// spec (docs/conditions.md): each condition a thin line, the band
+// between the lowest and the highest gm at each common mode shaded, the
+// nominal condition bold and the condition where gm_min is worst dashed
+// and named, with the spec's gm_min target.
+func ConditionsFigure(res *sizing.Result) (*Figure, error) {
+	spec := res.Spec
+	c := conditionsCandidate(res)
+	p := newPanel("vcm (V)", "gm (S)")
+	fig := &Figure{Title: fmt.Sprintf("gm at every condition, %s", oneLine(spec.Name)), Caption: objectives.Caution,
+		Panels: []*plot.Plot{p}, Width: runFigureWidth, Height: 11 * vg.Centimeter}
+	if c == nil || len(c.Eval.Conditions) == 0 {
+		fig.Subtitle = "no candidate was evaluated"
+		return fig, nil
+	}
+	conds := c.Eval.Conditions
+	top := 0.0
+	for _, ce := range conds {
+		for _, pt := range ce.Curve {
+			top = math.Max(top, pt.GM)
+		}
+	}
+	gmTarget := math.NaN()
+	if spec.Targets.Has(objectives.TargetGMMin) {
+		gmTarget = spec.Targets.GMMin
+	}
+	scale, pre := ScaleSI(math.Max(top, nanTo0(gmTarget)))
+	p.Y.Label.Text = "gm (" + pre + "S)"
+	// The band over the nominal condition's common modes.
+	var lo, hi plotter.XYs
+	for _, pt := range conds[0].Curve {
+		mn, mx, any := math.Inf(1), math.Inf(-1), false
+		for _, ce := range conds {
+			if g, ok := interpolate(ce.Curve, pt.VCM); ok {
+				mn, mx, any = math.Min(mn, g), math.Max(mx, g), true
+			}
+		}
+		if any {
+			lo = append(lo, plotter.XY{X: pt.VCM, Y: mn * scale})
+			hi = append(hi, plotter.XY{X: pt.VCM, Y: mx * scale})
+		}
+	}
+	if len(lo) > 1 {
+		ring := append(plotter.XYs{}, lo...)
+		for i := len(hi) - 1; i >= 0; i-- {
+			ring = append(ring, hi[i])
+		}
+		band, err := plotter.NewPolygon(ring)
+		if err != nil {
+			return nil, fmt.Errorf("plot the conditions' band: %w", err)
+		}
+		band.Color = color.NRGBA{R: 0x1f, G: 0x77, B: 0xb4, A: 0x30}
+		band.LineStyle.Width = 0
+		p.Add(band)
+	}
+	legend := figureLegend()
+	worst := c.Worst.At[objectives.AxisGMMin]
+	curveLine := func(ce objectives.ConditionEval, col color.Color, width vg.Length, dashes []vg.Length) (*plotter.Line, error) {
+		var xs, ys []float64
+		for _, pt := range ce.Curve {
+			xs, ys = append(xs, pt.VCM), append(ys, pt.GM)
+		}
+		l, err := SeriesLine(xs, ys, scale, col, dashes)
+		if err != nil {
+			return nil, fmt.Errorf("plot gm at %s: %w", ce.Condition, err)
+		}
+		l.LineStyle.Width = width
+		return l, nil
+	}
+	for i, ce := range conds {
+		if i == 0 || i == worst {
+			continue
+		}
+		l, err := curveLine(ce, faded(styleGrey), thinWidth, nil)
+		if err != nil {
+			return nil, err
+		}
+		p.Add(l)
+	}
+	nom, err := curveLine(conds[0], familyColour(c.Topology), boldWidth, nil)
+	if err != nil {
+		return nil, err
+	}
+	p.Add(nom)
+	legend.Add("nominal: "+conds[0].Condition.String(), nom)
+	if worst > 0 && worst < len(conds) {
+		wl, err := curveLine(conds[worst], color.NRGBA{R: 0xc0, G: 0x20, B: 0x20, A: 0xff}, boldWidth, []vg.Length{vg.Points(5), vg.Points(2.5)})
+		if err != nil {
+			return nil, err
+		}
+		p.Add(wl)
+		legend.Add("lowest gm: "+conds[worst].Condition.String(), wl)
+	}
+	if len(conds) > 2 {
+		l, err := thinSwatch()
+		if err != nil {
+			return nil, err
+		}
+		legend.Add(fmt.Sprintf("thin: the other %d conditions; shaded: their range", len(conds)-2), l)
+	}
+	if err := addGMTarget(p, &legend, spec, gmTarget, scale); err != nil {
+		return nil, err
+	}
+	p.Y.Min, p.Y.Max = 0, 1.1*math.Max(top, nanTo0(gmTarget))*scale
+	if !(p.Y.Max > 0) {
+		p.Y.Max = 1
+	}
+	fig.Legend = &legend
+	fig.Subtitle = fmt.Sprintf("%s (%s) at %d conditions; ripple worst at %s", c.ID, c.Topology, len(conds),
+		conditionName(c, objectives.AxisGMRipple))
+	return fig, nil
+}
+
+// conditionName names the condition where the candidate's figure key is
+// worst, "—" when there is none.
+func conditionName(c *sizing.Candidate, key string) string {
+	if i, ok := c.Worst.At[key]; ok && i >= 0 && i < len(c.Eval.Conditions) {
+		return c.Eval.Conditions[i].Condition.String()
+	}
+	return "—"
+}

@@ -1,0 +1,64 @@
+package report
+
+import (
+	"strings"
+	"testing"
+
+	"pairsmith/objectives"
+	"pairsmith/sizing"
+)
+
+// TestConditionsFigure: the best candidate's gm at every condition names
+// the nominal condition and the one where gm is lowest (the worst case's
+// own, WorstCase.At), draws one line per condition and the band between
+// them, and renders as SVG; a run without an evaluated candidate says so.
+// No outside source: it checks the figure against the evaluation it
+// draws.
+func TestConditionsFigure(t *testing.T) {
+	spec, err := objectives.ReadSpec("s.yaml", []byte("name: cond\nprocess: demo18-l1\nsupply: {min: 1.62V, max: 1.98V}\ntemperature: {min: -40C, max: 125C}\ncorners: tt\n"+
+		"input_range: {low: 0V, high: supply, step: 50mV}\ntargets: {gm_min: 150uS}\ntopologies: [current-switch]\n"), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := spec.Design("current-switch", nil)
+	fam, _ := d.Family()
+	for _, p := range fam.Params() {
+		d.Params[p.Name] = p.Default
+	}
+	ev, err := objectives.Evaluate(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	w := ev.WorstFor(spec.Targets)
+	c := &sizing.Candidate{ID: "c01", Topology: "current-switch", Design: d, Eval: ev, Metrics: w.Metrics, Worst: w, Feasible: true, Pareto: true}
+	res := &sizing.Result{Spec: spec, Candidates: []*sizing.Candidate{c}, Best: c}
+	f, err := ConditionsFigure(res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	worst := ev.Conditions[w.At[objectives.AxisGMMin]].Condition.String()
+	if len(ev.Conditions) != 9 || f.Legend == nil {
+		t.Fatalf("%d conditions, legend %v", len(ev.Conditions), f.Legend)
+	}
+	svg, err := f.Render("svg")
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := string(svg)
+	for _, want := range []string{"nominal: " + ev.Conditions[0].Condition.String(), "lowest gm: " + worst, "the other 7 conditions", "gm_min target"} {
+		if !strings.Contains(text, want) && !strings.Contains(text, strings.ReplaceAll(want, " ", "&#160;")) {
+			t.Errorf("figure lacks %q", want)
+		}
+	}
+	if !strings.Contains(f.Subtitle, "9 conditions") {
+		t.Errorf("subtitle %q", f.Subtitle)
+	}
+	// One path per condition's line, the band, the target, the legend's.
+	if n := strings.Count(text, "<path"); n < 9+1 {
+		t.Errorf("%d paths in the SVG, want at least one a condition and the band", n)
+	}
+	empty, err := ConditionsFigure(&sizing.Result{Spec: spec})
+	if err != nil || !strings.Contains(empty.Subtitle, "no candidate") {
+		t.Errorf("without candidates: %v, %q", err, empty.Subtitle)
+	}
+}
