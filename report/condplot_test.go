@@ -11,7 +11,9 @@ import (
 // TestConditionsFigure: the best candidate's gm at every condition names
 // the nominal condition and the one where gm is lowest (the worst case's
 // own, WorstCase.At), draws one line per condition and the band between
-// them, and renders as SVG; a run without an evaluated candidate says so.
+// them, and renders as SVG; the page's worst-case table gives each
+// figure's nominal and worst value and the worst's condition; a run
+// without an evaluated candidate says so.
 // No outside source: it checks the figure against the evaluation it
 // draws.
 func TestConditionsFigure(t *testing.T) {
@@ -56,6 +58,26 @@ func TestConditionsFigure(t *testing.T) {
 	// One path per condition's line, the band, the target, the legend's.
 	if n := strings.Count(text, "<path"); n < 9+1 {
 		t.Errorf("%d paths in the SVG, want at least one a condition and the band", n)
+	}
+	// The page's worst-case table: each figure's nominal and worst value
+	// and where the worst is.
+	v := candidateView(spec, c)
+	found := false
+	for _, r := range v.Worst {
+		if r.Key == objectives.AxisGMMin {
+			found = true
+			e, _ := objectives.Lookup(objectives.AxisGMMin)
+			if r.Worst != figureCell(e, w.Metrics.GMMin) || r.Nominal != figureCell(e, ev.Metrics.GMMin) || r.At != worst {
+				t.Errorf("worst-case row %+v, want %s at %s (nominal %s)", r, figureCell(e, w.Metrics.GMMin), worst, figureCell(e, ev.Metrics.GMMin))
+			}
+		}
+	}
+	if !found {
+		t.Errorf("no gm_min row in the worst-case table %+v", v.Worst)
+	}
+	page, err := RunPage(res, RunOptions{}, nil, nil, svg)
+	if err != nil || !strings.Contains(string(page), "<h3>Worst case</h3>") || !strings.Contains(string(page), worst) {
+		t.Errorf("the page lacks the worst-case table naming %s (%v)", worst, err)
 	}
 	empty, err := ConditionsFigure(&sizing.Result{Spec: spec})
 	if err != nil || !strings.Contains(empty.Subtitle, "no candidate") {

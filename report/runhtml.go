@@ -49,7 +49,13 @@ type pageCandidate struct {
 	Params                               []pageParam
 	Devices                              []pageDevice
 	MidVCM                               string // where Devices were taken
+	// Worst is each figure's nominal value beside its worst case and
+	// where that is measured, when the spec has more than one condition.
+	Worst []pageWorst
 }
+
+// pageWorst is one row of a candidate's worst-case table.
+type pageWorst struct{ Key, Nominal, Worst, At string }
 
 // pageFamily is one row of the ranked families table.
 type pageFamily struct {
@@ -150,6 +156,9 @@ func candidateView(spec *objectives.Spec, c *sizing.Candidate) *pageCandidate {
 	if c.Design != nil {
 		v.Params = paramRows(c.Design)
 	}
+	if c.Eval != nil && len(c.Eval.Conditions) > 1 {
+		v.Worst = worstRows(c)
+	}
 	if c.Eval != nil {
 		v.MidVCM = SI(c.Eval.MidVCM, "V", tableDigits)
 		for _, d := range c.Eval.Devices {
@@ -169,6 +178,21 @@ func candidateView(spec *objectives.Spec, c *sizing.Candidate) *pageCandidate {
 		}
 	}
 	return v
+}
+
+// worstRows lists, for every figure of eval's table, the candidate's
+// nominal value, its worst case (the one it is judged on) and the
+// condition where that is measured.
+func worstRows(c *sizing.Candidate) []pageWorst {
+	var out []pageWorst
+	for _, e := range figuresUpTo(objectives.InEval) {
+		at := "—"
+		if i, ok := c.Worst.At[e.Key]; ok && i >= 0 && i < len(c.Eval.Conditions) && e.Key != objectives.AxisMinSupply {
+			at = c.Eval.Conditions[i].Condition.String()
+		}
+		out = append(out, pageWorst{Key: e.Key, Nominal: figureCell(e, e.Value(c.Eval.Metrics)), Worst: figureCell(e, e.Value(c.Metrics)), At: at})
+	}
+	return out
 }
 
 // gmIDText writes a gm/I_D in 1/V: "17.32 /V", a dash for NaN.
@@ -481,7 +505,12 @@ Files: <a href="{{.Best.Design}}"><code>{{.Best.Design}}</code></a>, <a href="{{
 <p>{{.Status}}; {{.Full}}, score {{.Score}}.
 Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}"><code>{{.Netlist}}</code></a>.</p>
 {{if .Misses}}<p class="misses">misses {{range $i, $m := .Misses}}{{if $i}}; {{end}}{{$m}}{{end}}</p>{{end}}
-{{template "sizes" .}}
+{{if .Worst}}<h3>Worst case</h3>
+<table class="worst">
+<tr><th>figure</th><th>nominal</th><th>worst</th><th>at</th></tr>
+{{range .Worst}}<tr><td><code>{{.Key}}</code></td><td class="num">{{.Nominal}}</td><td class="num">{{.Worst}}</td><td class="nowrap">{{.At}}</td></tr>
+{{end}}</table>
+{{end}}{{template "sizes" .}}
 {{end}}
 <h2>Trade-offs</h2>
 <figure>{{.ParetoSVG}}</figure>
