@@ -231,6 +231,11 @@ type MismatchResult struct {
 	// number of Monte Carlo samples (0 for sensitivities).
 	Method  string
 	Samples int
+	// SampleOffsets[k][i] and SampleSwitchovers[k] are Monte Carlo
+	// sample k's offset at point i and its switchover, V (nil for
+	// sensitivities).
+	SampleOffsets     [][]float64
+	SampleSwitchovers []float64
 }
 
 // result turns the model into the figures of a design whose k is sigma.

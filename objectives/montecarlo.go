@@ -128,7 +128,8 @@ func monteCarlo(d *Design, st *topologies.Stage, samples int, seed int64, worker
 	for i := range vcm {
 		vcm[i] = d.Sweep.At(i, np)
 	}
-	r := &MismatchResult{Sigma: d.sigma(), VCM: vcm, Offset: make([]float64, np), Method: MethodMonteCarlo, Samples: samples}
+	r := &MismatchResult{Sigma: d.sigma(), VCM: vcm, Offset: make([]float64, np), Method: MethodMonteCarlo, Samples: samples,
+		SampleOffsets: offs, SampleSwitchovers: sws}
 	// Centre every point's offsets on their mean: the spread is what
 	// mismatch adds to the stage's own (systematic) offset.
 	mean := make([]float64, np)
@@ -187,6 +188,23 @@ func stddev(xs []float64) float64 {
 		v += (x - m) * (x - m)
 	}
 	return math.Sqrt(v / float64(len(xs)-1))
+}
+
+// MonteCarloNominal draws samples Monte Carlo samples of design d at its
+// nominal condition alone (monteCarlo), for a report beside the
+// sensitivity estimate.
+func MonteCarloNominal(d *Design, samples int, seed int64, workers int) (*MismatchResult, error) {
+	if !mismatchOK(d.Process) {
+		return nil, errNoMismatch(d.Process)
+	}
+	if samples < 2 {
+		return nil, fmt.Errorf("monte carlo: %d samples, want at least 2", samples)
+	}
+	st, err := Build(d)
+	if err != nil {
+		return nil, err
+	}
+	return monteCarlo(d, st, samples, seed, max(1, workers))
 }
 
 // SampleResult is one Monte Carlo sample of a design at its nominal

@@ -219,7 +219,7 @@ func TestEveryConsumerCoversEveryEntry(t *testing.T) {
 	// The report page: a column head per figure in the Pareto table and
 	// per figure of the rankings and the families in theirs, every figure
 	// in the best candidate's paragraph, a glossary entry for each.
-	page, err := RunPage(res, RunOptions{}, []byte("<svg></svg>"), []byte("<svg></svg>"), []byte("<svg></svg>"))
+	page, err := RunPage(res, RunOptions{}, []byte("<svg></svg>"), []byte("<svg></svg>"), []byte("<svg></svg>"), nil)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -75,12 +75,59 @@ func TestConditionsFigure(t *testing.T) {
 	if !found {
 		t.Errorf("no gm_min row in the worst-case table %+v", v.Worst)
 	}
-	page, err := RunPage(res, RunOptions{}, nil, nil, svg)
+	page, err := RunPage(res, RunOptions{}, nil, nil, svg, nil)
 	if err != nil || !strings.Contains(string(page), "<h3>Worst case</h3>") || !strings.Contains(string(page), worst) {
 		t.Errorf("the page lacks the worst-case table naming %s (%v)", worst, err)
 	}
 	empty, err := ConditionsFigure(&sizing.Result{Spec: spec})
 	if err != nil || !strings.Contains(empty.Subtitle, "no candidate") {
 		t.Errorf("without candidates: %v, %q", err, empty.Subtitle)
+	}
+}
+
+// TestMonteCarloFigure: the best candidate's Monte Carlo histograms stand
+// beside the sensitivity estimate's σ at the same common mode, name the
+// number of samples, and say so when there is no Monte Carlo. The
+// agreement itself is objectives' TestMonteCarloAgainstSensitivity; this
+// checks the figure against the samples it draws.
+func TestMonteCarloFigure(t *testing.T) {
+	spec, err := objectives.ReadSpec("s.yaml", []byte("name: mc\nprocess: demo18-l1\nsupply: 1.8V\ncorners: tt\ninput_range: {low: 0V, high: supply, step: 100mV}\ntopologies: [current-switch]\n"), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := spec.Design("current-switch", nil)
+	fam, _ := d.Family()
+	for _, p := range fam.Params() {
+		d.Params[p.Name] = p.Default
+	}
+	ev, err := objectives.Evaluate(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mc, err := objectives.MonteCarloNominal(d, 300, 1, 2)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := &sizing.Candidate{ID: "c01", Topology: "current-switch", Design: d, Eval: ev, Metrics: ev.Metrics, Worst: ev.WorstFor(spec.Targets), Feasible: true}
+	res := &sizing.Result{Spec: spec, Candidates: []*sizing.Candidate{c}, Best: c, MonteCarlo: mc, MonteCarloOf: c}
+	f, err := MonteCarloFigure(res)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(f.Panels) != 2 || !strings.Contains(f.Subtitle, "300 samples") {
+		t.Fatalf("%d panels, subtitle %q; want the offset and the switchover from 300 samples", len(f.Panels), f.Subtitle)
+	}
+	svg, err := f.Render("svg")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"300 samples: σ", "sensitivity: σ"} {
+		if !strings.Contains(string(svg), want) && !strings.Contains(string(svg), strings.ReplaceAll(want, " ", "&#160;")) {
+			t.Errorf("figure lacks %q", want)
+		}
+	}
+	none, err := MonteCarloFigure(&sizing.Result{Spec: spec})
+	if err != nil || !strings.Contains(none.Subtitle, "no Monte Carlo") {
+		t.Errorf("without samples: %v, %q", err, none.Subtitle)
 	}
 }

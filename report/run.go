@@ -30,6 +30,8 @@ const (
 	CurvesPlotFile = "curves.svg"
 	// ConditionsPlotFile is the best candidate's gm at every condition.
 	ConditionsPlotFile = "conditions.svg"
+	// MonteCarloPlotFile is the best candidate's Monte Carlo histograms.
+	MonteCarloPlotFile = "montecarlo.svg"
 	ReportFile         = "report.html"
 	CandidatesDir      = "candidates"
 )
@@ -159,7 +161,11 @@ func WriteRun(dir string, res *sizing.Result, opt RunOptions) error {
 	if err != nil {
 		return err
 	}
-	page, err := RunPage(res, opt, paretoSVG, curvesSVG, condSVG)
+	mcSVG, err := plotSVG(MonteCarloPlotFile, MonteCarloFigure)
+	if err != nil {
+		return err
+	}
+	page, err := RunPage(res, opt, paretoSVG, curvesSVG, condSVG, mcSVG)
 	if err != nil {
 		return err
 	}

@@ -371,7 +371,7 @@ func TestRunPageEscapes(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	page, err := RunPage(res, RunOptions{}, svg, svg, svg)
+	page, err := RunPage(res, RunOptions{}, svg, svg, svg, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -522,7 +522,7 @@ func TestBlockedFamily(t *testing.T) {
 		strings.TrimSpace(lines[row+1]) != want {
 		t.Errorf("table:\n%s\nwant a complementary row 'not buildable' without an id, then %q", b.String(), want)
 	}
-	page, err := RunPage(res, RunOptions{}, nil, nil, nil)
+	page, err := RunPage(res, RunOptions{}, nil, nil, nil, nil)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -33,7 +33,7 @@ const (
 )
 
 // resultNames are the entries a run writes at the top of its directory.
-var resultNames = []string{SummaryFile, ParetoCSVFile, ParetoPlotFile, CurvesPlotFile, ConditionsPlotFile, ReportFile, CandidatesDir, ProcessFile}
+var resultNames = []string{SummaryFile, ParetoCSVFile, ParetoPlotFile, CurvesPlotFile, ConditionsPlotFile, MonteCarloPlotFile, ReportFile, CandidatesDir, ProcessFile}
 
 // OutputError is an output path that cannot be written: a directory that
 // cannot be made, a file that cannot be created. It is bad input — the

@@ -88,6 +88,7 @@ type pageData struct {
 	ParetoSVG  template.HTML
 	CurvesSVG  template.HTML
 	CondSVG    template.HTML
+	MCSVG      template.HTML
 	Front      []*pageCandidate
 	Others     []*pageCandidate
 	All        []*pageCandidate
@@ -323,7 +324,7 @@ func glossary() []pageTerm {
 // and transistors in a collapsible section, each linked to its design
 // file and deck, and a glossary of the metrics. Everything that comes
 // from the spec is escaped by html/template.
-func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG, condSVG []byte) ([]byte, error) {
+func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG, condSVG, mcSVG []byte) ([]byte, error) {
 	spec := res.Spec
 	reported, whole := FrontSize(res)
 	d := pageData{
@@ -339,6 +340,7 @@ func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG, condSVG [
 		ParetoSVG:  inlineSVG(paretoSVG),
 		CurvesSVG:  inlineSVG(curvesSVG),
 		CondSVG:    inlineSVG(condSVG),
+		MCSVG:      inlineSVG(mcSVG),
 		Glossary:   glossary(),
 	}
 	d.RankedHeads = figureKeys(figuresUpTo(objectives.InRanking))
@@ -410,6 +412,7 @@ func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG, condSVG [
 		{ParetoPlotFile, "the Pareto front plot"},
 		{CurvesPlotFile, "the gm curves plot"},
 		{ConditionsPlotFile, "the best candidate's gm at every condition"},
+		{MonteCarloPlotFile, "the best candidate's Monte Carlo histograms of offset and switchover"},
 		{CandidatesDir + "/<id>.yaml", "design files: pairsmith eval reads them as they are"},
 		{CandidatesDir + "/<id>.cir", deckText(res.Spec.Process)},
 		{ProcessFile, "the run's copy of its process, which the design files refer to"},
@@ -518,6 +521,8 @@ Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}
 <figure>{{.CurvesSVG}}</figure>
 <h2>gm at every condition</h2>
 <figure>{{.CondSVG}}</figure>
+<h2>Mismatch: Monte Carlo and sensitivities</h2>
+<figure>{{.MCSVG}}</figure>
 
 <h2>Pareto candidates</h2>
 {{if .Front}}<p>{{.FrontText}}.{{if .Thinned}} The front holds more members than a run reports (at most ` + strconv.Itoa(sizing.MaxReportedFront) + `); the reported ones are those most spread along it by crowding distance, its extremes always kept.{{end}}</p>

@@ -47,7 +47,7 @@ func TestFrontText(t *testing.T) {
 			if want := "2 candidates written, " + tc.want + "\n"; res.Best != nil && !strings.Contains(b.String(), want) {
 				t.Errorf("run table lacks %q:\n%s", want, b.String())
 			}
-			page, err := RunPage(res, RunOptions{}, nil, nil, nil)
+			page, err := RunPage(res, RunOptions{}, nil, nil, nil, nil)
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -69,7 +69,7 @@ func TestFrontText(t *testing.T) {
 // nothing fetched from elsewhere.
 func TestRunPageContents(t *testing.T) {
 	res := searchSpec(t, "strain-gauge.yaml", 400)
-	pageRaw, err := RunPage(res, RunOptions{Workers: 2, RunID: "20250101-abcdef"}, nil, nil, nil)
+	pageRaw, err := RunPage(res, RunOptions{Workers: 2, RunID: "20250101-abcdef"}, nil, nil, nil, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -77,7 +77,7 @@ func TestRunPageContents(t *testing.T) {
 	if !strings.Contains(page, `<p class="runid">run <code>20250101-abcdef</code></p>`) {
 		t.Error("the header lacks the run id")
 	}
-	noID, err := RunPage(res, RunOptions{}, nil, nil, nil)
+	noID, err := RunPage(res, RunOptions{}, nil, nil, nil, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -309,7 +309,7 @@ func TestRunPageSaysWhichDecksRun(t *testing.T) {
 		{"strain-gauge.yaml", "nearest level-1 equivalent", "own level-1 cards"},
 	} {
 		res := searchSpec(t, tc.spec, 200)
-		page, err := RunPage(res, RunOptions{}, nil, nil, nil)
+		page, err := RunPage(res, RunOptions{}, nil, nil, nil, nil)
 		if err != nil {
 			t.Fatal(err)
 		}

@@ -200,7 +200,7 @@ func TestRunDelivers(t *testing.T) {
 	}
 
 	// Every file exists.
-	for _, f := range []string{"summary.json", "pareto.csv", "pareto.svg", "curves.svg", "conditions.svg", "report.html"} {
+	for _, f := range []string{"summary.json", "pareto.csv", "pareto.svg", "curves.svg", "conditions.svg", "montecarlo.svg", "report.html"} {
 		if _, err := os.Stat(filepath.Join(o.dir, f)); err != nil {
 			t.Error(err)
 		}
@@ -339,8 +339,8 @@ func TestRunDelivers(t *testing.T) {
 	if !bytes.Contains(page, []byte(html.EscapeString(objectives.Caution))) {
 		t.Error("report.html lacks the caution")
 	}
-	if n := bytes.Count(page, []byte("<svg")); n != 3 {
-		t.Errorf("report.html embeds %d SVGs, want the 3 plots", n)
+	if n := bytes.Count(page, []byte("<svg")); n != 4 {
+		t.Errorf("report.html embeds %d SVGs, want the 4 plots", n)
 	}
 
 	// stdout: the ranked table, the best (or the binding targets), where

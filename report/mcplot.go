@@ -1,0 +1,115 @@
+package report
+
+import (
+	"fmt"
+	"image/color"
+	"math"
+
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/plotter"
+
+	"pairsmith/objectives"
+	"pairsmith/sizing"
+)
+
+// MonteCarloFigure draws the run's Monte Carlo samples of its best
+// candidate (else its first reported one) at the nominal condition
+// (sizing.Result.MonteCarlo): a
+// histogram of the input offset at the common mode where its spread is
+// largest and one of the switchover's shift from its mean, each as a
+// density beside the Gaussian of the sensitivity estimate's σ there
+// (docs/mismatch.md).
+func MonteCarloFigure(res *sizing.Result) (*Figure, error) {
+	fig := &Figure{Title: fmt.Sprintf("Monte Carlo of a candidate, %s", oneLine(res.Spec.Name)), Caption: objectives.Caution,
+		Width: runFigureWidth}
+	mc, b := res.MonteCarlo, res.MonteCarloOf
+	if mc == nil || b == nil || b.Eval == nil || len(b.Eval.Conditions) == 0 || b.Eval.Conditions[0].Mismatch == nil {
+		fig.Subtitle = "no Monte Carlo: no candidate was reported, or the process has no mismatch coefficients"
+		return fig, nil
+	}
+	sens := b.Eval.Conditions[0].Mismatch
+	// The common mode of the largest Monte Carlo spread.
+	at := 0
+	for i, s := range mc.Offset {
+		if !math.IsNaN(s) && (math.IsNaN(mc.Offset[at]) || s > mc.Offset[at]) {
+			at = i
+		}
+	}
+	offs := make(plotter.Values, 0, len(mc.SampleOffsets))
+	for _, o := range mc.SampleOffsets {
+		if at < len(o) && !math.IsNaN(o[at]) {
+			offs = append(offs, o[at]*1e3)
+		}
+	}
+	sigmaAt := math.NaN()
+	for i, v := range sens.VCM {
+		if math.Abs(v-mc.VCM[at]) < 1e-9 {
+			sigmaAt = sens.Offset[i]
+		}
+	}
+	panel := func(vals plotter.Values, sigma float64, xLabel, what string) (*plot.Plot, error) {
+		p := newPanel(xLabel, "density (1/mV)")
+		if len(vals) < 2 {
+			return p, nil
+		}
+		mean := 0.0
+		for _, v := range vals {
+			mean += v / float64(len(vals))
+		}
+		for i := range vals {
+			vals[i] -= mean
+		}
+		h, err := plotter.NewHist(vals, 30)
+		if err != nil {
+			return nil, fmt.Errorf("histogram of %s: %w", what, err)
+		}
+		h.Normalize(1)
+		h.FillColor = color.NRGBA{R: 0x1f, G: 0x77, B: 0xb4, A: 0x80}
+		h.LineStyle.Width = 0
+		p.Add(h)
+		if s := sigma * 1e3; s > 0 {
+			g := plotter.NewFunction(func(x float64) float64 { return math.Exp(-x*x/(2*s*s)) / (s * math.Sqrt(2*math.Pi)) })
+			g.Color = color.NRGBA{R: 0xc0, G: 0x20, B: 0x20, A: 0xff}
+			g.Width = boldWidth
+			p.Add(g)
+			p.Legend.Add(fmt.Sprintf("sensitivity: σ %.3g mV", s), g)
+		}
+		p.Legend.Add(fmt.Sprintf("%d samples: σ %.3g mV", len(vals), stddevOf(vals)), h)
+		p.Legend.Top = true
+		return p, nil
+	}
+	po, err := panel(offs, sigmaAt, fmt.Sprintf("offset at vcm %s (mV, about its mean)", SI(mc.VCM[at], "V", tableDigits)), "the offset")
+	if err != nil {
+		return nil, err
+	}
+	fig.Panels = []*plot.Plot{po}
+	if !math.IsNaN(sens.SwitchoverSigma) {
+		sw := make(plotter.Values, 0, len(mc.SampleSwitchovers))
+		for _, v := range mc.SampleSwitchovers {
+			if !math.IsNaN(v) {
+				sw = append(sw, v*1e3)
+			}
+		}
+		ps, err := panel(sw, sens.SwitchoverSigma, "switchover (mV, about its mean)", "the switchover")
+		if err != nil {
+			return nil, err
+		}
+		fig.Panels = append(fig.Panels, ps)
+	}
+	fig.Subtitle = fmt.Sprintf("%s (%s), %d samples at %s, beside the first-order sensitivity estimate", b.ID, b.Topology, mc.Samples,
+		b.Eval.Conditions[0].Condition)
+	return fig, nil
+}
+
+// stddevOf is the sample standard deviation of vs.
+func stddevOf(vs plotter.Values) float64 {
+	m := 0.0
+	for _, v := range vs {
+		m += v / float64(len(vs))
+	}
+	s := 0.0
+	for _, v := range vs {
+		s += (v - m) * (v - m)
+	}
+	return math.Sqrt(s / float64(len(vs)-1))
+}
