@@ -114,14 +114,14 @@ func TestMonteCarloFigure(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(f.Panels) != 2 || !strings.Contains(f.Subtitle, "300 samples") {
-		t.Fatalf("%d panels, subtitle %q; want the offset and the switchover from 300 samples", len(f.Panels), f.Subtitle)
+	if len(f.Panels) != 3 || !strings.Contains(f.Subtitle, "300 samples") {
+		t.Fatalf("%d panels, subtitle %q; want the offset band, the offset and the switchover from 300 samples", len(f.Panels), f.Subtitle)
 	}
 	svg, err := f.Render("svg")
 	if err != nil {
 		t.Fatal(err)
 	}
-	for _, want := range []string{"300 samples: σ", "sensitivity: σ"} {
+	for _, want := range []string{"300 samples: σ", "sensitivity: σ", "sensitivity: ±3 σ", "Monte Carlo: ±3 σ", "12 of the samples"} {
 		if !strings.Contains(string(svg), want) && !strings.Contains(string(svg), strings.ReplaceAll(want, " ", "&#160;")) {
 			t.Errorf("figure lacks %q", want)
 		}

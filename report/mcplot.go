@@ -7,6 +7,7 @@ import (
 
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/vg"
 
 	"pairsmith/objectives"
 	"pairsmith/sizing"
@@ -14,11 +15,11 @@ import (
 
 // MonteCarloFigure draws the run's Monte Carlo samples of its best
 // candidate (else its first reported one) at the nominal condition
-// (sizing.Result.MonteCarlo): a
-// histogram of the input offset at the common mode where its spread is
-// largest and one of the switchover's shift from its mean, each as a
-// density beside the Gaussian of the sensitivity estimate's σ there
-// (docs/mismatch.md).
+// (sizing.Result.MonteCarlo): the offset against the common mode with
+// its ±k-sigma band (offsetBand), a histogram of the input offset at the
+// common mode where its spread is largest and one of the switchover's
+// shift from its mean, each as a density beside the Gaussian of the
+// sensitivity estimate's σ there (docs/mismatch.md).
 func MonteCarloFigure(res *sizing.Result) (*Figure, error) {
 	fig := &Figure{Title: fmt.Sprintf("Monte Carlo of a candidate, %s", oneLine(res.Spec.Name)), Caption: objectives.Caution,
 		Width: runFigureWidth}
@@ -82,7 +83,11 @@ func MonteCarloFigure(res *sizing.Result) (*Figure, error) {
 	if err != nil {
 		return nil, err
 	}
-	fig.Panels = []*plot.Plot{po}
+	band, err := offsetBand(sens, mc)
+	if err != nil {
+		return nil, err
+	}
+	fig.Panels = []*plot.Plot{band, po}
 	if !math.IsNaN(sens.SwitchoverSigma) {
 		sw := make(plotter.Values, 0, len(mc.SampleSwitchovers))
 		for _, v := range mc.SampleSwitchovers {
@@ -99,6 +104,81 @@ func MonteCarloFigure(res *sizing.Result) (*Figure, error) {
 	fig.Subtitle = fmt.Sprintf("%s (%s), %d samples at %s, beside the first-order sensitivity estimate", b.ID, b.Topology, mc.Samples,
 		b.Eval.Conditions[0].Condition)
 	return fig, nil
+}
+
+// bandSamples is how many of the Monte Carlo samples' offset curves the
+// band panel draws: enough to see them cross the band, few enough to see
+// each.
+const bandSamples = 12
+
+// offsetBand draws the offset against the common mode: the sensitivity
+// estimate's ±k·σ band shaded, the Monte Carlo samples' own ±k·σ as
+// lines, and the first bandSamples samples' offset curves about their
+// mean, where the offset moves from one pair's to the other's across the
+// handover.
+func offsetBand(sens, mc *objectives.MismatchResult) (*plot.Plot, error) {
+	k := sens.Sigma
+	p := newPanel("vcm (V)", fmt.Sprintf("offset (mV), ±%g σ", k))
+	var up, dn plotter.XYs
+	for i, v := range sens.VCM {
+		if s := sens.Offset[i]; !math.IsNaN(s) {
+			up, dn = append(up, plotter.XY{X: v, Y: k * s * 1e3}), append(dn, plotter.XY{X: v, Y: -k * s * 1e3})
+		}
+	}
+	if len(up) > 1 {
+		ring := append(plotter.XYs{}, up...)
+		for i := len(dn) - 1; i >= 0; i-- {
+			ring = append(ring, dn[i])
+		}
+		poly, err := plotter.NewPolygon(ring)
+		if err != nil {
+			return nil, fmt.Errorf("plot the offset band: %w", err)
+		}
+		poly.Color = color.NRGBA{R: 0x1f, G: 0x77, B: 0xb4, A: 0x30}
+		poly.LineStyle.Width = 0
+		p.Add(poly)
+		p.Legend.Add(fmt.Sprintf("sensitivity: ±%g σ", k), poly)
+	}
+	mean := make([]float64, len(mc.VCM))
+	for _, o := range mc.SampleOffsets {
+		for i := range mean {
+			mean[i] += o[i] / float64(len(mc.SampleOffsets))
+		}
+	}
+	for j, o := range mc.SampleOffsets {
+		if j >= bandSamples {
+			break
+		}
+		ys := make([]float64, len(o))
+		for i := range o {
+			ys[i] = o[i] - mean[i]
+		}
+		l, err := SeriesLine(mc.VCM, ys, 1e3, faded(styleGrey), nil)
+		if err != nil {
+			return nil, fmt.Errorf("plot sample %d: %w", j, err)
+		}
+		l.LineStyle.Width = thinWidth
+		p.Add(l)
+		if j == 0 {
+			p.Legend.Add(fmt.Sprintf("%d of the samples", min(bandSamples, len(mc.SampleOffsets))), l)
+		}
+	}
+	for _, sign := range []float64{1, -1} {
+		ys := make([]float64, len(mc.Offset))
+		for i, s := range mc.Offset {
+			ys[i] = sign * k * s
+		}
+		l, err := SeriesLine(mc.VCM, ys, 1e3, color.NRGBA{R: 0xc0, G: 0x20, B: 0x20, A: 0xff}, []vg.Length{vg.Points(5), vg.Points(2.5)})
+		if err != nil {
+			return nil, fmt.Errorf("plot the samples' band: %w", err)
+		}
+		p.Add(l)
+		if sign > 0 {
+			p.Legend.Add(fmt.Sprintf("Monte Carlo: ±%g σ", k), l)
+		}
+	}
+	p.Legend.Top = true
+	return p, nil
 }
 
 // stddevOf is the sample standard deviation of vs.
