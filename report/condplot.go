@@ -92,17 +92,9 @@ func ConditionsFigure(res *sizing.Result) (*Figure, error) {
 			hi = append(hi, plotter.XY{X: pt.VCM, Y: mx * scale})
 		}
 	}
-	if len(lo) > 1 {
-		ring := append(plotter.XYs{}, lo...)
-		for i := len(hi) - 1; i >= 0; i-- {
-			ring = append(ring, hi[i])
-		}
-		band, err := plotter.NewPolygon(ring)
-		if err != nil {
-			return nil, fmt.Errorf("plot the conditions' band: %w", err)
-		}
-		band.Color = color.NRGBA{R: 0x1f, G: 0x77, B: 0xb4, A: 0x30}
-		band.LineStyle.Width = 0
+	if band, err := bandBetween(lo, hi); err != nil {
+		return nil, fmt.Errorf("plot the conditions' band: %w", err)
+	} else if band != nil {
 		p.Add(band)
 	}
 	legend := figureLegend()
@@ -161,6 +153,28 @@ func ConditionsFigure(res *sizing.Result) (*Figure, error) {
 	fig.Subtitle = fmt.Sprintf("%s (%s) at %d conditions; ripple worst at %s", c.ID, c.Topology, len(conds),
 		conditionName(c, objectives.AxisGMRipple))
 	return fig, nil
+}
+
+// bandColour shades a band: a light blue no family has.
+var bandColour = color.NRGBA{R: 0x1f, G: 0x77, B: 0xb4, A: 0x30}
+
+// bandBetween returns the shaded region between two curves over the same
+// abscissae, lo and hi, without an outline; nil for fewer than two points.
+func bandBetween(lo, hi plotter.XYs) (*plotter.Polygon, error) {
+	if len(lo) < 2 || len(hi) != len(lo) {
+		return nil, nil
+	}
+	ring := append(plotter.XYs{}, lo...)
+	for i := len(hi) - 1; i >= 0; i-- {
+		ring = append(ring, hi[i])
+	}
+	band, err := plotter.NewPolygon(ring)
+	if err != nil {
+		return nil, err
+	}
+	band.Color = bandColour
+	band.LineStyle.Width = 0
+	return band, nil
 }
 
 // conditionName names the condition where the candidate's figure key is

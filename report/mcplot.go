@@ -125,17 +125,9 @@ func offsetBand(sens, mc *objectives.MismatchResult) (*plot.Plot, error) {
 			up, dn = append(up, plotter.XY{X: v, Y: k * s * 1e3}), append(dn, plotter.XY{X: v, Y: -k * s * 1e3})
 		}
 	}
-	if len(up) > 1 {
-		ring := append(plotter.XYs{}, up...)
-		for i := len(dn) - 1; i >= 0; i-- {
-			ring = append(ring, dn[i])
-		}
-		poly, err := plotter.NewPolygon(ring)
-		if err != nil {
-			return nil, fmt.Errorf("plot the offset band: %w", err)
-		}
-		poly.Color = color.NRGBA{R: 0x1f, G: 0x77, B: 0xb4, A: 0x30}
-		poly.LineStyle.Width = 0
+	if poly, err := bandBetween(dn, up); err != nil {
+		return nil, fmt.Errorf("plot the offset band: %w", err)
+	} else if poly != nil {
 		p.Add(poly)
 		p.Legend.Add(fmt.Sprintf("sensitivity: ±%g σ", k), poly)
 	}
