@@ -343,6 +343,14 @@ var catalog = []Entry{
 			Doc: "the lowest supply, to 5 mV, at which the stage still meets the sheet's gm_min and gm_ripple_max (without those targets: keeps gm alive) rail to rail at every corner and temperature of its sign-off, found by bisection."},
 	},
 	{
+		Key: "noise", Kind: Figure, Dim: units.VoltPerRootHertz, Combine: Highest,
+		Field:  func(m *Metrics) *float64 { return &m.Noise },
+		Column: "noise_V_per_rtHz",
+		Words: Words{Meaning: "input noise density at 10 kHz, largest over the sweep", Shown: InEval,
+			Missing: "not estimated", Incomplete: "not estimated",
+			Doc: "the input-referred voltage noise density at 10 kHz, the largest over the range: every transistor's thermal and flicker noise carried to the output by the solved circuit and referred to the input through gm (docs/noise.md)."},
+	},
+	{
 		Key: CheckGeometry, Kind: Constraint, Dim: units.Metre, Sense: AtLeast,
 		Words: Words{Miss: "geometry: a drawn size %s against the rule %s"},
 	},

@@ -108,6 +108,7 @@ type swept struct {
 	metrics  Metrics
 	findings []Finding
 	mismatch *MismatchResult // nil on a process without mismatch coefficients
+	noise    *NoiseResult
 }
 
 // sweep builds, sweeps and checks a design: the one code path behind
@@ -157,6 +158,12 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 	if err := addSlew(&sw.metrics, st, s, res, d, d.Sweep.Step); err != nil {
 		return nil, err
 	}
+	nm, err := analyseNoise(st, s, res, d.Process, d.TempK)
+	if err != nil {
+		return nil, err
+	}
+	sw.noise = nm.result(DefaultNoiseFrequency)
+	sw.metrics.Noise = sw.noise.Density
 	return sw, nil
 }
 
@@ -166,6 +173,7 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 type Extras struct {
 	Mismatch bool // offset and offset_drift (docs/mismatch.md)
 	Slew     bool // slew_current and slew (docs/metrics.md#slew)
+	Noise    bool // noise (docs/noise.md)
 	// Coarse estimates them on a look's coarse sweep only and keeps
 	// those for its fine one (a search's choice: they vary slowly along
 	// the range, and cost a solve a point); otherwise each look makes
@@ -174,7 +182,7 @@ type Extras struct {
 }
 
 // AllExtras asks for every extra figure, as `eval` does.
-func AllExtras() Extras { return Extras{Mismatch: true, Slew: true} }
+func AllExtras() Extras { return Extras{Mismatch: true, Slew: true, Noise: true} }
 
 // addExtras estimates the figures ex asks for into m: mismatch on a
 // process that gives coefficients, the slew.
@@ -190,6 +198,13 @@ func addExtras(m *Metrics, st *topologies.Stage, s *sim.Solver, res *sim.Result,
 		if err := addSlew(m, st, s, res, d, step); err != nil {
 			return err
 		}
+	}
+	if ex.Noise {
+		nm, err := analyseNoise(st, s, res, d.Process, d.TempK)
+		if err != nil {
+			return err
+		}
+		m.Noise = nm.result(DefaultNoiseFrequency).Density
 	}
 	return nil
 }
@@ -307,7 +322,7 @@ func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float6
 	}
 	m, fs = Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr)
 	if ex.Coarse {
-		m.Offset, m.OffsetDrift, m.SlewCurrent, m.Slew = coarseM.Offset, coarseM.OffsetDrift, coarseM.SlewCurrent, coarseM.Slew
+		m.Offset, m.OffsetDrift, m.SlewCurrent, m.Slew, m.Noise = coarseM.Offset, coarseM.OffsetDrift, coarseM.SlewCurrent, coarseM.Slew, coarseM.Noise
 		return m, fs, true, nil
 	}
 	err = addExtras(&m, st, s, res, d, d.Sweep.Step, ex)
@@ -394,7 +409,7 @@ func EvaluateWith(d *Design, opt EvalOptions) (*Evaluation, error) {
 	conds := d.AllConditions()
 	ev.Conditions = make([]ConditionEval, len(conds))
 	ev.Conditions[0] = ConditionEval{Condition: conds[0], Metrics: sw.metrics, Findings: sw.findings, Fine: true, Mismatch: sw.mismatch,
-		Curve: Curve(st, res)}
+		Noise: sw.noise, Curve: Curve(st, res)}
 	if len(conds) > 1 {
 		if err := measureConditions(d, conds[1:], ev.Conditions[1:], &SolverCache{}, conditionWorkers()); err != nil {
 			return nil, err
@@ -468,6 +483,7 @@ type JSON struct {
 	Worst      map[string]WorstJSON `json:"worst"`
 	// Mismatch is null on a process without mismatch coefficients.
 	Mismatch *MismatchJSON `json:"mismatch"`
+	Noise    *NoiseJSON    `json:"noise"`
 	Caution  string        `json:"caution"`
 }
 
@@ -480,6 +496,7 @@ func (ev *Evaluation) Doc() JSON {
 		Checks:     append([]Finding{}, ev.Findings...),
 		Conditions: ConditionsJSON(ev.Conditions), Worst: ev.WorstFor(NoTargets()).JSON(ev.Conditions),
 		Mismatch: mismatchJSON(ev.Conditions),
+		Noise:    noiseJSON(ev.Conditions),
 		Caution:  Caution,
 	}
 }

@@ -66,12 +66,12 @@ func TestMeasure(t *testing.T) {
 			// need the solver (TestPelgromNPair and TestSlewAgainstNgspice
 			// check them) and are left NaN.
 			again := objectives.Measure(ev.Stage, res)
-			for _, x := range []float64{again.Offset, again.OffsetDrift, again.SlewCurrent, again.Slew, again.MinSupply} {
+			for _, x := range []float64{again.Offset, again.OffsetDrift, again.SlewCurrent, again.Slew, again.MinSupply, again.Noise} {
 				if !math.IsNaN(x) {
 					t.Errorf("Measure gives a solver figure %g, want NaN", x)
 				}
 			}
-			again.Offset, again.OffsetDrift, again.SlewCurrent, again.Slew, again.MinSupply = m.Offset, m.OffsetDrift, m.SlewCurrent, m.Slew, m.MinSupply
+			again.Offset, again.OffsetDrift, again.SlewCurrent, again.Slew, again.MinSupply, again.Noise = m.Offset, m.OffsetDrift, m.SlewCurrent, m.Slew, m.MinSupply, m.Noise
 			if !m.Same(again) {
 				t.Errorf("Evaluation.Metrics %+v, Measure of its sweep %+v", m, again)
 			}
@@ -247,10 +247,10 @@ func TestEvaluateDoc(t *testing.T) {
 				}
 			}
 			metrics, _ := doc["metrics"].(map[string]any)
-			if len(metrics) != 13 {
-				t.Errorf("metrics %v, want the seven of docs/files.md#eval-json, gm_id_min, offset, offset_drift, slew_current, slew and min_supply", metrics)
+			if len(metrics) != 14 {
+				t.Errorf("metrics %v, want the seven of docs/files.md#eval-json, gm_id_min, offset, offset_drift, slew_current, slew, min_supply and noise", metrics)
 			}
-			for _, k := range []string{"gm_min", "gm_max", "gm_ripple", "power", "area", "switchover", "transition_width", "gm_id_min", "offset", "offset_drift", "slew_current", "slew", "min_supply"} {
+			for _, k := range []string{"gm_min", "gm_max", "gm_ripple", "power", "area", "switchover", "transition_width", "gm_id_min", "offset", "offset_drift", "slew_current", "slew", "min_supply", "noise"} {
 				val, ok := metrics[k]
 				if !ok {
 					t.Errorf("metrics lack %s", k)

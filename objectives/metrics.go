@@ -56,6 +56,10 @@ type Metrics struct {
 	// design, the same under each of its conditions. NaN when not
 	// estimated, +Inf when it does not work at the highest supply.
 	MinSupply float64
+	// Noise is the input-referred voltage noise density at
+	// DefaultNoiseFrequency, the largest over the range, V/√Hz
+	// (docs/noise.md); NaN when not estimated.
+	Noise float64
 }
 
 // MarshalJSON writes the metrics by their catalog keys (their names in
@@ -135,7 +139,7 @@ func Measure(st *topologies.Stage, res *sim.Result) Metrics {
 	in, ip := res.Probe[c.ProbeIndex(topologies.ProbeIN)], res.Probe[c.ProbeIndex(topologies.ProbeIP)]
 	m.GMMin, m.GMMax, m.GMOverIDMin = math.Inf(1), math.Inf(-1), math.Inf(1)
 	m.Offset, m.OffsetDrift = math.NaN(), math.NaN()
-	m.SlewCurrent, m.Slew, m.MinSupply = math.NaN(), math.NaN(), math.NaN()
+	m.SlewCurrent, m.Slew, m.MinSupply, m.Noise = math.NaN(), math.NaN(), math.NaN(), math.NaN()
 	for i, g := range res.GM {
 		// A gm below zero here lies within the solver's tolerance of it
 		// (CheckPhysical refuses a sweep with one beyond): it is zero.

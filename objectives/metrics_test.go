@@ -401,7 +401,7 @@ func TestHandoverNonMonotoneSwitchover(t *testing.T) {
 // +Inf for gm_ripple, NaN elsewhere; finite values bit for bit, since
 // encoding/json writes the shortest decimal that reads back exactly).
 func TestMetricsJSON(t *testing.T) {
-	keys := []string{"area", "gm_id_min", "gm_max", "gm_min", "gm_ripple", "min_supply", "offset", "offset_drift", "power", "slew", "slew_current", "switchover", "transition_width"}
+	keys := []string{"area", "gm_id_min", "gm_max", "gm_min", "gm_ripple", "min_supply", "noise", "offset", "offset_drift", "power", "slew", "slew_current", "switchover", "transition_width"}
 	nan, inf := math.NaN(), math.Inf(1)
 	tests := []struct {
 		name  string
@@ -409,12 +409,12 @@ func TestMetricsJSON(t *testing.T) {
 		nulls []string
 	}{
 		{"all finite", objectives.Metrics{GMMin: 1.9e-4, GMMax: 2.7e-4, GMRipple: 0.42105263157894735,
-			Power: 7.2e-5, Area: 1.6e-10, Switchover: 1.02, TransitionWidth: 0.11, GMOverIDMin: 12.5, Offset: 3e-3, OffsetDrift: 1e-3, SlewCurrent: 2e-5, Slew: 4e6, MinSupply: 1.4}, nil},
+			Power: 7.2e-5, Area: 1.6e-10, Switchover: 1.02, TransitionWidth: 0.11, GMOverIDMin: 12.5, Offset: 3e-3, OffsetDrift: 1e-3, SlewCurrent: 2e-5, Slew: 4e6, MinSupply: 1.4, Noise: 2e-8}, nil},
 		{"single pair", objectives.Metrics{GMMin: 0, GMMax: 3.1e-4, GMRipple: inf,
-			Power: 4.5e-5, Area: 5.6e-11, Switchover: nan, TransitionWidth: nan, GMOverIDMin: 14, Offset: nan, OffsetDrift: nan, SlewCurrent: 0, Slew: nan, MinSupply: nan},
-			[]string{"gm_ripple", "switchover", "transition_width", "offset", "offset_drift", "slew", "min_supply"}},
+			Power: 4.5e-5, Area: 5.6e-11, Switchover: nan, TransitionWidth: nan, GMOverIDMin: 14, Offset: nan, OffsetDrift: nan, SlewCurrent: 0, Slew: nan, MinSupply: nan, Noise: nan},
+			[]string{"gm_ripple", "switchover", "transition_width", "offset", "offset_drift", "slew", "min_supply", "noise"}},
 		{"odd values", objectives.Metrics{GMMin: math.SmallestNonzeroFloat64, GMMax: math.MaxFloat64,
-			GMRipple: math.Inf(-1), Power: nan, Area: 1.0000000000000002, Switchover: -0.1, TransitionWidth: 0, GMOverIDMin: nan, Offset: 1e-9, OffsetDrift: 0, SlewCurrent: 1, Slew: 1e12, MinSupply: 0.9},
+			GMRipple: math.Inf(-1), Power: nan, Area: 1.0000000000000002, Switchover: -0.1, TransitionWidth: 0, GMOverIDMin: nan, Offset: 1e-9, OffsetDrift: 0, SlewCurrent: 1, Slew: 1e12, MinSupply: 0.9, Noise: 1e-9},
 			[]string{"gm_ripple", "power", "gm_id_min"}},
 		{"zero value", objectives.Metrics{}, nil},
 	}

@@ -209,3 +209,33 @@ func TestSlewAlongTheRange(t *testing.T) {
 		t.Errorf("slew current %g A along the range, %g A the least of the points alone (at %g V)", got, least, at)
 	}
 }
+
+// TestPairThermalNoise: the input-referred thermal noise of an n-pair on
+// ideal summing nodes is that of its two input devices,
+// √(2·4kT·(2/3)/g_m) with g_m each device's (van der Ziel's channel noise
+// 4kT·(2/3)·g_m of a saturated square-law device; any analog design
+// text), within 1 % (the tail's noise is common mode and reaches no
+// output), at three common modes where the pair conducts; the flicker
+// part falls as 1/f.
+func TestPairThermalNoise(t *testing.T) {
+	for _, vcm := range []float64{0.9, 1.2, 1.5} {
+		d, err := objectives.ReadDesign("n.yaml", []byte("topology: n-pair\nprocess: demo18-l1\nsupply: 1.8V\ncorners: tt\nparams: {wn: 10um, ln: 2um, itail: 40uA}\n"), "")
+		if err != nil {
+			t.Fatal(err)
+		}
+		d.Sweep.Low, d.Sweep.High = vcm, vcm
+		ev, err := objectives.Evaluate(d)
+		if err != nil {
+			t.Fatal(err)
+		}
+		n := ev.Conditions[0].Noise
+		gm := ev.Devices[0].GM
+		want := math.Sqrt(2 * 4 * 1.380649e-23 * d.TempK * 2 / 3 / gm)
+		if got := math.Sqrt(n.Thermal[0]); math.Abs(got-want) > 0.01*want {
+			t.Errorf("vcm %g V: thermal %g V/√Hz, √(2·4kT·(2/3)/g_m) = %g V/√Hz", vcm, got, want)
+		}
+		if lo, hi := n.At(0, 1e3), n.At(0, 1e6); !(n.Flicker[0] > 0) || math.Abs(lo*lo-n.Thermal[0]-1e3*(hi*hi-n.Thermal[0])) > 1e-9*lo*lo {
+			t.Errorf("vcm %g V: flicker %g at 1 Hz, densities %g and %g at 1 kHz and 1 MHz: not 1/f", vcm, n.Flicker[0], lo, hi)
+		}
+	}
+}

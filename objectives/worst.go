@@ -18,8 +18,9 @@ type ConditionEval struct {
 	// Mismatch is the mismatch estimate there (nil when not made).
 	Mismatch *MismatchResult
 	// Curve is the gm and pair-current curve there, as Evaluate measures
-	// it (nil for a search's looks).
+	// it (nil for a search's looks); Noise the input noise there.
 	Curve []CurvePoint
+	Noise *NoiseResult
 }
 
 // WorstCase is the worst case of one design's measurements under its
@@ -255,7 +256,7 @@ func measureConditions(d *Design, conds []Condition, out []ConditionEval, cache 
 					continue
 				}
 				out[i] = ConditionEval{Condition: c, Metrics: sw.metrics, Findings: sw.findings, Fine: true, Mismatch: sw.mismatch,
-					Curve: Curve(sw.st, sw.res)}
+					Noise: sw.noise, Curve: Curve(sw.st, sw.res)}
 			}
 		})
 	}

@@ -41,6 +41,17 @@ func modelName(t device.Type) string {
 	return NMOSModel
 }
 
+// withNoise adds a process's noise coefficients of device type t, when
+// it gives them, to a .model line: kf, af and tox, so that ngspice's
+// .noise has pairsmith's flicker noise (docs/noise.md).
+func withNoise(card string, n device.Noise, t device.Type) string {
+	if !n.Given || !strings.HasSuffix(card, ")") {
+		return card
+	}
+	c := n.For(t)
+	return strings.TrimSuffix(card, ")") + fmt.Sprintf(" kf=%s af=%s tox=%s)", num(c.KF), num(c.AF), num(c.TOX))
+}
+
 // ownCard returns the name of transistor m's own card — one that is not
 // process p's card of its type, as in a Monte Carlo sample
 // (objectives.WithShifts) — and whether it has one.
@@ -370,8 +381,8 @@ func Testbench(out io.Writer, d *objectives.Design, st *topologies.Stage, opt Te
 	} else {
 		fmt.Fprintf(w, "* models of process %s (%s)%s\n", proc.Name, proc.Kind, atCorner(proc))
 	}
-	fmt.Fprintln(w, proc.N.(device.SpiceCarder).SpiceCard(NMOSModel, d.TempK))
-	fmt.Fprintln(w, proc.P.(device.SpiceCarder).SpiceCard(PMOSModel, d.TempK))
+	fmt.Fprintln(w, withNoise(proc.N.(device.SpiceCarder).SpiceCard(NMOSModel, d.TempK), d.Process.Noise, device.NMOS))
+	fmt.Fprintln(w, withNoise(proc.P.(device.SpiceCarder).SpiceCard(PMOSModel, d.TempK), d.Process.Noise, device.PMOS))
 	first := true
 	for _, m := range c.Mosfets {
 		name, ok := ownCard(m, d.Process)
@@ -386,7 +397,7 @@ func Testbench(out io.Writer, d *objectives.Design, st *topologies.Stage, opt Te
 			fmt.Fprintln(w, "* each transistor's own card (a mismatch sample): the process's shifted in vto and kp")
 			first = false
 		}
-		fmt.Fprintln(w, sc.SpiceCard(name, d.TempK))
+		fmt.Fprintln(w, withNoise(sc.SpiceCard(name, d.TempK), d.Process.Noise, m.Model.Type()))
 	}
 	fmt.Fprintf(w, ".temp %s\n", celsius(d.TempK))
 	fmt.Fprintln(w, "*")

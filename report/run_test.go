@@ -232,14 +232,14 @@ func TestParetoCSV(t *testing.T) {
 		res := handResult(t, tc.pareto)
 		rows := paretoRows(t, res)
 		wantHead := append(append([]string{"id", "topology", "gm_min_S", "gm_max_S", "gm_ripple", "power_W", "area_m2",
-			"switchover_V", "transition_width_V", "gm_id_min_per_V", "offset_V", "offset_drift_V", "slew_current_A", "slew_V_per_s", "min_supply_V"}, tc.axes...), "score")
+			"switchover_V", "transition_width_V", "gm_id_min_per_V", "offset_V", "offset_drift_V", "slew_current_A", "slew_V_per_s", "min_supply_V", "noise_V_per_rtHz"}, tc.axes...), "score")
 		if strings.Join(rows[0], ",") != strings.Join(wantHead, ",") {
 			t.Errorf("header %v, want %v", rows[0], wantHead)
 		}
 		if len(rows) != 2 {
 			t.Fatalf("%d rows, want the header and the one Pareto candidate", len(rows))
 		}
-		wantRow := append(append([]string{"c01", "n-pair", "0.000125", "0.00025", "1", "0.00015", "4e-10", "", "", "9", "0", "0", "0", "0", "0"}, tc.values...), "0.75")
+		wantRow := append(append([]string{"c01", "n-pair", "0.000125", "0.00025", "1", "0.00015", "4e-10", "", "", "9", "0", "0", "0", "0", "0", "0"}, tc.values...), "0.75")
 		if strings.Join(rows[1], ",") != strings.Join(wantRow, ",") {
 			t.Errorf("row %v, want %v", rows[1], wantRow)
 		}

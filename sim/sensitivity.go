@@ -115,6 +115,12 @@ func (s *Solver) Sensitivities(res *Result, i int, probes []int, out [][]float64
 	return nil
 }
 
+// LoadedOps returns each transistor's large-signal operating point at the
+// solver's last load (after Sensitivities: at its point), in the
+// circuit's order; the slice is the solver's own, read-only, valid until
+// the next load.
+func (s *Solver) LoadedOps() []device.LargeSignal { return s.ops }
+
 // OutputNear solves the circuit at (vcm, vid) by Newton from start, the
 // unknowns of a solution nearby (a sweep's point at another vid, say),
 // falling back to a fresh solve, and returns the output probe's value

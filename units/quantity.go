@@ -28,25 +28,26 @@ type Dim int
 // The dimensions pairsmith's files use. Parse returns every one of them in
 // coherent SI units: Percent as a plain fraction and Temperature in kelvin.
 const (
-	Dimensionless   Dim = iota // a plain number, no unit
-	Volt                       // V
-	Ampere                     // A
-	Siemens                    // S
-	Metre                      // m
-	SquareMetre                // m²; "um2", "um^2", "µm²"
-	Percent                    // a fraction: "15%" or a bare 0.15
-	Temperature                // K; "27C", "27°C", "300K", a bare number is °C
-	VoltPerSecond              // V/s, slew rate; "2V/us"
-	Farad                      // F
-	Hertz                      // Hz
-	Second                     // s
-	Watt                       // W
-	AmperePerVoltSq            // A/V², the transconductance parameter kp
-	VoltPerKelvin              // V/K, a threshold temperature coefficient
-	PerVolt                    // 1/V, channel-length modulation; "0.05/V"
-	SqrtVolt                   // √V, body-effect coefficient; "0.5V^0.5"
-	VoltMetre                  // V·m, Pelgrom's A_VT; "5mV*um"
-	PercentMetre               // m, Pelgrom's A_β as a fraction times a length; "1%*um"
+	Dimensionless    Dim = iota // a plain number, no unit
+	Volt                        // V
+	Ampere                      // A
+	Siemens                     // S
+	Metre                       // m
+	SquareMetre                 // m²; "um2", "um^2", "µm²"
+	Percent                     // a fraction: "15%" or a bare 0.15
+	Temperature                 // K; "27C", "27°C", "300K", a bare number is °C
+	VoltPerSecond               // V/s, slew rate; "2V/us"
+	Farad                       // F
+	Hertz                       // Hz
+	Second                      // s
+	Watt                        // W
+	AmperePerVoltSq             // A/V², the transconductance parameter kp
+	VoltPerKelvin               // V/K, a threshold temperature coefficient
+	PerVolt                     // 1/V, channel-length modulation; "0.05/V"
+	SqrtVolt                    // √V, body-effect coefficient; "0.5V^0.5"
+	VoltMetre                   // V·m, Pelgrom's A_VT; "5mV*um"
+	PercentMetre                // m, Pelgrom's A_β as a fraction times a length; "1%*um"
+	VoltPerRootHertz            // V/√Hz, a noise density; "25nV/rtHz"
 	numDims
 )
 
@@ -129,7 +130,9 @@ var dims = [numDims]dimInfo{
 		[]spelling{{text: "V/s", pow: 1}, {text: "V/ms", exp: 3, pow: 1}, {text: "V/us", exp: 6, pow: 1},
 			{text: "V/µs", exp: 6, pow: 1}, {text: "V/μs", exp: 6, pow: 1}, {text: "V/ns", exp: 9, pow: 1}},
 		[]candidate{{"V/ns", 9}, {"V/us", 6}, {"V/ms", 3}, {"V/s", 0}, {"mV/s", -3}, {"uV/s", -6}, {"nV/s", -9}}},
-	Farad:  {"capacitance", "a capacitance in F", "F", "10pF", plain("F"), prefixed("F", 1)},
+	Farad: {"capacitance", "a capacitance in F", "F", "10pF", plain("F"), prefixed("F", 1)},
+	VoltPerRootHertz: {"noise density", "a noise density in V/√Hz", "V/√Hz", "25nV/rtHz",
+		plain("V/rtHz", "V/√Hz", "V/sqrtHz"), prefixed("V/rtHz", 1)},
 	Hertz:  {"frequency", "a frequency in Hz", "Hz", "10MHz", plain("Hz"), prefixed("Hz", 1)},
 	Second: {"time", "a time in s", "s", "10ns", plain("s"), prefixed("s", 1)},
 	Watt:   {"power", "a power in W", "W", "100uW", plain("W"), prefixed("W", 1)},

@@ -60,6 +60,8 @@ func TestParseGood(t *testing.T) {
 		{"15 %", Percent, 0.15},
 		{"0.2", Percent, 0.2},
 		{"2V/us", VoltPerSecond, 2e6},
+		{"25nV/rtHz", VoltPerRootHertz, 25e-9},
+		{"3 µV/√Hz", VoltPerRootHertz, 3e-6},
 		{"2 V/µs", VoltPerSecond, 2e6},
 		{"2V/μs", VoltPerSecond, 2e6},
 		{"5V/ns", VoltPerSecond, 5e9},

@@ -61,45 +61,63 @@ func MismatchRanges() []Range {
 // Both device types and both coefficients are required in it.
 func readMismatch(root *units.Map) (Mismatch, error) {
 	var out Mismatch
-	if !root.Has("mismatch") {
-		return out, nil
+	given, err := readPerType(root, "mismatch", MismatchRanges(), func(t Type, field string, v float64) {
+		dst := &out.N
+		if t == PMOS {
+			dst = &out.P
+		}
+		*map[string]*float64{"avt": &dst.AVT, "abeta": &dst.ABeta}[field] = v
+	})
+	out.Given = given
+	return out, err
+}
+
+// readPerType reads a process file's section of one map per device type,
+// {nmos: {...}, pmos: {...}}, both required, each holding every field of
+// ranges (and no other), each value within its range, checked at its
+// line; set receives each value. It reports whether the section is there.
+func readPerType(root *units.Map, section string, ranges []Range, set func(t Type, field string, v float64)) (bool, error) {
+	if !root.Has(section) {
+		return false, nil
 	}
-	mm, _, err := root.Map("mismatch")
+	sm, _, err := root.Map(section)
 	if err != nil {
-		return out, err
+		return false, err
 	}
-	if err := mm.Check("nmos", "pmos"); err != nil {
-		return out, err
+	if err := sm.Check("nmos", "pmos"); err != nil {
+		return false, err
 	}
-	if err := mm.Require("nmos", "pmos"); err != nil {
-		return out, err
+	if err := sm.Require("nmos", "pmos"); err != nil {
+		return false, err
+	}
+	fields := make([]string, len(ranges))
+	for i, r := range ranges {
+		fields[i] = r.Field
 	}
 	for _, side := range []struct {
 		key string
-		dst *Pelgrom
-	}{{"nmos", &out.N}, {"pmos", &out.P}} {
-		m, _, err := mm.Map(side.key)
+		t   Type
+	}{{"nmos", NMOS}, {"pmos", PMOS}} {
+		m, _, err := sm.Map(side.key)
 		if err != nil {
-			return out, err
+			return false, err
 		}
-		if err := m.Check("avt", "abeta"); err != nil {
-			return out, err
+		if err := m.Check(fields...); err != nil {
+			return false, err
 		}
-		if err := m.Require("avt", "abeta"); err != nil {
-			return out, err
+		if err := m.Require(fields...); err != nil {
+			return false, err
 		}
-		dst := map[string]*float64{"avt": &side.dst.AVT, "abeta": &side.dst.ABeta}
-		for _, r := range MismatchRanges() {
+		for _, r := range ranges {
 			v, _, err := m.Quantity(r.Field, r.Dim)
 			if err != nil {
-				return out, err
+				return false, err
 			}
 			if !r.Contains(v) {
-				return out, m.ErrorAt(r.Field, m.Text(r.Field), r.Want(), errors.New(r.Why))
+				return false, m.ErrorAt(r.Field, m.Text(r.Field), r.Want(), errors.New(r.Why))
 			}
-			*dst[r.Field] = v
+			set(side.t, r.Field, v)
 		}
 	}
-	out.Given = true
-	return out, nil
+	return true, nil
 }

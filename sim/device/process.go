@@ -34,6 +34,8 @@ type Process struct {
 	typical [2]Model
 	// Mismatch holds the Pelgrom coefficients, if the file gives them.
 	Mismatch Mismatch
+	// Noise holds the flicker-noise coefficients, if the file gives them.
+	Noise Noise
 
 	// File is the file the process was read from, as given to
 	// ReadProcess; pos holds the line and text of every card value
@@ -130,6 +132,7 @@ func LoadProcess(path string) (*Process, error) {
 //	corners:                                          # optional; see readCorners
 //	  ff: {nmos: {dvt: -40mV, dkp: 8%}, pmos: {dvt: -50mV, dkp: 8%}}
 //	mismatch: {nmos: {avt: 5mV*um, abeta: 1%*um}, pmos: {avt: 5.5mV*um, abeta: 1%*um}}   # optional; see readMismatch
+//	noise: {nmos: {kf: 1e-25, af: 1, tox: 4nm}, pmos: {kf: 4e-26, af: 1, tox: 4nm}}       # optional; see readNoise
 //
 // Each card takes vto (V, SPICE sign: positive for an NMOS, negative for a
 // PMOS) and kp (A/V²), both required; gamma (√V, default 0), phi (V,
@@ -155,7 +158,7 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 	if err != nil {
 		return nil, err
 	}
-	if err := m.Check("name", "doc", "model", "tnom", "nmos", "pmos", "rules", "corners", "mismatch"); err != nil {
+	if err := m.Check("name", "doc", "model", "tnom", "nmos", "pmos", "rules", "corners", "mismatch", "noise"); err != nil {
 		return nil, err
 	}
 	if err := m.Require("model", "nmos", "pmos"); err != nil {
@@ -197,6 +200,9 @@ func ReadProcess(file string, data []byte) (*Process, error) {
 	}
 	p.Corner, p.typical = Typical, [2]Model{p.N, p.P}
 	if p.Mismatch, err = readMismatch(m); err != nil {
+		return nil, err
+	}
+	if p.Noise, err = readNoise(m); err != nil {
 		return nil, err
 	}
 	return p, nil
