@@ -147,23 +147,19 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 	}
 	sw.findings = Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK)
 	wg.Wait()
-	if mismatchOK(d.Process) {
-		mm, err := analyseMismatch(st, s, res, d.Process)
-		if err != nil {
-			return nil, err
-		}
-		sw.mismatch = mm.result(d.sigma())
-		sw.mismatch.fill(&sw.metrics)
-	}
-	if err := addSlew(&sw.metrics, st, s, res, d, d.Sweep.Step); err != nil {
-		return nil, err
-	}
-	nm, err := analyseNoise(st, s, res, d.Process, d.TempK)
+	mm, nm, err := analyse(st, s, res, d, true, true)
 	if err != nil {
 		return nil, err
 	}
+	if mm != nil {
+		sw.mismatch = mm.result(d.sigma())
+		sw.mismatch.fill(&sw.metrics)
+	}
 	sw.noise = nm.result(DefaultNoiseFrequency)
 	sw.metrics.Noise = sw.noise.Density
+	if err := addSlew(&sw.metrics, st, s, res, d, d.Sweep.Step); err != nil {
+		return nil, err
+	}
 	return sw, nil
 }
 
@@ -187,24 +183,20 @@ func AllExtras() Extras { return Extras{Mismatch: true, Slew: true, Noise: true}
 // addExtras estimates the figures ex asks for into m: mismatch on a
 // process that gives coefficients, the slew.
 func addExtras(m *Metrics, st *topologies.Stage, s *sim.Solver, res *sim.Result, d *Design, step float64, ex Extras) error {
-	if ex.Mismatch && mismatchOK(d.Process) {
-		mm, err := analyseMismatch(st, s, res, d.Process)
-		if err != nil {
-			return err
-		}
+	mm, nm, err := analyse(st, s, res, d, ex.Mismatch, ex.Noise)
+	if err != nil {
+		return err
+	}
+	if mm != nil {
 		mm.result(d.sigma()).fill(m)
+	}
+	if nm != nil {
+		m.Noise = nm.result(DefaultNoiseFrequency).Density
 	}
 	if ex.Slew {
 		if err := addSlew(m, st, s, res, d, step); err != nil {
 			return err
 		}
-	}
-	if ex.Noise {
-		nm, err := analyseNoise(st, s, res, d.Process, d.TempK)
-		if err != nil {
-			return err
-		}
-		m.Noise = nm.result(DefaultNoiseFrequency).Density
 	}
 	return nil
 }

@@ -53,7 +53,7 @@ func deviceSigmas(st *topologies.Stage, p *device.Process) []float64 {
 // output's change, −ΔI_out/gm. The switchover's sensitivities are
 // central differences of Handover on the pair currents moved by each
 // variable to first order.
-func analyseMismatch(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *device.Process) (*mismatchModel, error) {
+func analyseMismatch(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *device.Process, nm *noiseModel, tempK float64) (*mismatchModel, error) {
 	c := st.Circuit
 	nk := len(c.Mosfets)
 	out, in, ip := c.ProbeIndex(topologies.ProbeOut), c.ProbeIndex(topologies.ProbeIN), c.ProbeIndex(topologies.ProbeIP)
@@ -79,6 +79,9 @@ func analyseMismatch(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *de
 	for i := range np {
 		if err := s.Sensitivities(res, i, probes, sens, evs); err != nil {
 			return nil, err
+		}
+		if nm != nil { // the noise from the same solve
+			nm.addNoise(i, st, p, sens[0], evs, s.LoadedOps(), res.GM[i], gmMax, tempK)
 		}
 		row := make([]float64, 2*nk)
 		gm := res.GM[i]

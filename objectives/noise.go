@@ -104,6 +104,32 @@ func (nm *noiseModel) result(f float64) *NoiseResult {
 	return r
 }
 
+// newNoiseModel is an empty noise model for the np points of res.
+func newNoiseModel(res *sim.Result) *noiseModel {
+	np := res.Len()
+	return &noiseModel{vcm: res.VCM, th: make([]float64, np), fl: make([]float64, np)}
+}
+
+// analyse builds the mismatch model (nil on a process without mismatch
+// coefficients, or unless wantMismatch) and the noise model (nil unless
+// wantNoise) of a sweep, from one set of sensitivities a point when both
+// are wanted.
+func analyse(st *topologies.Stage, s *sim.Solver, res *sim.Result, d *Design, wantMismatch, wantNoise bool) (*mismatchModel, *noiseModel, error) {
+	var nm *noiseModel
+	if wantMismatch && mismatchOK(d.Process) {
+		if wantNoise {
+			nm = newNoiseModel(res)
+		}
+		mm, err := analyseMismatch(st, s, res, d.Process, nm, d.TempK)
+		return mm, nm, err
+	}
+	if !wantNoise {
+		return nil, nil, nil
+	}
+	nm, err := analyseNoise(st, s, res, d.Process, d.TempK)
+	return nil, nm, err
+}
+
 // analyseNoise builds the noise model of sweep res of stage st, solved by
 // s, on process p at tempK: one factorisation a point
 // (sim.Solver.Sensitivities of the output).
@@ -114,7 +140,7 @@ func analyseNoise(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *devic
 	sens := [][]float64{make([]float64, nk)}
 	evs := make([]device.Eval, nk)
 	np := res.Len()
-	nm := &noiseModel{vcm: res.VCM, th: make([]float64, np), fl: make([]float64, np)}
+	nm := newNoiseModel(res)
 	gmMax := 0.0
 	for _, g := range res.GM {
 		gmMax = math.Max(gmMax, g)
