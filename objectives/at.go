@@ -88,6 +88,14 @@ func (d *Design) Under(c Condition) *Design {
 	return &out
 }
 
+// noiseFrequency returns where the design's noise figure is taken, Hz.
+func (d *Design) noiseFrequency() float64 {
+	if d.NoiseFrequency > 0 {
+		return d.NoiseFrequency
+	}
+	return DefaultNoiseFrequency
+}
+
 // sigma returns the k of the design's k-sigma mismatch figures.
 func (d *Design) sigma() float64 {
 	if d.Signoff.Sigma > 0 {

@@ -87,6 +87,9 @@ type Target struct {
 	Limit func(*Targets) *float64
 	// Window is where Targets holds a Window target.
 	Window func(*Targets) *SwitchoverTarget
+	// Frequency says the target is written {density, at}: a limit (in
+	// Limit) at a frequency (Targets.NoiseAt), as noise_max is.
+	Frequency bool
 }
 
 // Axis says how a figure is a trade-off axis. Every axis is minimised:
@@ -343,10 +346,13 @@ var catalog = []Entry{
 			Doc: "the lowest supply, to 5 mV, at which the stage still meets the sheet's gm_min and gm_ripple_max (without those targets: keeps gm alive) rail to rail at every corner and temperature of its sign-off, found by bisection."},
 	},
 	{
-		Key: "noise", Kind: Figure, Dim: units.VoltPerRootHertz, Combine: Highest,
+		Key: AxisNoise, Kind: Figure, Dim: units.VoltPerRootHertz, Sense: AtMost, Combine: Highest,
 		Field:  func(m *Metrics) *float64 { return &m.Noise },
 		Column: "noise_V_per_rtHz",
-		Words: Words{Meaning: "input noise density at 10 kHz, largest over the sweep", Shown: InEval,
+		Target: Target{Key: TargetNoiseMax, Want: "a noise density above 0 V/√Hz, for example 25nV/rtHz", Frequency: true,
+			Limit: func(t *Targets) *float64 { return &t.NoiseMax }},
+		Axis: Axis{Scale: DefaultScaleNoise, Missing: func(Range) float64 { return worstAxisValue }},
+		Words: Words{Meaning: "input noise density at the design's frequency (10 kHz unless set), largest over the sweep", Shown: InEval,
 			Missing: "not estimated", Incomplete: "not estimated",
 			Doc: "the input-referred voltage noise density at 10 kHz, the largest over the range: every transistor's thermal and flicker noise carried to the output by the solved circuit and referred to the input through gm (docs/noise.md)."},
 	},

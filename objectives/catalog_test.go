@@ -106,6 +106,9 @@ func TestCatalogEntries(t *testing.T) {
 				owners = append(owners, e.Key)
 			}
 		}
+		if tt.Field(i).Name == "NoiseAt" { // noise_max's frequency, read with its limit
+			continue
+		}
 		if len(owners) != 1 {
 			t.Errorf("Targets.%s is the target of %v, want one entry", tt.Field(i).Name, owners)
 		}

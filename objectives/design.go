@@ -39,6 +39,9 @@ type Design struct {
 	// FollowSupply says the sweep's high end is the positive rail at
 	// every supply (written as high: supply, or not written).
 	FollowSupply bool
+	// NoiseFrequency is where the noise figure is taken, Hz (the file's
+	// noise_frequency, a spec's noise_max.at); 0 is DefaultNoiseFrequency.
+	NoiseFrequency float64
 	// corners holds the process at each corner of Signoff (read-only,
 	// shared by copies).
 	corners map[string]*device.Process
@@ -67,7 +70,7 @@ func ReadDesign(file string, data []byte, baseDir string) (*Design, error) {
 }
 
 func readDesign(m *units.Map, baseDir string) (*Design, error) {
-	if err := m.Check(append([]string{"topology", "process", "saturation_margin", "sweep", "params"}, signoffKeys()...)...); err != nil {
+	if err := m.Check(append([]string{"topology", "process", "saturation_margin", "sweep", "params", "noise_frequency"}, signoffKeys()...)...); err != nil {
 		return nil, err
 	}
 	if err := m.Require("topology", "process", "supply"); err != nil {
@@ -94,6 +97,14 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 	d.ProcessRef, d.Conditions = cond.ProcessRef, cond.Conditions
 	d.SaturationMargin = cond.Margin
 	d.Signoff, d.corners = cond.Signoff, cond.corners
+	if m.Has("noise_frequency") {
+		if d.NoiseFrequency, _, err = m.Quantity("noise_frequency", units.Hertz); err != nil {
+			return nil, err
+		}
+		if !(d.NoiseFrequency > 0 && d.NoiseFrequency <= MaxNoiseFrequency) {
+			return nil, m.Errorf("noise_frequency", "a frequency above 0 Hz and at most 1GHz, for example 10kHz")
+		}
+	}
 	d.Sweep = sim.SweepSpec{Low: 0, High: d.Supply, Step: DefaultStep}
 	d.FollowSupply = true
 	if sw, ok, err := m.Map("sweep"); err != nil {
@@ -252,5 +263,8 @@ func (d *Design) formatSignoff(b *bytes.Buffer) {
 	}
 	if so.Load > 0 {
 		fmt.Fprintf(b, "load: %s\n", units.Format(so.Load, units.Farad))
+	}
+	if d.NoiseFrequency > 0 {
+		fmt.Fprintf(b, "noise_frequency: %s\n", units.Format(d.NoiseFrequency, units.Hertz))
 	}
 }

@@ -155,7 +155,7 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 		sw.mismatch = mm.result(d.sigma())
 		sw.mismatch.fill(&sw.metrics)
 	}
-	sw.noise = nm.result(DefaultNoiseFrequency)
+	sw.noise = nm.result(d.noiseFrequency())
 	sw.metrics.Noise = sw.noise.Density
 	if err := addSlew(&sw.metrics, st, s, res, d, d.Sweep.Step); err != nil {
 		return nil, err
@@ -191,7 +191,7 @@ func addExtras(m *Metrics, st *topologies.Stage, s *sim.Solver, res *sim.Result,
 		mm.result(d.sigma()).fill(m)
 	}
 	if nm != nil {
-		m.Noise = nm.result(DefaultNoiseFrequency).Density
+		m.Noise = nm.result(d.noiseFrequency()).Density
 	}
 	if ex.Slew {
 		if err := addSlew(m, st, s, res, d, step); err != nil {

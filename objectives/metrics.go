@@ -57,7 +57,8 @@ type Metrics struct {
 	// estimated, +Inf when it does not work at the highest supply.
 	MinSupply float64
 	// Noise is the input-referred voltage noise density at
-	// DefaultNoiseFrequency, the largest over the range, V/√Hz
+	// the design's noise frequency (10 kHz unless set), the largest over
+	// the range, V/√Hz
 	// (docs/noise.md); NaN when not estimated.
 	Noise float64
 }

@@ -1,6 +1,7 @@
 package objectives_test
 
 import (
+	"math"
 	"slices"
 	"testing"
 
@@ -155,4 +156,53 @@ func TestDesignSignoffRoundTrip(t *testing.T) {
 	if ss.Process.N == tt.Process.N || tt != back {
 		t.Errorf("ss shares tt's cards, or the nominal is not the design itself")
 	}
+}
+
+// TestNoiseTarget: noise_max is a density at a frequency; the sheet's
+// frequency becomes its designs' noise frequency (written back by
+// Format), where eval takes the noise figure; bad ones name their field.
+func TestNoiseTarget(t *testing.T) {
+	s, err := objectives.ReadSpec("s.yaml", []byte("process: demo18-l1\nsupply: 1.8V\ncorners: tt\ntargets:\n  noise_max: {density: 25nV/rtHz, at: 1kHz}\npareto: [noise, power]\n"), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s.Targets.NoiseMax != 25e-9 || s.Targets.NoiseAt != 1e3 || !s.Targets.Has(objectives.TargetNoiseMax) {
+		t.Fatalf("noise target %g at %g Hz", s.Targets.NoiseMax, s.Targets.NoiseAt)
+	}
+	fam, _ := topologies.Lookup("current-switch")
+	d := s.Design("current-switch", topologies.Defaults(fam))
+	back, err := objectives.ReadDesign("d.yaml", d.Format(), "")
+	if err != nil || d.NoiseFrequency != 1e3 || back.NoiseFrequency != 1e3 {
+		t.Fatalf("design noise frequency %g, read back %g (%v)", d.NoiseFrequency, back.NoiseFrequency, err)
+	}
+	ev, err := objectives.Evaluate(back)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := ev.Conditions[0].Noise
+	if n.Frequency != 1e3 || ev.Metrics.Noise != n.Density {
+		t.Errorf("noise at %g Hz, figure %g, density %g", n.Frequency, ev.Metrics.Noise, n.Density)
+	}
+	vs := s.Targets.Check(ev.Metrics)
+	found := false
+	for _, v := range vs {
+		if v.Target == objectives.TargetNoiseMax {
+			found = true
+			if want := math.Max(0, (ev.Metrics.Noise-25e-9)/25e-9); v.Amount != want {
+				t.Errorf("noise violation %g, want %g", v.Amount, want)
+			}
+		}
+	}
+	if !found {
+		t.Error("no noise_max violation entry")
+	}
+	checkBadYAML(t, []badYAML{
+		{name: "noise as one value", text: "process: demo18\nsupply: 1.8V\ntargets: {noise_max: 25nV/rtHz}\n", field: "targets.noise_max", line: 3, msg: []string{"density"}},
+		{name: "noise without a frequency", text: "process: demo18\nsupply: 1.8V\ntargets: {noise_max: {density: 25nV/rtHz}}\n", field: "targets.noise_max.at", line: 3},
+		{name: "noise in volts", text: "process: demo18\nsupply: 1.8V\ntargets: {noise_max: {density: 25nV, at: 1kHz}}\n", field: "targets.noise_max.density", line: 3, given: "25nV"},
+		{name: "noise at 0 Hz", text: "process: demo18\nsupply: 1.8V\ntargets: {noise_max: {density: 25nV/rtHz, at: 0Hz}}\n", field: "targets.noise_max.at", line: 3},
+	}, func(file string, data []byte, dir string) error {
+		_, err := objectives.ReadSpec(file, data, dir)
+		return err
+	})
 }

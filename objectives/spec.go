@@ -299,6 +299,15 @@ func readTargetsOf(entries []Entry, tm *units.Map, rng Range) (Targets, error) {
 			continue
 		}
 		key := e.Target.Key
+		if e.Target.Frequency {
+			ok, err := readAtFrequency(e, tm, &t)
+			if err != nil {
+				return t, err
+			}
+			if ok {
+				continue
+			}
+		}
 		x, ok, err := tm.Quantity(key, e.Dim)
 		if err != nil {
 			return t, err
@@ -324,6 +333,48 @@ func readTargetsOf(entries []Entry, tm *units.Map, rng Range) (Targets, error) {
 		}
 	}
 	return t, nil
+}
+
+// MaxNoiseFrequency is the highest frequency a noise target may be taken
+// at, Hz: beyond 1 GHz a DC model says nothing.
+const MaxNoiseFrequency = 1e9
+
+// readAtFrequency reads a target written {density, at} (noise_max) into
+// t: the limit into e's Limit, the frequency into t.NoiseAt; false when
+// the target is not written as a mapping (Quantity then refuses it).
+func readAtFrequency(e Entry, tm *units.Map, t *Targets) (bool, error) {
+	if !tm.IsMap(e.Target.Key) {
+		if tm.Has(e.Target.Key) {
+			return false, tm.Errorf(e.Target.Key, "{density: 25nV/rtHz, at: 10kHz}: a density and the frequency it holds at")
+		}
+		return false, nil
+	}
+	sm, _, err := tm.Map(e.Target.Key)
+	if err != nil {
+		return false, err
+	}
+	if err := sm.Check("density", "at"); err != nil {
+		return false, err
+	}
+	if err := sm.Require("density", "at"); err != nil {
+		return false, err
+	}
+	x, _, err := sm.Quantity("density", e.Dim)
+	if err != nil {
+		return false, err
+	}
+	if !(x > 0) || math.IsInf(x, 0) {
+		return false, sm.Errorf("density", "%s", e.Target.Want)
+	}
+	f, _, err := sm.Quantity("at", units.Hertz)
+	if err != nil {
+		return false, err
+	}
+	if !(f > 0 && f <= MaxNoiseFrequency) {
+		return false, sm.Errorf("at", "a frequency above 0 Hz and at most 1GHz, for example 10kHz")
+	}
+	*e.Target.Limit(t), t.NoiseAt = x, f
+	return true, nil
 }
 
 // readWindow reads a window target {at, tolerance}, both required.
@@ -497,7 +548,8 @@ func (s *Spec) Design(topology string, params topologies.Values) *Design {
 		v[k] = x
 	}
 	return &Design{Topology: topology, ProcessRef: ref, Conditions: s.Conditions, SaturationMargin: s.SaturationMargin,
-		Sweep: s.Sweep(), Params: v, Signoff: s.Signoff, FollowSupply: s.Range.Follows, corners: s.corners}
+		Sweep: s.Sweep(), Params: v, Signoff: s.Signoff, FollowSupply: s.Range.Follows, corners: s.corners,
+		NoiseFrequency: noiseAt(s.Targets)}
 }
 
 // MarshalJSON writes the spec as summary.json's "spec": the spec sheet's
@@ -557,6 +609,15 @@ func (s Spec) MarshalJSON() ([]byte, error) {
 		Targets:    s.Targets, Pareto: s.Pareto, Topologies: s.Topologies,
 		Search: search{s.Search.Evaluations, s.Search.Seed, s.Search.Time.Seconds()},
 	})
+}
+
+// noiseAt is where a spec's noise_max holds, Hz; 0 (the default) when
+// it sets none.
+func noiseAt(t Targets) float64 {
+	if t.NoiseAt > 0 {
+		return t.NoiseAt
+	}
+	return 0
 }
 
 // inOrderOf returns the names of known that names holds, in known's

@@ -18,6 +18,7 @@ const (
 	TargetOffsetDriftMax     = "offset_drift_max"
 	TargetSlewMin            = "slew_min"
 	TargetMinSupplyMax       = "min_supply_max"
+	TargetNoiseMax           = "noise_max"
 )
 
 // targetOrder is the order of Check and Names: the spec keys of the
@@ -46,6 +47,7 @@ const (
 	AxisOffsetDrift     = "offset_drift"
 	AxisSlew            = "slew"
 	AxisMinSupply       = "min_supply"
+	AxisNoise           = "noise"
 )
 
 // AxisNames returns every trade-off axis a spec may name, in a fixed
@@ -88,6 +90,7 @@ const (
 	DefaultScaleOffset          = 1e-3  // 1 mV
 	DefaultScaleSlew            = 1e6   // 1 V/µs
 	DefaultScaleMinSupply       = 0.1   // 100 mV
+	DefaultScaleNoise           = 10e-9 // 10 nV/√Hz
 	defaultScaleUnknown         = 1.0   // an axis name Spec does not know
 	worstAxisValue              = 1e300 // a failed evaluation's power or area on an axis
 )
@@ -125,6 +128,8 @@ type Targets struct {
 	OffsetDriftMax     float64          // V, k-sigma
 	SlewMin            float64          // V/s into the load
 	MinSupplyMax       float64          // V
+	NoiseMax           float64          // V/√Hz at NoiseAt
+	NoiseAt            float64          // Hz; the frequency of NoiseMax (NaN when it is not set)
 }
 
 // SwitchoverTarget asks for the handover's centre (Metrics.Switchover)
@@ -141,6 +146,7 @@ func NoTargets() Targets { return noTargetsOf(catalog) }
 func noTargetsOf(entries []Entry) Targets {
 	var t Targets
 	nan := math.NaN()
+	t.NoiseAt = nan
 	for _, e := range entries {
 		switch {
 		case !e.HasTarget():
@@ -310,9 +316,12 @@ func (t Targets) jsonOf(entries []Entry) map[string]any {
 			continue
 		}
 		limit, tol := t.limit(e)
-		if e.Target.Window != nil {
+		switch {
+		case e.Target.Window != nil:
 			out[e.Target.Key] = map[string]float64{"at": limit, "tolerance": tol}
-		} else {
+		case e.Target.Frequency:
+			out[e.Target.Key] = map[string]*float64{"density": finite(limit), "at": finite(t.NoiseAt)}
+		default:
 			out[e.Target.Key] = limit
 		}
 	}

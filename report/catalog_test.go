@@ -48,6 +48,9 @@ func catalogResult(t *testing.T) *sizing.Result {
 		case objectives.AtMost:
 			*e.Target.Limit(&spec.Targets) = 2 * x
 			*e.Field(&bad) = 4 * x
+			if e.Target.Frequency {
+				spec.Targets.NoiseAt = 1e4
+			}
 		case objectives.Window:
 			*e.Target.Window(&spec.Targets) = objectives.SwitchoverTarget{At: x, Tolerance: x / 10}
 			*e.Field(&bad) = 2 * x

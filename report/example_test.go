@@ -47,7 +47,7 @@ func ExampleMetricsTable() {
 	//   slew_current      19.60 µA      smallest output current for a large input over the sweep
 	//   slew                  —         (no load given)  slew_current into the load
 	//   min_supply        1.405 V       lowest supply that still works rail to rail
-	//   noise             17.95 nV/√Hz  input noise density at 10 kHz, largest over the sweep
+	//   noise             17.95 nV/√Hz  input noise density at the design's frequency (10 kHz unless set), largest over the sweep
 	//
 	// Estimates from compact models; verify with the foundry's models and a licensed sign-off flow before use.
 }

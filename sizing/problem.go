@@ -85,7 +85,8 @@ func NewProblem(spec *objectives.Spec) (*Problem, error) {
 	asks := func(target, axis string) bool { return spec.Targets.Has(target) || slices.Contains(spec.Pareto, axis) }
 	p.extras.Mismatch = asks(objectives.TargetOffsetMax, objectives.AxisOffset) || asks(objectives.TargetOffsetDriftMax, objectives.AxisOffsetDrift)
 	p.extras.Slew = asks(objectives.TargetSlewMin, objectives.AxisSlew)
-	p.extras.Coarse = p.extras.Mismatch || p.extras.Slew // from each look's coarse sweep
+	p.extras.Noise = asks(objectives.TargetNoiseMax, objectives.AxisNoise)
+	p.extras.Coarse = p.extras.Mismatch || p.extras.Slew || p.extras.Noise // from each look's coarse sweep
 	p.minSupply = asks(objectives.TargetMinSupplyMax, objectives.AxisMinSupply)
 	for _, name := range spec.Topologies {
 		f, err := topologies.Lookup(name)
