@@ -87,7 +87,8 @@ func TestConditionsFigure(t *testing.T) {
 
 // TestMonteCarloFigure: the best candidate's Monte Carlo histograms stand
 // beside the sensitivity estimate's σ at the same common mode, name the
-// number of samples, and say so when there is no Monte Carlo. The
+// number of samples, and say so when there is no Monte Carlo; the
+// finalists' table and summary.json carry a family best's. The
 // agreement itself is objectives' TestMonteCarloAgainstSensitivity; this
 // checks the figure against the samples it draws.
 func TestMonteCarloFigure(t *testing.T) {
@@ -125,6 +126,18 @@ func TestMonteCarloFigure(t *testing.T) {
 		if !strings.Contains(string(svg), want) && !strings.Contains(string(svg), strings.ReplaceAll(want, " ", "&#160;")) {
 			t.Errorf("figure lacks %q", want)
 		}
+	}
+	// The finalists' table and summary.json: the sensitivity beside the
+	// Monte Carlo for a family's best that carries one.
+	c.MonteCarlo = mc
+	res.Families = []sizing.FamilyRank{{Topology: "current-switch", Rank: 1, Feasible: true, Best: c}}
+	rows := finalistRows(res)
+	if len(rows) != 1 || rows[0].OffsetMC != SI(mc.OffsetSigma, "V", tableDigits) || rows[0].Offset != SI(ev.Conditions[0].Mismatch.OffsetSigma, "V", tableDigits) || rows[0].Samples != 300 {
+		t.Errorf("finalists %+v", rows)
+	}
+	sum, err := Summary(res, RunOptions{})
+	if err != nil || !strings.Contains(string(sum), `"monte_carlo": {`) || !strings.Contains(string(sum), `"samples": 300`) {
+		t.Errorf("summary.json lacks the candidate's Monte Carlo (%v)", err)
 	}
 	none, err := MonteCarloFigure(&sizing.Result{Spec: spec})
 	if err != nil || !strings.Contains(none.Subtitle, "no Monte Carlo") {

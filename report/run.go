@@ -294,6 +294,18 @@ type candidateJSON struct {
 	Metrics    objectives.Metrics              `json:"metrics"`
 	Worst      map[string]objectives.WorstJSON `json:"worst"`
 	Violations []objectives.Violation          `json:"violations"`
+	// MonteCarlo is a family's best's Monte Carlo at its nominal
+	// condition (left out for the others).
+	MonteCarlo *monteCarloJSON `json:"monte_carlo,omitempty"`
+}
+
+// monteCarloJSON is a candidate's Monte Carlo spread at its nominal
+// condition, one-sigma values in V (null for NaN).
+type monteCarloJSON struct {
+	Samples          int      `json:"samples"`
+	OffsetSigma      *float64 `json:"offset_sigma"`
+	OffsetDriftSigma *float64 `json:"offset_drift_sigma"`
+	SwitchoverSigma  *float64 `json:"switchover_sigma"`
 }
 
 type summaryJSON struct {
@@ -388,6 +400,10 @@ func Summary(res *sizing.Result, opt RunOptions) ([]byte, error) {
 		}
 		if c.Eval != nil {
 			cj.Metrics, cj.Worst = c.Eval.Metrics, c.Worst.JSON(c.Eval.Conditions)
+		}
+		if mc := c.MonteCarlo; mc != nil {
+			cj.MonteCarlo = &monteCarloJSON{Samples: mc.Samples, OffsetSigma: jnum(mc.OffsetSigma),
+				OffsetDriftSigma: jnum(mc.DriftSigma), SwitchoverSigma: jnum(mc.SwitchoverSigma)}
 		}
 		for i, v := range spec.Axes(c.Metrics) {
 			cj.Axes[spec.Pareto[i]] = jnum(v)

@@ -54,6 +54,15 @@ type pageCandidate struct {
 	Worst []pageWorst
 }
 
+// pageFinalist is one row of the finalists' mismatch table: one-sigma
+// offset and switchover shift by sensitivities and by Monte Carlo at the
+// nominal condition.
+type pageFinalist struct {
+	ID, Topology                       string
+	Samples                            int
+	Offset, OffsetMC, Switch, SwitchMC string
+}
+
 // pageWorst is one row of a candidate's worst-case table.
 type pageWorst struct{ Key, Nominal, Worst, At string }
 
@@ -89,11 +98,14 @@ type pageData struct {
 	CurvesSVG  template.HTML
 	CondSVG    template.HTML
 	MCSVG      template.HTML
-	Front      []*pageCandidate
-	Others     []*pageCandidate
-	All        []*pageCandidate
-	Glossary   []pageTerm
-	Files      []pageRow
+	// Finalists are the family bests' mismatch, sensitivity beside Monte
+	// Carlo.
+	Finalists []pageFinalist
+	Front     []*pageCandidate
+	Others    []*pageCandidate
+	All       []*pageCandidate
+	Glossary  []pageTerm
+	Files     []pageRow
 
 	// The figures' column heads of the tables of the rankings, of the
 	// ranked families and of the Pareto candidates, and how many columns
@@ -341,6 +353,7 @@ func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG, condSVG, 
 		CurvesSVG:  inlineSVG(curvesSVG),
 		CondSVG:    inlineSVG(condSVG),
 		MCSVG:      inlineSVG(mcSVG),
+		Finalists:  finalistRows(res),
 		Glossary:   glossary(),
 	}
 	d.RankedHeads = figureKeys(figuresUpTo(objectives.InRanking))
@@ -523,6 +536,12 @@ Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}
 <figure>{{.CondSVG}}</figure>
 <h2>Mismatch: Monte Carlo and sensitivities</h2>
 <figure>{{.MCSVG}}</figure>
+{{if .Finalists}}<p>Each family's best at its nominal condition: one-sigma offset (the largest over the range) and switchover shift, by first-order sensitivities and by Monte Carlo.</p>
+<table>
+<tr><th>id</th><th>topology</th><th>offset σ, sensitivity</th><th>offset σ, Monte Carlo</th><th>switchover σ, sensitivity</th><th>switchover σ, Monte Carlo</th><th>samples</th></tr>
+{{range .Finalists}}<tr><td><a href="#{{.ID}}">{{.ID}}</a></td><td class="nowrap">{{.Topology}}</td><td class="num">{{.Offset}}</td><td class="num">{{.OffsetMC}}</td><td class="num">{{.Switch}}</td><td class="num">{{.SwitchMC}}</td><td class="num">{{.Samples}}</td></tr>
+{{end}}</table>
+{{end}}
 
 <h2>Pareto candidates</h2>
 {{if .Front}}<p>{{.FrontText}}.{{if .Thinned}} The front holds more members than a run reports (at most ` + strconv.Itoa(sizing.MaxReportedFront) + `); the reported ones are those most spread along it by crowding distance, its extremes always kept.{{end}}</p>
@@ -603,6 +622,29 @@ func bindingItems(binding, at []string) []bindingItem {
 		if i < len(at) {
 			out[i].At = at[i]
 		}
+	}
+	return out
+}
+
+// finalistRows lists the family bests that carry a Monte Carlo, in the
+// families' rank order.
+func finalistRows(res *sizing.Result) []pageFinalist {
+	var out []pageFinalist
+	volts := func(v float64) string {
+		if math.IsNaN(v) {
+			return "—"
+		}
+		return SI(v, "V", tableDigits)
+	}
+	for _, f := range res.Families {
+		c := f.Best
+		if c == nil || c.MonteCarlo == nil || c.Eval == nil || len(c.Eval.Conditions) == 0 || c.Eval.Conditions[0].Mismatch == nil {
+			continue
+		}
+		sens, mc := c.Eval.Conditions[0].Mismatch, c.MonteCarlo
+		out = append(out, pageFinalist{ID: c.ID, Topology: c.Topology, Samples: mc.Samples,
+			Offset: volts(sens.OffsetSigma), OffsetMC: volts(mc.OffsetSigma),
+			Switch: volts(sens.SwitchoverSigma), SwitchMC: volts(mc.SwitchoverSigma)})
 	}
 	return out
 }
