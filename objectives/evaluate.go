@@ -177,6 +177,11 @@ type Extras struct {
 	Coarse bool
 }
 
+// keepExtras copies o's extra figures (those Extras estimates) into m.
+func (m *Metrics) keepExtras(o Metrics) {
+	m.Offset, m.OffsetDrift, m.SlewCurrent, m.Slew, m.Noise = o.Offset, o.OffsetDrift, o.SlewCurrent, o.Slew, o.Noise
+}
+
 // AllExtras asks for every extra figure, as `eval` does.
 func AllExtras() Extras { return Extras{Mismatch: true, Slew: true, Noise: true} }
 
@@ -314,7 +319,7 @@ func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float6
 	}
 	m, fs = Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr)
 	if ex.Coarse {
-		m.Offset, m.OffsetDrift, m.SlewCurrent, m.Slew, m.Noise = coarseM.Offset, coarseM.OffsetDrift, coarseM.SlewCurrent, coarseM.Slew, coarseM.Noise
+		m.keepExtras(coarseM)
 		return m, fs, true, nil
 	}
 	err = addExtras(&m, st, s, res, d, d.Sweep.Step, ex)

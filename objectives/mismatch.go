@@ -72,10 +72,8 @@ func analyseMismatch(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *de
 			dIn[j], dIp[j] = make([]float64, np), make([]float64, np)
 		}
 	}
-	gmMax := 0.0
-	for _, g := range res.GM {
-		gmMax = math.Max(gmMax, g)
-	}
+	gmMax := gmPeak(res)
+	rows := make([]float64, np*2*nk) // every point's row in one allocation
 	for i := range np {
 		if err := s.Sensitivities(res, i, probes, sens, evs); err != nil {
 			return nil, err
@@ -83,7 +81,7 @@ func analyseMismatch(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *de
 		if nm != nil { // the noise from the same solve
 			nm.addNoise(i, st, p, sens[0], evs, s.LoadedOps(), res.GM[i], gmMax, tempK)
 		}
-		row := make([]float64, 2*nk)
+		row := rows[i*2*nk : (i+1)*2*nk : (i+1)*2*nk]
 		gm := res.GM[i]
 		for k := range nk {
 			sign := float64(st.Devices[k].Type) // +1 NMOS, −1 PMOS
@@ -106,6 +104,16 @@ func analyseMismatch(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *de
 		mm.sw = switchoverSensitivities(res, in, ip, dIn, dIp, mm.sig)
 	}
 	return mm, nil
+}
+
+// gmPeak is the sweep's largest gm: the reference below which (DeadGM of
+// it) a point has no input for the offset and the noise.
+func gmPeak(res *sim.Result) float64 {
+	peak := 0.0
+	for _, g := range res.GM {
+		peak = math.Max(peak, g)
+	}
+	return peak
 }
 
 // switchoverSensitivities differentiates Handover's switchover with

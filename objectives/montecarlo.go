@@ -58,7 +58,7 @@ func sampleOffsets(s *sim.Solver, c *sim.Circuit, st *topologies.Stage, sp sim.S
 	out := st.Circuit.ProbeIndex(topologies.ProbeOut)
 	n := res.Unknowns
 	off := make([]float64, res.Len())
-	gmMax := slices.Max(res.GM)
+	gmMax := gmPeak(res)
 	for i := range off {
 		v, iout, gm := 0.0, res.Probe[out][i], res.GM[i]
 		for range 8 {

@@ -141,10 +141,7 @@ func analyseNoise(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *devic
 	evs := make([]device.Eval, nk)
 	np := res.Len()
 	nm := newNoiseModel(res)
-	gmMax := 0.0
-	for _, g := range res.GM {
-		gmMax = math.Max(gmMax, g)
-	}
+	gmMax := gmPeak(res)
 	for i := range np {
 		if err := s.Sensitivities(res, i, probes, sens, evs); err != nil {
 			return nil, err

@@ -6,6 +6,7 @@ import (
 
 	"pairsmith/objectives"
 	"pairsmith/sizing"
+	"pairsmith/topologies"
 )
 
 // TestConditionsFigure: the best candidate's gm at every condition names
@@ -17,20 +18,8 @@ import (
 // No outside source: it checks the figure against the evaluation it
 // draws.
 func TestConditionsFigure(t *testing.T) {
-	spec, err := objectives.ReadSpec("s.yaml", []byte("name: cond\nprocess: demo18-l1\nsupply: {min: 1.62V, max: 1.98V}\ntemperature: {min: -40C, max: 125C}\ncorners: tt\n"+
-		"input_range: {low: 0V, high: supply, step: 50mV}\ntargets: {gm_min: 150uS}\ntopologies: [current-switch]\n"), "")
-	if err != nil {
-		t.Fatal(err)
-	}
-	d := spec.Design("current-switch", nil)
-	fam, _ := d.Family()
-	for _, p := range fam.Params() {
-		d.Params[p.Name] = p.Default
-	}
-	ev, err := objectives.Evaluate(d)
-	if err != nil {
-		t.Fatal(err)
-	}
+	spec, d, ev := currentSwitchOf(t, "name: cond\nprocess: demo18-l1\nsupply: {min: 1.62V, max: 1.98V}\ntemperature: {min: -40C, max: 125C}\ncorners: tt\n"+
+		"input_range: {low: 0V, high: supply, step: 50mV}\ntargets: {gm_min: 150uS}\ntopologies: [current-switch]\n")
 	w := ev.WorstFor(spec.Targets)
 	c := &sizing.Candidate{ID: "c01", Topology: "current-switch", Design: d, Eval: ev, Metrics: w.Metrics, Worst: w, Feasible: true, Pareto: true}
 	res := &sizing.Result{Spec: spec, Candidates: []*sizing.Candidate{c}, Best: c}
@@ -92,19 +81,7 @@ func TestConditionsFigure(t *testing.T) {
 // agreement itself is objectives' TestMonteCarloAgainstSensitivity; this
 // checks the figure against the samples it draws.
 func TestMonteCarloFigure(t *testing.T) {
-	spec, err := objectives.ReadSpec("s.yaml", []byte("name: mc\nprocess: demo18-l1\nsupply: 1.8V\ncorners: tt\ninput_range: {low: 0V, high: supply, step: 100mV}\ntopologies: [current-switch]\n"), "")
-	if err != nil {
-		t.Fatal(err)
-	}
-	d := spec.Design("current-switch", nil)
-	fam, _ := d.Family()
-	for _, p := range fam.Params() {
-		d.Params[p.Name] = p.Default
-	}
-	ev, err := objectives.Evaluate(d)
-	if err != nil {
-		t.Fatal(err)
-	}
+	spec, d, ev := currentSwitchOf(t, "name: mc\nprocess: demo18-l1\nsupply: 1.8V\ncorners: tt\ninput_range: {low: 0V, high: supply, step: 100mV}\ntopologies: [current-switch]\n")
 	mc, err := objectives.MonteCarloNominal(d, 300, 1, 2)
 	if err != nil {
 		t.Fatal(err)
@@ -143,4 +120,24 @@ func TestMonteCarloFigure(t *testing.T) {
 	if err != nil || !strings.Contains(none.Subtitle, "no Monte Carlo") {
 		t.Errorf("without samples: %v, %q", err, none.Subtitle)
 	}
+}
+
+// currentSwitchOf reads a spec sheet and evaluates the current switch at
+// its defaults under it, as a run's re-evaluation does.
+func currentSwitchOf(t *testing.T, sheet string) (*objectives.Spec, *objectives.Design, *objectives.Evaluation) {
+	t.Helper()
+	spec, err := objectives.ReadSpec("s.yaml", []byte(sheet), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	fam, err := topologies.Lookup("current-switch")
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := spec.Design("current-switch", topologies.Defaults(fam))
+	ev, err := objectives.Evaluate(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return spec, d, ev
 }

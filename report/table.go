@@ -155,7 +155,9 @@ func worstTable(e *errWriter, ev *objectives.Evaluation, single bool) {
 		nnum, nunit, _ := strings.Cut(nv, " ")
 		wnum, wunit, _ := strings.Cut(wv, " ")
 		at := ""
-		if i, ok := ev.WorstAt[f.Key]; ok && i >= 0 && i < len(ev.Conditions) {
+		// A figure without a value (NaN), or one value for the whole
+		// design (min_supply), is measured at no one condition.
+		if i, ok := ev.WorstAt[f.Key]; ok && i >= 0 && i < len(ev.Conditions) && !math.IsNaN(f.Value(ev.Worst)) && f.Key != objectives.AxisMinSupply {
 			at = ev.Conditions[i].Condition.String()
 		}
 		meaning := f.Words.Meaning
