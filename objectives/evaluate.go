@@ -116,7 +116,21 @@ type swept struct {
 // when sweep returns, so the caller must not use swept.s then (Evaluate
 // passes none). Both give the same metrics and findings and refuse the
 // same unphysical sweeps (CheckPhysical).
-func sweep(d *Design, cache *SolverCache) (*swept, error) {
+//
+// The first point starts from start when it has the circuit's number of
+// unknowns (a solution of the same stage under another condition), and
+// from scratch otherwise; publish, when not nil, receives the first
+// point's solution as soon as it is solved (nil when it is not), before
+// the rest of the sweep, and must not keep the slice past its call.
+func sweep(d *Design, cache *SolverCache, start []float64, publish func([]float64)) (*swept, error) {
+	published := false
+	tell := func(x []float64) {
+		if publish != nil && !published {
+			published = true
+			publish(x)
+		}
+	}
+	defer tell(nil)
 	st, err := Build(d)
 	if err != nil {
 		return nil, err
@@ -128,7 +142,29 @@ func sweep(d *Design, cache *SolverCache) (*swept, error) {
 	defer cache.put(d.Topology, b)
 	s := b.s
 	res := &sim.Result{}
-	if err := s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0)); err != nil {
+	npts, err := d.Sweep.Points()
+	if err != nil {
+		return nil, err
+	}
+	if n := s.Unknowns(); len(start) == n || publish != nil {
+		// The first point on its own, so that the conditions waiting for
+		// it start while this one sweeps on.
+		first := make([]float64, n)
+		if len(start) != n {
+			start = nil
+		}
+		if err := s.SolveNear(start, d.Sweep.At(0, npts), d.Sweep.VID, first); err != nil {
+			return nil, err
+		}
+		tell(first)
+		start = first
+	}
+	if start != nil && npts < sim.SplitPoints {
+		err = s.SweepStart(d.Sweep, res, start)
+	} else {
+		err = s.SweepParallel(d.Sweep, res, runtime.GOMAXPROCS(0))
+	}
+	if err != nil {
 		return nil, err
 	}
 	if err := CheckPhysical(st, res); err != nil {
@@ -177,9 +213,32 @@ type Extras struct {
 	Coarse bool
 }
 
-// keepExtras copies o's extra figures (those Extras estimates) into m.
+// extras lists m's extra figures: those Extras estimates.
+func (m *Metrics) extras() [5]*float64 {
+	return [...]*float64{&m.Offset, &m.OffsetDrift, &m.SlewCurrent, &m.Slew, &m.Noise}
+}
+
+// keepExtras copies o's extra figures into m.
 func (m *Metrics) keepExtras(o Metrics) {
-	m.Offset, m.OffsetDrift, m.SlewCurrent, m.Slew, m.Noise = o.Offset, o.OffsetDrift, o.SlewCurrent, o.Slew, o.Noise
+	to, from := m.extras(), o.extras()
+	for i := range to {
+		*to[i] = *from[i]
+	}
+}
+
+// isExtra reports whether e's figure is one of the extras.
+func (e Entry) isExtra() bool {
+	if e.Field == nil {
+		return false
+	}
+	var m Metrics
+	p := e.Field(&m)
+	for _, q := range m.extras() {
+		if p == q {
+			return true
+		}
+	}
+	return false
 }
 
 // AllExtras asks for every extra figure, as `eval` does.
@@ -367,7 +426,7 @@ func MeasureChecked(d *Design) (Metrics, []Finding, error) {
 // shape, so a solver compiled for one is rebound to the next
 // (sim.Solver.Rebind) with the same results, bit for bit.
 func MeasureCached(d *Design, cache *SolverCache) (Metrics, []Finding, error) {
-	sw, err := sweep(d, cache)
+	sw, err := sweep(d, cache, nil, nil)
 	if err != nil {
 		return Metrics{}, nil, err
 	}
@@ -397,7 +456,7 @@ func EvaluateWith(d *Design, opt EvalOptions) (*Evaluation, error) {
 	if opt.MonteCarlo == 1 || opt.MonteCarlo > MaxSamples {
 		return nil, fmt.Errorf("monte carlo: %d samples, want 2 to %d", opt.MonteCarlo, MaxSamples)
 	}
-	sw, err := sweep(d, nil)
+	sw, err := sweep(d, nil, nil, nil)
 	if err != nil {
 		return nil, err
 	}
@@ -408,7 +467,7 @@ func EvaluateWith(d *Design, opt EvalOptions) (*Evaluation, error) {
 	ev.Conditions[0] = ConditionEval{Condition: conds[0], Metrics: sw.metrics, Findings: sw.findings, Fine: true, Mismatch: sw.mismatch,
 		Noise: sw.noise, Curve: Curve(st, res)}
 	if len(conds) > 1 {
-		if err := measureConditions(d, conds[1:], ev.Conditions[1:], &SolverCache{}, conditionWorkers()); err != nil {
+		if err := measureConditions(d, res.X[:s.Unknowns()], conds[1:], ev.Conditions[1:], &SolverCache{}, conditionWorkers()); err != nil {
 			return nil, err
 		}
 	}

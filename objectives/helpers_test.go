@@ -3,9 +3,12 @@ package objectives_test
 import (
 	"errors"
 	"fmt"
+	"math"
+	"reflect"
 	"strings"
 	"testing"
 
+	"pairsmith/objectives"
 	"pairsmith/units"
 )
 
@@ -58,4 +61,30 @@ func checkBadYAML(t *testing.T, tests []badYAML, read func(file string, data []b
 			}
 		})
 	}
+}
+
+// nearMetrics reports whether every figure of a and b agrees within rel
+// of the larger (the ripple as 1 + ripple, so that a flat stage's tiny
+// ripple is compared on what it bounds, the ratio gm_max/gm_min), NaN
+// with NaN and infinities exactly; it names the first figure that does
+// not.
+func nearMetrics(a, b objectives.Metrics, rel float64) (string, bool) {
+	a.GMRipple, b.GMRipple = 1+a.GMRipple, 1+b.GMRipple
+	x, y := reflect.ValueOf(a), reflect.ValueOf(b)
+	for i := range x.NumField() {
+		if x.Field(i).Kind() != reflect.Float64 {
+			continue
+		}
+		p, q := x.Field(i).Float(), y.Field(i).Float()
+		switch {
+		case math.IsNaN(p) || math.IsNaN(q):
+			if math.IsNaN(p) != math.IsNaN(q) {
+				return x.Type().Field(i).Name, false
+			}
+		case p == q:
+		case math.Abs(p-q) > rel*math.Max(math.Abs(p), math.Abs(q)):
+			return x.Type().Field(i).Name, false
+		}
+	}
+	return "", true
 }

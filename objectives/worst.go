@@ -2,6 +2,7 @@ package objectives
 
 import (
 	"fmt"
+	"math"
 	"runtime"
 	"sync"
 )
@@ -163,12 +164,16 @@ func (ev *Evaluation) WorstFor(t Targets) WorstCase { return WorstOver(ev.Condit
 //  1. the nominal condition in two looks (MeasureStaged, from start):
 //     a candidate that reject turns down on its coarse look is judged on
 //     that look alone;
-//  2. every other condition on its coarse look, each from the nominal
-//     condition's first solution: a candidate that reject turns down on
-//     the worst case of these looks is judged on them;
+//  2. every other condition on its coarse look, each from the first
+//     solution of the nearest condition measured before it
+//     (nearestStart): a candidate that reject turns down on the worst
+//     case of these looks is judged on them;
 //  3. the conditions where a figure of the worst case (judged with
-//     targets t) is measured are looked at again at d's step, and their
-//     fine looks replace their coarse ones.
+//     targets t) is measured are looked at again at d's step, from their
+//     own first solution, and their fine looks replace their coarse
+//     ones; with ex.Coarse, the extra figures are not the fine look's
+//     concern: they keep the coarse look's values, and a condition where
+//     only an extra figure is worst is not looked at again.
 //
 // Every condition is measured before a candidate that passes the
 // nominal one is judged, so that a candidate's violation is that of its
@@ -178,8 +183,10 @@ func (ev *Evaluation) WorstFor(t Targets) WorstCase { return WorstOver(ev.Condit
 // the condition.
 func MeasureWorst(d *Design, order []Condition, cache *SolverCache, coarse float64, start []float64, t Targets, ex Extras, reject func(cs []ConditionEval) bool) (cs []ConditionEval, fine int, err error) {
 	cs = make([]ConditionEval, 1, len(order))
-	var first []float64
-	keep := &first
+	// firsts[i] is the first solution of condition i's coarse look: the
+	// start of the conditions measured after it (nearestStart).
+	firsts := make([][]float64, 1, len(order))
+	keep := &firsts[0]
 	if len(order) == 1 {
 		keep = nil
 	}
@@ -198,15 +205,16 @@ func MeasureWorst(d *Design, order []Condition, cache *SolverCache, coarse float
 		return cs, fine, nil
 	}
 	stop := func(Metrics, []Finding) bool { return true }
-	look := func(c Condition, st func(Metrics, []Finding) bool) (ConditionEval, bool, error) {
-		m, fs, fine, err := measureStaged(d.Under(c), cache, coarse, first, st, nil, ex)
+	look := func(c Condition, from []float64, first *[]float64, st func(Metrics, []Finding) bool, ex Extras) (ConditionEval, bool, error) {
+		m, fs, fine, err := measureStaged(d.Under(c), cache, coarse, from, st, first, ex)
 		if err != nil {
 			return ConditionEval{}, false, fmt.Errorf("at %s: %w", c, err)
 		}
 		return ConditionEval{Condition: c, Metrics: m, Findings: fs, Fine: fine || d.Sweep.Step >= coarse}, fine, nil
 	}
 	for _, c := range order[1:] {
-		ce, _, err := look(c, stop)
+		firsts = append(firsts, nil)
+		ce, _, err := look(c, firsts[nearestStart(order, len(cs))], &firsts[len(cs)], stop, ex)
 		if err != nil {
 			return cs, fine, err
 		}
@@ -218,17 +226,26 @@ func MeasureWorst(d *Design, order []Condition, cache *SolverCache, coarse float
 	w := WorstOver(cs, t)
 	again := map[int]bool{}
 	for _, e := range catalog {
-		if i, ok := w.At[e.Key]; ok && e.Sense != 0 && i > 0 {
+		if i, ok := w.At[e.Key]; ok && e.Sense != 0 && i > 0 && !(ex.Coarse && e.isExtra()) {
 			again[i] = true
 		}
+	}
+	// A fine look starts from its own condition's first solution; with
+	// ex.Coarse its extra figures are the coarse look's, already measured.
+	fineEx := ex
+	if ex.Coarse {
+		fineEx = Extras{}
 	}
 	for i := range cs {
 		if !again[i] {
 			continue
 		}
-		ce, ok, err := look(cs[i].Condition, func(Metrics, []Finding) bool { return false })
+		ce, ok, err := look(cs[i].Condition, firsts[i], nil, func(Metrics, []Finding) bool { return false }, fineEx)
 		if err != nil {
 			return cs, fine, err
+		}
+		if ex.Coarse {
+			ce.Metrics.keepExtras(cs[i].Metrics)
 		}
 		cs[i] = ce
 		if ok {
@@ -238,19 +255,60 @@ func MeasureWorst(d *Design, order []Condition, cache *SolverCache, coarse float
 	return cs, fine, nil
 }
 
+// nearestStart returns the condition measured before order[k] (one of
+// order[:k]) whose first solution is the best start for order[k]'s: the
+// nearest in temperature, then in supply, then of the same corner, the
+// earliest among equals. Temperature comes first because a node that
+// weak-inversion currents set (a pair's common source with the pair
+// off, at the sweep's ends) moves by many n·U_T between temperatures,
+// and Newton walks down an exponential by about one n·U_T a step.
+func nearestStart(order []Condition, k int) int {
+	c, best := order[k], 0
+	far := func(j int) (float64, float64, bool) {
+		o := order[j]
+		return math.Abs(o.TempK - c.TempK), math.Abs(o.Supply - c.Supply), o.Corner != c.Corner
+	}
+	bt, bv, bc := far(0)
+	for j := 1; j < k; j++ {
+		t, v, cr := far(j)
+		if t < bt || (t == bt && (v < bv || (v == bv && !cr && bc))) {
+			best, bt, bv, bc = j, t, v, cr
+		}
+	}
+	return best
+}
+
 // measureConditions measures d under each of conds (not the nominal
 // one) on workers goroutines, each with compiled solvers from cache, into
 // out[i] for conds[i]; the first failure, in the conditions' order, is
-// returned naming its condition.
-func measureConditions(d *Design, conds []Condition, out []ConditionEval, cache *SolverCache, workers int) error {
+// returned naming its condition. Condition i's first point starts from
+// the first solution of the nearest condition before it (nearestStart
+// over the nominal one, of first solution nominal, and conds), so that
+// the results do not depend on the workers: a condition waits for that
+// solution, which each publishes before it sweeps on.
+func measureConditions(d *Design, nominal []float64, conds []Condition, out []ConditionEval, cache *SolverCache, workers int) error {
+	order := append([]Condition{d.Nominal()}, conds...)
+	firsts := make([][]float64, len(order))
+	ready := make([]chan struct{}, len(order))
+	for i := range ready {
+		ready[i] = make(chan struct{})
+	}
+	firsts[0] = nominal
+	close(ready[0])
 	errs := make([]error, len(conds))
 	next := make(chan int)
 	var wg sync.WaitGroup
 	for range max(1, min(workers, len(conds))) {
 		wg.Go(func() {
 			for i := range next {
+				k := i + 1
+				from := nearestStart(order, k)
+				<-ready[from] // published by a condition taken earlier
 				c := conds[i]
-				sw, err := sweep(d.Under(c), cache)
+				sw, err := sweep(d.Under(c), cache, firsts[from], func(x []float64) {
+					firsts[k] = append([]float64(nil), x...)
+					close(ready[k])
+				})
 				if err != nil {
 					errs[i] = fmt.Errorf("at %s: %w", c, err)
 					continue

@@ -135,16 +135,38 @@ func (s *Solver) OutputNear(start []float64, vcm, vid float64, into []float64) (
 	if len(start) != sys.n {
 		return 0, 0, fmt.Errorf("solve %s near a start of %d unknowns, want %d", sys.c.Title, len(start), sys.n)
 	}
-	copy(s.v[:sys.n], start)
-	s.setFixed(s.v, vcm, vid, 1)
-	if !s.newton(vcm, vid, 1, 0, referenceIterations) {
+	if err := s.SolveNear(start, vcm, vid, into); err != nil {
+		return 0, 0, err
+	}
+	return s.probeValue(sys.output), s.probeSlope(sys.output), nil
+}
+
+// SolveNear solves the circuit at (vcm, vid) by Newton from start, the
+// unknowns of a solution nearby (the same stage's under another
+// condition, say), given referenceIterations, falling back to a fresh
+// solve, or by a fresh solve when start is nil; into, when it has as
+// many elements as the circuit has unknowns, receives the solution.
+func (s *Solver) SolveNear(start []float64, vcm, vid float64, into []float64) error {
+	sys := s.sys
+	switch {
+	case start == nil:
 		if err := s.solveFresh(vcm, vid); err != nil {
-			return 0, 0, err
+			return err
+		}
+	case len(start) != sys.n:
+		return fmt.Errorf("solve %s near a start of %d unknowns, want %d", sys.c.Title, len(start), sys.n)
+	default:
+		copy(s.v[:sys.n], start)
+		s.setFixed(s.v, vcm, vid, 1)
+		if !s.newton(vcm, vid, 1, 0, referenceIterations) {
+			if err := s.solveFresh(vcm, vid); err != nil {
+				return err
+			}
 		}
 	}
-	s.post(true)
+	s.post(sys.output >= 0)
 	if len(into) == sys.n {
 		copy(into, s.v[:sys.n])
 	}
-	return s.probeValue(sys.output), s.probeSlope(sys.output), nil
+	return nil
 }
