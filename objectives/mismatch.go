@@ -1,8 +1,10 @@
 package objectives
 
 import (
+	"cmp"
 	"fmt"
 	"math"
+	"slices"
 
 	"pairsmith/sim"
 	"pairsmith/sim/device"
@@ -64,12 +66,23 @@ func analyseMismatch(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *de
 	mm := &mismatchModel{vcm: res.VCM, sig: deviceSigmas(st, p), off: make([][]float64, np)}
 	// dIn[j][i], dIp[j][i]: the pair currents' change at point i per unit
 	// of variable j, for the switchover.
+	// The switchover's sensitivities: analytic where Handover's centroid
+	// holds (gIn, gIp, summed into sw point by point), by differences of
+	// Handover on the pair currents' first-order change (dIn, dIp)
+	// otherwise.
 	handover := st.PairN[0] != "" && st.PairP[0] != ""
 	var dIn, dIp [][]float64
+	var gIn, gIp, sw []float64
+	analytic := false
 	if handover {
-		dIn, dIp = make([][]float64, 2*nk), make([][]float64, 2*nk)
-		for j := range dIn {
-			dIn[j], dIp[j] = make([]float64, np), make([]float64, np)
+		gIn, gIp, analytic = switchoverGradient(res.VCM, res.Probe[in], res.Probe[ip])
+		if analytic {
+			sw = make([]float64, 2*nk)
+		} else {
+			dIn, dIp = make([][]float64, 2*nk), make([][]float64, 2*nk)
+			for j := range dIn {
+				dIn[j], dIp[j] = make([]float64, np), make([]float64, np)
+			}
 		}
 	}
 	gmMax := gmPeak(res)
@@ -93,14 +106,27 @@ func analyseMismatch(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *de
 			} else {
 				row[2*k], row[2*k+1] = math.NaN(), math.NaN()
 			}
-			if handover {
+			switch {
+			case analytic:
+				g := gIn[i]*sens[1][k] + gIp[i]*sens[2][k] // ∂switchover/∂δ_k
+				sw[2*k] += g * dvt
+				sw[2*k+1] += g * dbeta
+			case handover:
 				dIn[2*k][i], dIn[2*k+1][i] = sens[1][k]*dvt, sens[1][k]*dbeta
 				dIp[2*k][i], dIp[2*k+1][i] = sens[2][k]*dvt, sens[2][k]*dbeta
 			}
 		}
 		mm.off[i] = row
 	}
-	if handover {
+	switch {
+	case analytic:
+		for j, sg := range mm.sig {
+			if sg == 0 {
+				sw[j] = 0 // no effect, as switchoverSensitivities gives
+			}
+		}
+		mm.sw = sw
+	case handover:
 		mm.sw = switchoverSensitivities(res, in, ip, dIn, dIp, mm.sig)
 	}
 	return mm, nil
@@ -114,6 +140,62 @@ func gmPeak(res *sim.Result) float64 {
 		peak = math.Max(peak, g)
 	}
 	return peak
+}
+
+// switchoverGradient returns the gradient of Handover's switchover with
+// respect to each point's pair currents, ∂switchover/∂in[i] and
+// ∂switchover/∂ip[i], where the switchover is the centroid of the
+// share's steps, S = Σ_k m_k·(s_k − s_k−1) / (s_last − s_first) over the
+// points where a pair conducts (m_k the midpoint of steps k−1 and k, s
+// the NMOS share in/(in+ip)): ∂S/∂s_k = (m_k − m_k+1 − S·∂(s_last −
+// s_first)/∂s_k) / (s_last − s_first), with m_0 = m_M = 0, and ∂s/∂in =
+// ip/(in+ip)², ∂s/∂ip = −in/(in+ip)². It reports false where Handover
+// does not use that centroid: no switchover, or the centroid outside the
+// points and the switchover the centroid of the steps' sizes instead.
+func switchoverGradient(vcm, in, ip []float64) (gIn, gIp []float64, ok bool) {
+	at := make([]int, 0, len(vcm)) // the points where a pair conducts
+	for i := range vcm {
+		if in[i]+ip[i] > 0 {
+			at = append(at, i)
+		}
+	}
+	if len(at) < 2 {
+		return nil, nil, false
+	}
+	share := func(i int) float64 { return in[i] / (in[i] + ip[i]) }
+	first, last := share(at[0]), share(at[len(at)-1])
+	total := last - first
+	if !(math.Abs(total) > 1e-3) {
+		return nil, nil, false
+	}
+	mid := func(k int) float64 { // m_k, 0 outside 1..M−1
+		if k < 1 || k >= len(at) {
+			return 0
+		}
+		return 0.5 * (vcm[at[k-1]] + vcm[at[k]])
+	}
+	num := 0.0
+	for k := 1; k < len(at); k++ {
+		num += mid(k) * (share(at[k]) - share(at[k-1]))
+	}
+	sw := num / total
+	if !(sw >= vcm[at[0]] && sw <= vcm[at[len(at)-1]]) {
+		return nil, nil, false
+	}
+	gIn, gIp = make([]float64, len(vcm)), make([]float64, len(vcm))
+	for k, i := range at {
+		d := mid(k) - mid(k+1)
+		switch k {
+		case 0:
+			d += sw
+		case len(at) - 1:
+			d -= sw
+		}
+		d /= total
+		tot := in[i] + ip[i]
+		gIn[i], gIp[i] = d*ip[i]/(tot*tot), -d*in[i]/(tot*tot)
+	}
+	return gIn, gIp, true
 }
 
 // switchoverSensitivities differentiates Handover's switchover with
@@ -187,35 +269,77 @@ func (mm *mismatchModel) offsetSigmas() []float64 {
 
 // driftSigma returns the largest one-sigma change of the offset between
 // two points of the sweep, √max over a, b of Σ_j ((off_a,j − off_b,j)·σ_j)²,
-// over every pair of points where gm is alive.
+// over every pair of points where gm is alive: the diameter of the
+// points off·σ (diameter).
 func (mm *mismatchModel) driftSigma() float64 {
-	// Scaled rows: off·σ, so that each pair is one squared distance.
+	k := len(mm.sig)
 	rows := make([][]float64, 0, len(mm.off))
+	flat := make([]float64, len(mm.off)*k)
 	for _, row := range mm.off {
 		if math.IsNaN(row[0]) {
 			continue
 		}
-		r := make([]float64, len(row))
+		r := flat[len(rows)*k : (len(rows)+1)*k : (len(rows)+1)*k]
 		for j, x := range row {
 			r[j] = x * mm.sig[j]
 		}
 		rows = append(rows, r)
 	}
-	n := len(rows)
+	return math.Sqrt(diameter(rows))
+}
+
+// diameter returns the largest squared distance between two of the
+// points (0 for fewer than two), the same as comparing every pair, bit
+// for bit, while comparing few: by the triangle inequality no pair is
+// farther apart than the sum of its points' distances from the
+// centroid, so with the points taken farthest from it first, the pairs
+// whose sum cannot beat the largest distance found are skipped (a
+// bound widened by 1e-9 against rounding).
+func diameter(pts [][]float64) float64 {
+	n := len(pts)
+	if n < 2 {
+		return 0
+	}
+	c := make([]float64, len(pts[0]))
+	for _, p := range pts {
+		for j, x := range p {
+			c[j] += x
+		}
+	}
+	for j := range c {
+		c[j] /= float64(n)
+	}
+	type far struct {
+		p   []float64
+		rho float64
+	}
+	fs := make([]far, n)
+	for i, p := range pts {
+		d := 0.0
+		for j, x := range p {
+			t := x - c[j]
+			d += t * t
+		}
+		fs[i] = far{p, math.Sqrt(d)}
+	}
+	slices.SortStableFunc(fs, func(a, b far) int { return cmp.Compare(b.rho, a.rho) })
 	worst := 0.0
 	for a := range n {
-		ra := rows[a]
+		pa := fs[a].p
 		for b := a + 1; b < n; b++ {
-			rb := rows[b][:len(ra)]
+			if r := (fs[a].rho + fs[b].rho) * (1 + 1e-9); r*r < worst {
+				break // and every later b, nearer the centroid
+			}
+			pb := fs[b].p[:len(pa)]
 			d := 0.0
-			for j, x := range ra {
-				t := x - rb[j]
+			for j, x := range pa {
+				t := x - pb[j]
 				d += t * t
 			}
 			worst = math.Max(worst, d)
 		}
 	}
-	return math.Sqrt(worst)
+	return worst
 }
 
 // switchoverSigma returns the one-sigma shift of the switchover (NaN
