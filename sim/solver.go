@@ -49,20 +49,8 @@ func (o Options) withDefaults() Options {
 	return o
 }
 
-// dampAfter is the Newton iteration after which steps are halved, those
-// larger than dampAbove.
+// dampAfter is the Newton iteration after which steps are halved.
 const dampAfter = 12
-
-// dampAbove is the largest node-voltage change of a Newton step that is
-// never damped, V: about two n·U_T at room temperature, within which a
-// transistor's current changes by a few times at most, so that the
-// linearisation that made the step still holds and the step is the end
-// of the solve, not part of a cycle between regions of the device
-// equations. Halving such steps too made every solve that reached the
-// damping point converge only linearly, by half a step an iteration, to
-// the tolerance: twenty iterations more (our measurement, on the current
-// switch solved afresh at −40 °C).
-const dampAbove = 0.05
 
 // ConvergenceError reports a point where no DC solution was found. It
 // never becomes a number in a result.
@@ -461,7 +449,7 @@ func (s *Solver) iterate(m int, vcm, vid, scale, gshunt float64, maxIter int) bo
 		// Deuflhard, Newton Methods for Nonlinear Problems, 2004, ch. 3,
 		// in its simplest fixed-factor form).
 		damp := 1.0
-		if it >= dampAfter && s.largestNodeStep(m) > dampAbove {
+		if it >= dampAfter {
 			damp = 0.5
 		}
 		ok, converged, limited, worst := s.applyStep(m, damp)
@@ -489,21 +477,6 @@ func (s *Solver) iterate(m int, vcm, vid, scale, gshunt float64, maxIter int) bo
 // convergence is quadratic). gm then moves by a few 1e-6 of itself at
 // most (its slope with the voltages is about 1/(n·U_T)).
 const finalStep = 0.1
-
-// largestNodeStep is the largest change of a node voltage in the Newton
-// step s.dx[:m] (NaN for a step that is not finite).
-func (s *Solver) largestNodeStep(m int) float64 {
-	big := 0.0
-	for i, d := range s.dx[:m] {
-		if s.sys.isNode[i] {
-			if d != d {
-				return d
-			}
-			big = math.Max(big, math.Abs(d))
-		}
-	}
-	return big
-}
 
 // applyStep adds the Newton step in s.dx[:m] to the first m unknowns, each
 // node voltage's change limited to MaxStep, and leaves the applied step in

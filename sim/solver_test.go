@@ -403,33 +403,3 @@ func TestLongNewtonConverges(t *testing.T) {
 		t.Errorf("V_GS = %.12g V after %d iterations, square law %.12g V", got, s.Iterations(), vgs)
 	}
 }
-
-// TestDampingEndsQuadratically: a solve that walks to its answer at
-// MaxStep past the damping point (a diode-connected NMOS from 0 V in
-// 30 mV steps: V_GS = 0.6 V by the square law, as TestDiodeConnected)
-// ends as Newton does, within a few iterations of its first step
-// smaller than dampAbove: 20 walking steps, then quadratic convergence
-// (Newton's method near a simple root, any numerical analysis text). A
-// solve that halved those last steps too would take some twenty more.
-func TestDampingEndsQuadratically(t *testing.T) {
-	nm, _ := squareLaw()
-	c := New("walking diode", t27)
-	vdd, g := c.Node("vdd"), c.Node("g")
-	c.AddVSource("VDD", vdd, Ground, Const(3), true)
-	c.AddMosfet("M1", g, g, Ground, Ground, nm, device.Geometry{W: 10e-6, L: 1e-6})
-	c.AddISource("I1", vdd, g, Const(10e-6), false)
-	s, err := NewSolver(c, Options{MaxStep: 0.03, MaxIter: 400})
-	if err != nil {
-		t.Fatal(err)
-	}
-	if !s.newton(0, 0, 1, 0, 400) {
-		t.Fatal("no convergence")
-	}
-	walk := int(math.Ceil(0.6 / 0.03))
-	if it := s.Iterations(); it <= dampAfter || it > walk+5 {
-		t.Errorf("%d iterations, want past the damping point %d and within 5 of the %d steps walking to 0.6 V", it, dampAfter, walk)
-	}
-	if got := s.v[s.sys.idx[g]]; !near(got, 0.6, 1e-4, 0) {
-		t.Errorf("V_GS = %.9g V, square law 0.6 V", got)
-	}
-}
