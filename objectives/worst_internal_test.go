@@ -35,3 +35,32 @@ func TestNearestStart(t *testing.T) {
 		}
 	}
 }
+
+// TestConditionsWhateverTheWorkers: eval's conditions, each started from
+// another's first solution, give the same metrics bit for bit on one
+// worker and on four (the start of each is fixed by the conditions'
+// order, not by which finishes first).
+func TestConditionsWhateverTheWorkers(t *testing.T) {
+	d, err := ReadDesign("d.yaml", []byte("topology: current-switch\nprocess: demo18\nsupply: {min: 1.62V, max: 1.98V}\n"+
+		"temperature: {min: -40C, max: 125C}\ncorners: [tt, ss, ff]\nsweep: {low: 0V, high: supply, step: 50mV}\n"), "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	nom, err := sweep(d, nil, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	conds := d.AllConditions()[1:]
+	var runs [2][]ConditionEval
+	for k, workers := range []int{1, 4} {
+		runs[k] = make([]ConditionEval, len(conds))
+		if err := measureConditions(d, nom.res.X[:nom.s.Unknowns()], conds, runs[k], &SolverCache{}, workers); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for i := range conds {
+		if !runs[0][i].Metrics.Same(runs[1][i].Metrics) {
+			t.Errorf("%v: one worker %+v, four %+v", conds[i], runs[0][i].Metrics, runs[1][i].Metrics)
+		}
+	}
+}
