@@ -183,17 +183,7 @@ func sweep(d *Design, cache *SolverCache, start []float64, publish func([]float6
 	}
 	sw.findings = Assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK)
 	wg.Wait()
-	mm, nm, err := analyse(st, s, res, d, true, true)
-	if err != nil {
-		return nil, err
-	}
-	if mm != nil {
-		sw.mismatch = mm.result(d.sigma())
-		sw.mismatch.fill(&sw.metrics)
-	}
-	sw.noise = nm.result(d.noiseFrequency())
-	sw.metrics.Noise = sw.noise.Density
-	if err := addSlew(&sw.metrics, st, s, res, d, d.Sweep.Step); err != nil {
+	if sw.mismatch, sw.noise, err = addExtras(&sw.metrics, st, s, res, d, d.Sweep.Step, AllExtras()); err != nil {
 		return nil, err
 	}
 	return sw, nil
@@ -244,25 +234,30 @@ func (e Entry) isExtra() bool {
 // AllExtras asks for every extra figure, as `eval` does.
 func AllExtras() Extras { return Extras{Mismatch: true, Slew: true, Noise: true} }
 
-// addExtras estimates the figures ex asks for into m: mismatch on a
-// process that gives coefficients, the slew.
-func addExtras(m *Metrics, st *topologies.Stage, s *sim.Solver, res *sim.Result, d *Design, step float64, ex Extras) error {
+// addExtras estimates the figures ex asks for into m — mismatch on a
+// process that gives coefficients, noise, the slew — and returns the
+// mismatch and noise estimates they come from (nil where not made).
+func addExtras(m *Metrics, st *topologies.Stage, s *sim.Solver, res *sim.Result, d *Design, step float64, ex Extras) (*MismatchResult, *NoiseResult, error) {
 	mm, nm, err := analyse(st, s, res, d, ex.Mismatch, ex.Noise)
 	if err != nil {
-		return err
+		return nil, nil, err
 	}
+	var mr *MismatchResult
+	var nr *NoiseResult
 	if mm != nil {
-		mm.result(d.sigma()).fill(m)
+		mr = mm.result(d.sigma())
+		mr.fill(m)
 	}
 	if nm != nil {
-		m.Noise = nm.result(d.noiseFrequency()).Density
+		nr = nm.result(d.noiseFrequency())
+		m.Noise = nr.Density
 	}
 	if ex.Slew {
 		if err := addSlew(m, st, s, res, d, step); err != nil {
-			return err
+			return nil, nil, err
 		}
 	}
-	return nil
+	return mr, nr, nil
 }
 
 // SolverCache keeps compiled solvers by family, each with the buffers
@@ -357,7 +352,7 @@ func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float6
 		*first = append((*first)[:0], res.X[:s.Unknowns()]...)
 	}
 	m, fs = Measure(st, res), assess(st, res, s, d.Process.Kind, d.Margin(), d.TempK, &b.scr)
-	if err := addExtras(&m, st, s, res, d, look.Step, ex); err != nil {
+	if _, _, err := addExtras(&m, st, s, res, d, look.Step, ex); err != nil {
 		return Metrics{}, nil, false, err
 	}
 	if look.Step == d.Sweep.Step || reject(m, fs) {
@@ -381,7 +376,7 @@ func measureStaged(d *Design, cache *SolverCache, coarse float64, start []float6
 		m.keepExtras(coarseM)
 		return m, fs, true, nil
 	}
-	err = addExtras(&m, st, s, res, d, d.Sweep.Step, ex)
+	_, _, err = addExtras(&m, st, s, res, d, d.Sweep.Step, ex)
 	return m, fs, true, err
 }
 

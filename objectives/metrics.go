@@ -5,6 +5,7 @@
 package objectives
 
 import (
+	"cmp"
 	"encoding/json"
 	"math"
 	"reflect"
@@ -193,17 +194,64 @@ func Ripple(gmMin, gmMax float64) float64 {
 // span it needs: no net change of share for the switchover, a share that
 // never reaches 10 % or 90 % for the width.
 func Handover(vcm, in, ip []float64) (switchover, width float64) {
-	switchover, width = math.NaN(), math.NaN()
-	// One pass over the points where some pair conducts: the share's
-	// first and last values, the switchover's numerator, and the two
+	switchover, width = shareCentre(vcm, in, ip, nil, nil), math.NaN()
+	// One pass over the points where some pair conducts: the two
 	// crossings.
 	var (
-		first, prevX, prevS float64
-		num, absNum, absSum float64 // Σ vcm·Δshare, Σ vcm·|Δshare|, Σ |Δshare|
-		firstX              float64
-		lo                  = math.NaN()
-		seen                int
-		crossHi             = math.NaN() // upward 90 % crossing after the last point below it
+		prevX, prevS float64
+		lo           = math.NaN()
+		seen         int
+		crossHi      = math.NaN() // upward 90 % crossing after the last point below it
+	)
+	for i := range vcm {
+		tot := in[i] + ip[i]
+		if !(tot > 0) {
+			continue
+		}
+		x, sh := vcm[i], in[i]/tot
+		switch {
+		case seen == 0 && sh >= 0.1:
+			lo = x
+		case seen > 0 && math.IsNaN(lo) && sh >= 0.1:
+			lo = cross(prevX, prevS, x, sh, 0.1)
+		}
+		if seen > 0 && prevS < 0.9 && sh >= 0.9 {
+			crossHi = cross(prevX, prevS, x, sh, 0.9)
+		}
+		if sh < 0.9 {
+			crossHi = math.NaN()
+		}
+		prevX, prevS = x, sh
+		seen++
+	}
+	// The highest vcm still below 90 % is where the share last crosses
+	// 90 % upwards (crossHi); a share that ends below 90 % has none.
+	if hi := crossHi; seen >= 2 && !math.IsNaN(lo) && !math.IsNaN(hi) && hi >= lo {
+		width = hi - lo
+	}
+	return switchover, width
+}
+
+// shareCentre returns Handover's switchover over the points k = 0 … M−1
+// where a pair conducts, of common mode x_k and share s_k = in/(in+ip):
+// the centroid of the share's steps, S = Σ m_k·Δ_k / (s_M−1 − s_0)
+// (Δ_k = s_k − s_k−1, m_k = (x_k−1 + x_k)/2), or, where S falls outside
+// the points, S' = Σ m_k·|Δ_k| / Σ |Δ_k|; NaN for fewer than two points
+// or a net change of share of 1e-3 or less. When gIn and gIp are not
+// nil (as long as vcm) it also sets them to the switchover's gradient
+// with respect to each point's pair currents, by the chain rule through
+// the shares, ∂s/∂in = ip/(in+ip)², ∂s/∂ip = −in/(in+ip)², with
+//
+//	∂S/∂s_k  = (m_k − m_k+1 + S·([k = 0] − [k = M−1])) / (s_M−1 − s_0),
+//	∂S'/∂s_k = (m_k·σ_k − m_k+1·σ_k+1 − S'·(σ_k − σ_k+1)) / Σ |Δ_k|,
+//
+// σ_k the sign of Δ_k, and m, σ zero outside 1 … M−1 (zero where no
+// pair conducts, or where the switchover is NaN).
+func shareCentre(vcm, in, ip, gIn, gIp []float64) float64 {
+	var (
+		first, firstX, prevX, prevS float64
+		num, absNum, absSum         float64 // Σ m·Δ, Σ m·|Δ|, Σ |Δ|
+		seen                        int
 	)
 	for i := range vcm {
 		tot := in[i] + ip[i]
@@ -213,42 +261,70 @@ func Handover(vcm, in, ip []float64) (switchover, width float64) {
 		x, sh := vcm[i], in[i]/tot
 		if seen == 0 {
 			first, firstX = sh, x
-			if sh >= 0.1 {
-				lo = x
-			}
 		} else {
 			mid, ds := 0.5*(prevX+x), sh-prevS
 			num += mid * ds
 			absNum += mid * math.Abs(ds)
 			absSum += math.Abs(ds)
-			if math.IsNaN(lo) && sh >= 0.1 {
-				lo = cross(prevX, prevS, x, sh, 0.1)
-			}
-			if prevS < 0.9 && sh >= 0.9 {
-				crossHi = cross(prevX, prevS, x, sh, 0.9)
-			}
-		}
-		if sh < 0.9 {
-			crossHi = math.NaN()
 		}
 		prevX, prevS = x, sh
 		seen++
 	}
-	if seen < 2 {
-		return switchover, width
+	if gIn != nil {
+		clear(gIn)
+		clear(gIp)
 	}
-	if total := prevS - first; math.Abs(total) > 1e-3 {
-		switchover = num / total
-		if !(switchover >= firstX && switchover <= prevX) {
-			switchover = absNum / absSum
+	total := prevS - first
+	if seen < 2 || !(math.Abs(total) > 1e-3) {
+		return math.NaN()
+	}
+	sw, steps := num/total, false // steps: the centroid of |Δ| instead
+	if !(sw >= firstX && sw <= prevX) {
+		sw, steps = absNum/absSum, true
+	}
+	if gIn == nil {
+		return sw
+	}
+	// The points where a pair conducts, for the gradient: at[k] is the
+	// k-th's index.
+	at := make([]int, 0, seen)
+	for i := range vcm {
+		if in[i]+ip[i] > 0 {
+			at = append(at, i)
 		}
 	}
-	// The highest vcm still below 90 % is where the share last crosses
-	// 90 % upwards (crossHi); a share that ends below 90 % has none.
-	if hi := crossHi; !math.IsNaN(lo) && !math.IsNaN(hi) && hi >= lo {
-		width = hi - lo
+	share := func(k int) float64 { return in[at[k]] / (in[at[k]] + ip[at[k]]) }
+	mid := func(k int) float64 { // m_k, zero outside 1 … M−1
+		if k < 1 || k >= len(at) {
+			return 0
+		}
+		return 0.5 * (vcm[at[k-1]] + vcm[at[k]])
 	}
-	return switchover, width
+	sign := func(k int) float64 { // σ_k, zero outside 1 … M−1
+		if k < 1 || k >= len(at) {
+			return 0
+		}
+		d := share(k) - share(k-1)
+		return float64(cmp.Compare(d, 0))
+	}
+	for k, i := range at {
+		var d float64
+		if steps {
+			d = (mid(k)*sign(k) - mid(k+1)*sign(k+1) - sw*(sign(k)-sign(k+1))) / absSum
+		} else {
+			d = mid(k) - mid(k+1)
+			switch k {
+			case 0:
+				d += sw
+			case len(at) - 1:
+				d -= sw
+			}
+			d /= total
+		}
+		tot := in[i] + ip[i]
+		gIn[i], gIp[i] = d*ip[i]/(tot*tot), -d*in[i]/(tot*tot)
+	}
+	return sw
 }
 
 // cross interpolates where the segment (x0,s0)–(x1,s1) reaches level.

@@ -53,8 +53,7 @@ func deviceSigmas(st *topologies.Stage, p *device.Process) []float64 {
 // −sign·g_m·ΔV_T (sign +1 for an NMOS, −1 for a PMOS, SPICE signs), and
 // Δβ/β moves it by I_D·Δβ/β; the offset is the input that cancels the
 // output's change, −ΔI_out/gm. The switchover's sensitivities are
-// central differences of Handover on the pair currents moved by each
-// variable to first order.
+// Handover's gradient along the pair currents' first-order change.
 func analyseMismatch(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *device.Process, nm *noiseModel, tempK float64) (*mismatchModel, error) {
 	c := st.Circuit
 	nk := len(c.Mosfets)
@@ -64,24 +63,16 @@ func analyseMismatch(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *de
 	evs := make([]device.Eval, nk)
 	np := res.Len()
 	mm := &mismatchModel{vcm: res.VCM, sig: deviceSigmas(st, p), off: make([][]float64, np)}
-	// dIn[j][i], dIp[j][i]: the pair currents' change at point i per unit
-	// of variable j, for the switchover.
-	// The switchover's sensitivities: analytic where Handover's centroid
-	// holds (gIn, gIp, summed into sw point by point), by differences of
-	// Handover on the pair currents' first-order change (dIn, dIp)
-	// otherwise.
+	// The switchover's sensitivities, summed point by point: its gradient
+	// with respect to the pair currents (shareCentre) times each
+	// variable's effect on them; NaN without a switchover.
 	handover := st.PairN[0] != "" && st.PairP[0] != ""
-	var dIn, dIp [][]float64
 	var gIn, gIp, sw []float64
-	analytic := false
 	if handover {
-		gIn, gIp, analytic = switchoverGradient(res.VCM, res.Probe[in], res.Probe[ip])
-		if analytic {
-			sw = make([]float64, 2*nk)
-		} else {
-			dIn, dIp = make([][]float64, 2*nk), make([][]float64, 2*nk)
-			for j := range dIn {
-				dIn[j], dIp[j] = make([]float64, np), make([]float64, np)
+		gIn, gIp, sw = make([]float64, np), make([]float64, np), make([]float64, 2*nk)
+		if math.IsNaN(shareCentre(res.VCM, res.Probe[in], res.Probe[ip], gIn, gIp)) {
+			for j := range sw {
+				sw[j] = math.NaN()
 			}
 		}
 	}
@@ -106,29 +97,15 @@ func analyseMismatch(st *topologies.Stage, s *sim.Solver, res *sim.Result, p *de
 			} else {
 				row[2*k], row[2*k+1] = math.NaN(), math.NaN()
 			}
-			switch {
-			case analytic:
+			if handover {
 				g := gIn[i]*sens[1][k] + gIp[i]*sens[2][k] // ∂switchover/∂δ_k
 				sw[2*k] += g * dvt
 				sw[2*k+1] += g * dbeta
-			case handover:
-				dIn[2*k][i], dIn[2*k+1][i] = sens[1][k]*dvt, sens[1][k]*dbeta
-				dIp[2*k][i], dIp[2*k+1][i] = sens[2][k]*dvt, sens[2][k]*dbeta
 			}
 		}
 		mm.off[i] = row
 	}
-	switch {
-	case analytic:
-		for j, sg := range mm.sig {
-			if sg == 0 {
-				sw[j] = 0 // no effect, as switchoverSensitivities gives
-			}
-		}
-		mm.sw = sw
-	case handover:
-		mm.sw = switchoverSensitivities(res, in, ip, dIn, dIp, mm.sig)
-	}
+	mm.sw = sw
 	return mm, nil
 }
 
@@ -140,105 +117,6 @@ func gmPeak(res *sim.Result) float64 {
 		peak = math.Max(peak, g)
 	}
 	return peak
-}
-
-// switchoverGradient returns the gradient of Handover's switchover with
-// respect to each point's pair currents, ∂switchover/∂in[i] and
-// ∂switchover/∂ip[i], where the switchover is the centroid of the
-// share's steps, S = Σ_k m_k·(s_k − s_k−1) / (s_last − s_first) over the
-// points where a pair conducts (m_k the midpoint of steps k−1 and k, s
-// the NMOS share in/(in+ip)): ∂S/∂s_k = (m_k − m_k+1 − S·∂(s_last −
-// s_first)/∂s_k) / (s_last − s_first), with m_0 = m_M = 0, and ∂s/∂in =
-// ip/(in+ip)², ∂s/∂ip = −in/(in+ip)². It reports false where Handover
-// does not use that centroid: no switchover, or the centroid outside the
-// points and the switchover the centroid of the steps' sizes instead.
-func switchoverGradient(vcm, in, ip []float64) (gIn, gIp []float64, ok bool) {
-	at := make([]int, 0, len(vcm)) // the points where a pair conducts
-	for i := range vcm {
-		if in[i]+ip[i] > 0 {
-			at = append(at, i)
-		}
-	}
-	if len(at) < 2 {
-		return nil, nil, false
-	}
-	share := func(i int) float64 { return in[i] / (in[i] + ip[i]) }
-	first, last := share(at[0]), share(at[len(at)-1])
-	total := last - first
-	if !(math.Abs(total) > 1e-3) {
-		return nil, nil, false
-	}
-	mid := func(k int) float64 { // m_k, 0 outside 1..M−1
-		if k < 1 || k >= len(at) {
-			return 0
-		}
-		return 0.5 * (vcm[at[k-1]] + vcm[at[k]])
-	}
-	num := 0.0
-	for k := 1; k < len(at); k++ {
-		num += mid(k) * (share(at[k]) - share(at[k-1]))
-	}
-	sw := num / total
-	if !(sw >= vcm[at[0]] && sw <= vcm[at[len(at)-1]]) {
-		return nil, nil, false
-	}
-	gIn, gIp = make([]float64, len(vcm)), make([]float64, len(vcm))
-	for k, i := range at {
-		d := mid(k) - mid(k+1)
-		switch k {
-		case 0:
-			d += sw
-		case len(at) - 1:
-			d -= sw
-		}
-		d /= total
-		tot := in[i] + ip[i]
-		gIn[i], gIp[i] = d*ip[i]/(tot*tot), -d*in[i]/(tot*tot)
-	}
-	return gIn, gIp, true
-}
-
-// switchoverSensitivities differentiates Handover's switchover with
-// respect to each variable j by a central difference along the pair
-// currents' first-order change (dIn[j], dIp[j]), of a step that moves the
-// switchover's inputs by about 1e-6 of the larger pair current (our
-// choice: far above rounding, far below the share's curvature). A
-// variable of zero σ has zero effect; NaN when the stage has no
-// switchover.
-func switchoverSensitivities(res *sim.Result, in, ip int, dIn, dIp [][]float64, sig []float64) []float64 {
-	iN, iP := res.Probe[in], res.Probe[ip]
-	base, _ := Handover(res.VCM, iN, iP)
-	out := make([]float64, len(dIn))
-	if math.IsNaN(base) {
-		for j := range out {
-			out[j] = math.NaN()
-		}
-		return out
-	}
-	scale := 0.0
-	for i := range iN {
-		scale = math.Max(scale, math.Max(math.Abs(iN[i]), math.Abs(iP[i])))
-	}
-	n1, p1 := make([]float64, len(iN)), make([]float64, len(iN))
-	for j := range dIn {
-		big := 0.0
-		for i := range iN {
-			big = math.Max(big, math.Max(math.Abs(dIn[j][i]), math.Abs(dIp[j][i])))
-		}
-		if big == 0 || sig[j] == 0 {
-			continue
-		}
-		h := 1e-6 * scale / big
-		at := func(t float64) float64 {
-			for i := range iN {
-				n1[i], p1[i] = iN[i]+t*dIn[j][i], iP[i]+t*dIp[j][i]
-			}
-			c, _ := Handover(res.VCM, n1, p1)
-			return c
-		}
-		out[j] = (at(h) - at(-h)) / (2 * h)
-	}
-	return out
 }
 
 // sigmaOf returns √(Σ_j (a_j·σ_j)²): the standard deviation of a linear

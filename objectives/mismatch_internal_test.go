@@ -3,6 +3,7 @@ package objectives
 import (
 	"math"
 	"math/rand/v2"
+	"slices"
 	"testing"
 )
 
@@ -72,32 +73,42 @@ func TestDiameter(t *testing.T) {
 	}
 }
 
-// TestSwitchoverGradient: the analytic gradient of Handover's switchover
-// along random changes of the pair currents agrees with central
-// differences of Handover itself (steps of 1e-6 of each current, error
-// of order h², our bound 1e-6 relative), on pair currents that hand over
-// as a tanh of the common mode (a current switch's shape, our choice),
-// with and without points where neither pair conducts; and a share that
-// does not move (no switchover) gives no gradient.
+// TestSwitchoverGradient: shareCentre's gradient of the switchover along
+// random changes of the pair currents agrees with central differences of
+// Handover itself (steps of 1e-6 of each current, error of order h², our
+// bound 1e-6 relative), on pair currents that hand over as a tanh of the
+// common mode (a current switch's shape, our choice), with and without
+// points where neither pair conducts, and on a share that rises and
+// falls back almost to its start (Handover's second centroid, of the
+// steps' sizes); a share that does not move has no switchover and no
+// gradient.
 func TestSwitchoverGradient(t *testing.T) {
 	rng := rand.New(rand.NewPCG(3, 4))
+	tanh := func(v float64) float64 { return 0.5 * (1 + math.Tanh((v-1.1)/0.08)) }
+	bump := func(v float64) float64 { return 0.1 + 0.8*math.Exp(-(v-0.9)*(v-0.9)/0.02) + 0.01*v }
 	for _, tc := range []struct {
-		name string
-		dead int // points at the low end where neither pair conducts
-	}{{"both pairs conduct everywhere", 0}, {"dead at the low end", 5}} {
+		name  string
+		share func(v float64) float64
+		dead  int // points at the low end where neither pair conducts
+	}{
+		{"both pairs conduct everywhere", tanh, 0},
+		{"dead at the low end", tanh, 5},
+		{"a share that moves both ways", bump, 0},
+	} {
 		np := 61
 		vcm, in, ip := make([]float64, np), make([]float64, np), make([]float64, np)
 		for i := range vcm {
 			vcm[i] = 1.8 * float64(i) / float64(np-1)
-			share := 0.5 * (1 + math.Tanh((vcm[i]-1.1)/0.08))
+			share := tc.share(vcm[i])
 			in[i], ip[i] = 20e-6*share+1e-9, 20e-6*(1-share)+2e-9
 			if i < tc.dead {
 				in[i], ip[i] = 0, 0
 			}
 		}
-		gIn, gIp, ok := switchoverGradient(vcm, in, ip)
-		if !ok {
-			t.Fatalf("%s: no gradient", tc.name)
+		gIn, gIp := make([]float64, np), make([]float64, np)
+		base := shareCentre(vcm, in, ip, gIn, gIp)
+		if want, _ := Handover(vcm, in, ip); math.Float64bits(base) != math.Float64bits(want) || math.IsNaN(base) {
+			t.Fatalf("%s: shareCentre %v, Handover %v", tc.name, base, want)
 		}
 		for trial := range 5 {
 			dIn, dIp := make([]float64, np), make([]float64, np)
@@ -124,7 +135,8 @@ func TestSwitchoverGradient(t *testing.T) {
 		}
 	}
 	flat := []float64{1e-6, 1e-6, 1e-6}
-	if _, _, ok := switchoverGradient([]float64{0, 1, 2}, flat, flat); ok {
-		t.Error("a share that does not move gives a gradient")
+	g := []float64{1, 1, 1}
+	if sw := shareCentre([]float64{0, 1, 2}, flat, flat, g, slices.Clone(g)); !math.IsNaN(sw) || g[0] != 0 {
+		t.Errorf("a share that does not move: switchover %v, gradient %v", sw, g)
 	}
 }

@@ -5,7 +5,8 @@ import (
 	"math"
 	"math/rand/v2"
 	"slices"
-	"sync"
+
+	"gonum.org/v1/gonum/stat"
 
 	"pairsmith/sim"
 	"pairsmith/sim/device"
@@ -97,32 +98,23 @@ func monteCarlo(d *Design, st *topologies.Stage, samples int, seed int64, worker
 	}
 	offs := make([][]float64, samples)
 	sws := make([]float64, samples)
-	errs := make([]error, samples)
-	next := make(chan int)
-	var wg sync.WaitGroup
-	for range max(1, min(workers, samples)) {
-		wg.Go(func() {
-			s, err := sim.NewSolver(st.Circuit, sim.Options{})
-			res := &sim.Result{}
-			for k := range next {
-				if err != nil {
-					errs[k] = err
-					continue
-				}
+	err = inParallel(samples, workers, func() func(int) error {
+		s, err := sim.NewSolver(st.Circuit, sim.Options{})
+		res := &sim.Result{}
+		return func(k int) error {
+			e := err
+			if e == nil {
 				c := WithShifts(st.Circuit, MismatchShifts(st, d.Process, seed, k))
-				offs[k], sws[k], errs[k] = sampleOffsets(s, c, st, d.Sweep, res)
+				offs[k], sws[k], e = sampleOffsets(s, c, st, d.Sweep, res)
 			}
-		})
-	}
-	for k := range samples {
-		next <- k
-	}
-	close(next)
-	wg.Wait()
-	for k, err := range errs {
-		if err != nil {
-			return nil, fmt.Errorf("monte carlo sample %d: %w", k, err)
+			if e != nil {
+				return fmt.Errorf("monte carlo sample %d: %w", k, e)
+			}
+			return nil
 		}
+	})
+	if err != nil {
+		return nil, err
 	}
 	vcm := make([]float64, np)
 	for i := range vcm {
@@ -130,64 +122,31 @@ func monteCarlo(d *Design, st *topologies.Stage, samples int, seed int64, worker
 	}
 	r := &MismatchResult{Sigma: d.sigma(), VCM: vcm, Offset: make([]float64, np), Method: MethodMonteCarlo, Samples: samples,
 		SampleOffsets: offs, SampleSwitchovers: sws}
-	// Centre every point's offsets on their mean: the spread is what
-	// mismatch adds to the stage's own (systematic) offset.
-	mean := make([]float64, np)
+	// Each point's offsets over the samples, centred on their mean: the
+	// spread is what mismatch adds to the stage's own (systematic)
+	// offset, and the change between two live points is the spread of
+	// V_os(a) − V_os(b), the largest over every pair the diameter of the
+	// centred columns.
+	cols := make([][]float64, 0, np)
 	for i := range np {
+		col := make([]float64, samples)
 		for k := range samples {
-			mean[i] += offs[k][i] / float64(samples)
+			col[k] = offs[k][i]
 		}
-	}
-	for i := range np {
-		v := 0.0
-		for k := range samples {
-			t := offs[k][i] - mean[i]
-			v += t * t
-		}
-		r.Offset[i] = math.Sqrt(v / float64(samples-1))
-		if !math.IsNaN(r.Offset[i]) {
-			r.OffsetSigma = math.Max(r.OffsetSigma, r.Offset[i])
-		}
-	}
-	// The change between two points: the largest spread of
-	// V_os(a) − V_os(b) over every pair of live points.
-	var drift float64
-	for a := range np {
-		if math.IsNaN(r.Offset[a]) {
+		r.Offset[i] = stat.StdDev(col, nil) // NaN where a sample's gm is dead
+		if math.IsNaN(r.Offset[i]) {
 			continue
 		}
-		for b := a + 1; b < np; b++ {
-			if math.IsNaN(r.Offset[b]) {
-				continue
-			}
-			v, m := 0.0, mean[a]-mean[b]
-			for k := range samples {
-				t := offs[k][a] - offs[k][b] - m
-				v += t * t
-			}
-			drift = math.Max(drift, v)
+		r.OffsetSigma = math.Max(r.OffsetSigma, r.Offset[i])
+		m := stat.Mean(col, nil)
+		for k := range col {
+			col[k] -= m
 		}
+		cols = append(cols, col)
 	}
-	r.DriftSigma = math.Sqrt(drift / float64(samples-1))
-	r.SwitchoverSigma = stddev(sws)
+	r.DriftSigma = math.Sqrt(diameter(cols) / float64(samples-1))
+	r.SwitchoverSigma = stat.StdDev(sws, nil)
 	return r, nil
-}
-
-// stddev is the sample standard deviation of xs (NaN when one is NaN or
-// there are fewer than two).
-func stddev(xs []float64) float64 {
-	if len(xs) < 2 {
-		return math.NaN()
-	}
-	m := 0.0
-	for _, x := range xs {
-		m += x / float64(len(xs))
-	}
-	v := 0.0
-	for _, x := range xs {
-		v += (x - m) * (x - m)
-	}
-	return math.Sqrt(v / float64(len(xs)-1))
 }
 
 // MonteCarloNominal draws samples Monte Carlo samples of design d at its

@@ -21,10 +21,6 @@ type noiseModel struct {
 	vcm, th, fl []float64
 }
 
-// density returns the input-referred noise density at point i and
-// frequency f, V/√Hz.
-func (nm *noiseModel) density(i int, f float64) float64 { return math.Sqrt(nm.th[i] + nm.fl[i]/f) }
-
 // thermalDensity is a channel's thermal current noise, A²/Hz: SPICE
 // level 1's 4kT·(2/3)·|g_m| (ngspice's, measured: TestNoiseAgainstNgspice),
 // and for EKV 4kT·γ·g_ms with γ from 1/2 in weak inversion (where it is
@@ -89,7 +85,7 @@ func (nm *noiseModel) result(f float64) *NoiseResult {
 	r := &NoiseResult{Frequency: f, VCM: nm.vcm, Curve: make([]float64, len(nm.th)), Thermal: nm.th, Flicker: nm.fl}
 	at := -1
 	for i := range nm.th {
-		r.Curve[i] = nm.density(i, f)
+		r.Curve[i] = r.At(i, f)
 		if !math.IsNaN(r.Curve[i]) && (at < 0 || r.Curve[i] > r.Curve[at]) {
 			at = i
 		}

@@ -295,30 +295,43 @@ func measureConditions(d *Design, nominal []float64, conds []Condition, out []Co
 	}
 	firsts[0] = nominal
 	close(ready[0])
-	errs := make([]error, len(conds))
+	return inParallel(len(conds), workers, func() func(int) error {
+		return func(i int) error {
+			k := i + 1
+			from := nearestStart(order, k)
+			<-ready[from] // published by a condition taken earlier
+			c := conds[i]
+			sw, err := sweep(d.Under(c), cache, firsts[from], func(x []float64) {
+				firsts[k] = append([]float64(nil), x...)
+				close(ready[k])
+			})
+			if err != nil {
+				return fmt.Errorf("at %s: %w", c, err)
+			}
+			out[i] = ConditionEval{Condition: c, Metrics: sw.metrics, Findings: sw.findings, Fine: true, Mismatch: sw.mismatch,
+				Noise: sw.noise, Curve: Curve(sw.st, sw.res)}
+			return nil
+		}
+	})
+}
+
+// inParallel runs job(i) for every i below n, in increasing order of
+// taking, on workers goroutines (at least one, at most n), each with the
+// job that start makes for it (around its own solver, say), and returns
+// the error of the lowest i that failed.
+func inParallel(n, workers int, start func() func(i int) error) error {
+	errs := make([]error, n)
 	next := make(chan int)
 	var wg sync.WaitGroup
-	for range max(1, min(workers, len(conds))) {
+	for range max(1, min(workers, n)) {
 		wg.Go(func() {
+			job := start()
 			for i := range next {
-				k := i + 1
-				from := nearestStart(order, k)
-				<-ready[from] // published by a condition taken earlier
-				c := conds[i]
-				sw, err := sweep(d.Under(c), cache, firsts[from], func(x []float64) {
-					firsts[k] = append([]float64(nil), x...)
-					close(ready[k])
-				})
-				if err != nil {
-					errs[i] = fmt.Errorf("at %s: %w", c, err)
-					continue
-				}
-				out[i] = ConditionEval{Condition: c, Metrics: sw.metrics, Findings: sw.findings, Fine: true, Mismatch: sw.mismatch,
-					Noise: sw.noise, Curve: Curve(sw.st, sw.res)}
+				errs[i] = job(i)
 			}
 		})
 	}
-	for i := range conds {
+	for i := range n {
 		next <- i
 	}
 	close(next)

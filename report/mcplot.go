@@ -5,6 +5,7 @@ import (
 	"image/color"
 	"math"
 
+	"gonum.org/v1/gonum/stat"
 	"gonum.org/v1/plot"
 	"gonum.org/v1/plot/plotter"
 	"gonum.org/v1/plot/vg"
@@ -75,7 +76,7 @@ func MonteCarloFigure(res *sizing.Result) (*Figure, error) {
 			p.Add(g)
 			p.Legend.Add(fmt.Sprintf("sensitivity: σ %.3g mV", s), g)
 		}
-		p.Legend.Add(fmt.Sprintf("%d samples: σ %.3g mV", len(vals), stddevOf(vals)), h)
+		p.Legend.Add(fmt.Sprintf("%d samples: σ %.3g mV", len(vals), stat.StdDev(vals, nil)), h)
 		p.Legend.Top = true
 		return p, nil
 	}
@@ -171,17 +172,4 @@ func offsetBand(sens, mc *objectives.MismatchResult) (*plot.Plot, error) {
 	}
 	p.Legend.Top = true
 	return p, nil
-}
-
-// stddevOf is the sample standard deviation of vs.
-func stddevOf(vs plotter.Values) float64 {
-	m := 0.0
-	for _, v := range vs {
-		m += v / float64(len(vs))
-	}
-	s := 0.0
-	for _, v := range vs {
-		s += (v - m) * (v - m)
-	}
-	return math.Sqrt(s / float64(len(vs)-1))
 }
