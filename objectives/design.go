@@ -113,7 +113,7 @@ func readDesign(m *units.Map, baseDir string) (*Design, error) {
 		if d.Sweep.Low, d.Sweep.High, d.Sweep.Step, d.FollowSupply, err = readRange(sw, d.Supply); err != nil {
 			return nil, err
 		}
-		if err := checkFollowing(sw, d.Sweep.Low, d.Sweep.Step, d.FollowSupply, d.Signoff); err != nil {
+		if err := checkFollowing(sw, d.Sweep.Low, d.Sweep.High, d.Sweep.Step, d.FollowSupply, d.Signoff); err != nil {
 			return nil, err
 		}
 	}
@@ -241,10 +241,7 @@ func (d *Design) Format() []byte {
 // when the process defines more than one; mismatch and load only when
 // they differ from the defaults.
 func (d *Design) formatSignoff(b *bytes.Buffer) {
-	so := d.Signoff
-	if len(so.Corners) == 0 { // a design made in code: its one condition
-		so = Signoff{Supply: Single(d.Supply), Temperature: Single(d.TempK), Sigma: DefaultSigma}
-	}
+	so := d.signoff()
 	span := func(key string, s Span, dim units.Dim) {
 		if s.IsSingle() {
 			fmt.Fprintf(b, "%s: %s\n", key, units.Format(s.Nominal, dim))

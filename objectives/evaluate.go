@@ -441,6 +441,10 @@ type EvalOptions struct {
 	MonteCarlo int
 	Seed       int64
 	Workers    int
+	// Works, when not nil, holds the targets whose gm_min and
+	// gm_ripple_max the lowest working supply must meet (MinSupplyOf);
+	// nil asks only for gm alive rail to rail.
+	Works *Targets
 }
 
 // EvaluateWith is Evaluate with options.
@@ -461,8 +465,9 @@ func EvaluateWith(d *Design, opt EvalOptions) (*Evaluation, error) {
 	ev.Conditions = make([]ConditionEval, len(conds))
 	ev.Conditions[0] = ConditionEval{Condition: conds[0], Metrics: sw.metrics, Findings: sw.findings, Fine: true, Mismatch: sw.mismatch,
 		Noise: sw.noise, Curve: Curve(st, res)}
+	cache := &SolverCache{}
 	if len(conds) > 1 {
-		if err := measureConditions(d, res.X[:s.Unknowns()], conds[1:], ev.Conditions[1:], &SolverCache{}, conditionWorkers()); err != nil {
+		if err := measureConditions(d, res.X[:s.Unknowns()], conds[1:], ev.Conditions[1:], cache, conditionWorkers()); err != nil {
 			return nil, err
 		}
 	}
@@ -492,7 +497,11 @@ func EvaluateWith(d *Design, opt EvalOptions) (*Evaluation, error) {
 		}
 		ev.Metrics = ev.Conditions[0].Metrics
 	}
-	ev.SetMinSupply(MinSupplyOf(d, NoTargets()))
+	works := NoTargets()
+	if opt.Works != nil {
+		works = *opt.Works
+	}
+	ev.SetMinSupply(MinSupplyOf(d, works, cache))
 	w := WorstOver(ev.Conditions, NoTargets())
 	ev.Worst, ev.WorstAt, ev.Findings = w.Metrics, w.At, w.Findings
 	ev.SummingCurrent = summingCurrent(st, res)

@@ -41,14 +41,14 @@ func meetsAt(d *Design, corner string, v, tempK float64, t Targets, cache *Solve
 // The corners and temperatures after the first cost one sweep each when
 // they work at the largest supply found so far, and a bisection above it
 // otherwise.
-func MinSupplyOf(d *Design, t Targets) float64 {
-	cache := &SolverCache{}
-	so := d.Signoff
-	corners, temps := so.Corners, so.Temperature.Values()
-	hi := so.Supply.Max
-	if len(corners) == 0 { // a design made in code: its own condition
-		corners, temps, hi = []string{d.Process.Corner}, []float64{d.TempK}, d.Supply
+//
+// Its sweeps take compiled solvers from cache (nil: one of its own).
+func MinSupplyOf(d *Design, t Targets, cache *SolverCache) float64 {
+	if cache == nil {
+		cache = &SolverCache{}
 	}
+	so := d.signoff()
+	corners, temps, hi := so.Corners, so.Temperature.Values(), so.Supply.Max
 	floor := MinSupply(d.Process)
 	need := floor // the largest lowest working supply so far
 	for _, c := range corners {

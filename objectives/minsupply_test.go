@@ -28,7 +28,7 @@ func TestMinSupplyAgainstSweep(t *testing.T) {
 		t    objectives.Targets
 	}{{"no targets", objectives.NoTargets()}, {"gm_min and ripple", tg}} {
 		t.Run(tt.name, func(t *testing.T) {
-			got := objectives.MinSupplyOf(d, tt.t)
+			got := objectives.MinSupplyOf(d, tt.t, nil)
 			works := func(v float64) bool {
 				at, err := d.At("", v, d.TempK)
 				if err != nil {

@@ -96,12 +96,20 @@ func readConditions(m *units.Map, baseDir string) (conditions, error) {
 	return c, nil
 }
 
-// checkFollowing refuses a range whose high end follows the supply when
-// the lowest supply leaves it less than one step above its low end.
-func checkFollowing(rm *units.Map, low, step float64, follows bool, s Signoff) error {
-	if follows && s.Supply.Min-low < step {
-		return rm.Errorf("low", "a low end at least one step (%s) below the lowest supply (%s)",
-			units.Format(step, units.Volt), units.Format(s.Supply.Min, units.Volt))
+// checkFollowing refuses a range that does not hold at the sign-off's
+// lowest supply, which readRange (at the nominal one) cannot see: a high
+// end that follows the supply less than one step above the low end, or
+// an end more than that supply beyond a rail.
+func checkFollowing(rm *units.Map, low, high, step float64, follows bool, s Signoff) error {
+	v := func(x float64) string { return units.Format(x, units.Volt) }
+	lowest := s.Supply.Min
+	switch {
+	case follows && lowest-low < step:
+		return rm.Errorf("low", "a low end at least one step (%s) below the lowest supply (%s)", v(step), v(lowest))
+	case low < -lowest:
+		return rm.Errorf("low", "a low end at most the lowest supply below the negative rail (at least %s)", v(-lowest))
+	case !follows && high > 2*lowest:
+		return rm.Errorf("high", "a high end at most the lowest supply above the positive rail (at most %s)", v(2*lowest))
 	}
 	return nil
 }

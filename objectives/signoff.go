@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"pairsmith/sim/device"
+	"pairsmith/topologies"
 	"pairsmith/units"
 )
 
@@ -98,6 +99,21 @@ func (s Signoff) Conditions() []Condition {
 		}
 	}
 	return out
+}
+
+// effectiveSignoff returns so, or, when it names no corner (a design or
+// sheet made in code, without a sign-off), the one condition of cond: its
+// process's corner, supply and temperature, at the default k.
+func effectiveSignoff(so Signoff, cond topologies.Conditions) Signoff {
+	if len(so.Corners) > 0 {
+		return so
+	}
+	c := ""
+	if cond.Process != nil {
+		c = cond.Process.Corner
+	}
+	return Signoff{Supply: Single(cond.Supply), Temperature: Single(cond.TempK), Corners: []string{c}, Nominal: c,
+		Sigma: DefaultSigma, Load: so.Load}
 }
 
 // Single reports whether the sign-off has one condition only.

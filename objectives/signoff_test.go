@@ -118,11 +118,25 @@ func TestSignoffErrors(t *testing.T) {
 		{name: "slew axis without a load", text: head + "supply: 1.8V\npareto: [power, slew]\n", field: "pareto[1]", line: 3, msg: []string{"load"}},
 		{name: "range above the lowest supply", text: head + "supply: {min: 1V, max: 1.98V}\ninput_range: {low: 0.995V}\n",
 			field: "input_range.low", line: 3, msg: []string{"lowest supply"}},
+		// A fixed end within a supply of a rail at the nominal 1.44 V
+		// (readRange's rule) but not at the lowest, 0.9 V.
+		{name: "fixed high beyond the lowest supply", text: head + "supply: {min: 0.9V, max: 1.98V}\ninput_range: {high: 2.5V}\n",
+			field: "input_range.high", line: 3, given: "2.5V", msg: []string{"lowest supply", "1.8V"}},
+		{name: "low beyond the lowest supply", text: head + "supply: {min: 0.9V, max: 1.98V}\ninput_range: {low: -1.2V}\n",
+			field: "input_range.low", line: 3, given: "-1.2V", msg: []string{"lowest supply", "-900mV"}},
 	}
 	checkBadYAML(t, tests, func(file string, data []byte, dir string) error {
 		_, err := objectives.ReadSpec(file, data, dir)
 		return err
 	})
+	// A design file's sweep takes the same rule.
+	checkBadYAML(t, []badYAML{{name: "design sweep beyond the lowest supply",
+		text: "topology: n-pair\nprocess: demo18\nsupply: {min: 0.9V, max: 1.98V}\nsweep: {high: 2.5V}\n",
+		field: "sweep.high", line: 4, given: "2.5V", msg: []string{"lowest supply"}}},
+		func(file string, data []byte, dir string) error {
+			_, err := objectives.ReadDesign(file, data, dir)
+			return err
+		})
 }
 
 // TestDesignSignoffRoundTrip checks that a design of a spec with a whole

@@ -212,7 +212,7 @@ func readSpec(m *units.Map, baseDir string) (*Spec, error) {
 		if s.Range.Low, s.Range.High, s.Step, s.Range.Follows, err = readRange(rm, s.Supply); err != nil {
 			return nil, err
 		}
-		if err := checkFollowing(rm, s.Range.Low, s.Step, s.Range.Follows, s.Signoff); err != nil {
+		if err := checkFollowing(rm, s.Range.Low, s.Range.High, s.Step, s.Range.Follows, s.Signoff); err != nil {
 			return nil, err
 		}
 	}
@@ -578,10 +578,7 @@ func (s Spec) MarshalJSON() ([]byte, error) {
 			Max     float64 `json:"max"`
 		}{sp.Min, sp.Nominal, sp.Max}
 	}
-	so := s.Signoff
-	if len(so.Corners) == 0 { // a spec made in code
-		so = Signoff{Supply: Single(s.Supply), Temperature: Single(s.TempK), Sigma: DefaultSigma}
-	}
+	so := effectiveSignoff(s.Signoff, s.Conditions)
 	var load *float64
 	if so.Load > 0 {
 		load = &so.Load

@@ -223,7 +223,7 @@ func (p *Problem) Evaluate(pt optimize.Point) optimize.Outcome {
 	if p.minSupply && !p.rejects(cs) {
 		// The lowest working supply costs a bisection: only for a
 		// candidate its looks did not turn down.
-		ms := objectives.MinSupplyOf(d, p.targets)
+		ms := objectives.MinSupplyOf(d, p.targets, &p.solvers)
 		for i := range cs {
 			cs[i].Metrics.MinSupply = ms
 		}

@@ -115,13 +115,13 @@ type Result struct {
 // samples), and one bad candidate must not lose the whole run.
 func reevaluate(prob *Problem, c optimize.Candidate, scales []float64) (*Candidate, error) {
 	d := prob.Design(c.Point)
-	ev, err := objectives.Evaluate(d)
+	var opt objectives.EvalOptions
+	if prob.minSupply {
+		opt.Works = &prob.Spec.Targets // the spec's own targets say what works
+	}
+	ev, err := objectives.EvaluateWith(d, opt)
 	if err != nil {
 		return nil, fmt.Errorf("%s: %w", d.Topology, err)
-	}
-	if prob.minSupply {
-		// The spec's own targets set what "works" means.
-		ev.SetMinSupply(objectives.MinSupplyOf(d, prob.Spec.Targets))
 	}
 	w := ev.WorstFor(prob.Spec.Targets)
 	vs := objectives.CheckWorst(w, ev.Conditions, prob.Spec.Targets)

@@ -9,6 +9,7 @@ import (
 	"os"
 	"runtime/debug"
 	"runtime/pprof"
+	"strings"
 
 	"github.com/spf13/cobra"
 
@@ -316,6 +317,7 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 		out                       string
 		cond                      conditionFlags
 		sample                    int
+		sampled                   bool // --mismatch-sample given
 		seed                      int64
 	)
 	c := &cobra.Command{
@@ -344,7 +346,7 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 			if err != nil {
 				return fmt.Errorf("netlist %s: %w", args[0], err)
 			}
-			if sample >= 0 {
+			if sampled {
 				if !d.Process.Mismatch.Given {
 					return badInput("--mismatch-sample: process %s gives no mismatch coefficients (a mismatch section in its file)", d.Process.Name)
 				}
@@ -402,14 +404,15 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 	c.Flags().BoolVar(&equivalent, level1EquivalentFlag, false,
 		"with --testbench, write an EKV process's nearest level-1 equivalent instead of refusing")
 	c.Flags().StringVarP(&out, "output", "o", "", "write to `FILE` instead of stdout")
-	c.Flags().IntVar(&sample, "mismatch-sample", -1, "with --testbench, give each transistor its own card: Monte Carlo sample `K` (0, 1, ...) of eval --monte-carlo")
+	c.Flags().IntVar(&sample, "mismatch-sample", 0, "with --testbench, give each transistor its own card: Monte Carlo sample `K` (0, 1, ...) of eval --monte-carlo")
 	c.Flags().Int64Var(&seed, "seed", 1, "random seed of --mismatch-sample, as eval --monte-carlo's")
 	cond.add(c)
-	c.PreRunE = func(*cobra.Command, []string) error {
-		if sample >= 0 && !testbench {
+	c.PreRunE = func(cmd *cobra.Command, _ []string) error {
+		sampled = cmd.Flags().Changed("mismatch-sample")
+		if sampled && !testbench {
 			return errors.New("--mismatch-sample needs --testbench")
 		}
-		if sample < -1 {
+		if sample < 0 {
 			return fmt.Errorf("--mismatch-sample %d: want a sample number from 0", sample)
 		}
 		if dc && !testbench {
@@ -417,6 +420,10 @@ func newNetlistCmd(stdout, stderr io.Writer) *cobra.Command {
 		}
 		if equivalent && !testbench {
 			return errors.New("--" + level1EquivalentFlag + " needs --testbench")
+		}
+		if equivalent && sampled {
+			return errors.New("--mismatch-sample gives each transistor a card of its own, which a --" + level1EquivalentFlag +
+				" deck cannot carry: use a level-1 process")
 		}
 		return nil
 	}
@@ -436,8 +443,8 @@ type conditionFlags struct {
 // add declares the flags on c.
 func (f *conditionFlags) add(c *cobra.Command) {
 	c.Flags().StringVar(&f.corner, "corner", "", "at the process corner `NAME` (tt, ff, ss, ... as the process defines)")
-	c.Flags().StringVar(&f.supply, "supply", "", "at the supply `V` instead of the design's (1.98V)")
-	c.Flags().StringVar(&f.temperature, "temperature", "", "at the temperature `T` instead of the design's (125C)")
+	c.Flags().StringVar(&f.supply, "supply", "", "at the supply `V` instead of the design's, for example 1.98V")
+	c.Flags().StringVar(&f.temperature, "temperature", "", "at the temperature `T` instead of the design's, for example 125C")
 }
 
 // apply returns d under the flags' condition (d itself when none is
@@ -460,7 +467,13 @@ func (f *conditionFlags) apply(d *objectives.Design) (*objectives.Design, error)
 	}
 	out, err := d.At(f.corner, supply, tempK)
 	if err != nil {
-		return nil, badInput("--corner/--supply/--temperature: %w", err)
+		var given []string
+		for _, g := range []struct{ flag, v string }{{"--corner", f.corner}, {"--supply", f.supply}, {"--temperature", f.temperature}} {
+			if g.v != "" {
+				given = append(given, g.flag+" "+g.v)
+			}
+		}
+		return nil, badInput("%s: %w", strings.Join(given, ", "), err)
 	}
 	return out, nil
 }

@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/json"
 	"math"
+	"os"
 	"path/filepath"
 	"regexp"
 	"strconv"
@@ -91,6 +92,15 @@ func TestConditionFlags(t *testing.T) {
 			}
 		}
 	}
+	// A sweep that does not follow the supply is kept: a supply that
+	// leaves its high end more than a supply beyond the rail is refused.
+	fixed := filepath.Join(t.TempDir(), "fixed.yaml")
+	if err := os.WriteFile(fixed, []byte("topology: current-switch\nprocess: demo18-l1\nsupply: 1.8V\nsweep: {low: 0V, high: 1.7V}\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if code, _, stderr := runCmd(t, "eval", fixed, "--supply", "0.8V"); code != exitBadInput || !strings.Contains(firstLine(stderr), "sweep from 0V to 1.7V") {
+		t.Errorf("eval --supply 0.8V of a sweep to 1.7 V: exit %d, %q; want %d naming the sweep", code, firstLine(stderr), exitBadInput)
+	}
 }
 
 // TestMismatchFlags: eval --monte-carlo N --seed S writes the Monte Carlo
@@ -146,6 +156,7 @@ func TestMismatchFlags(t *testing.T) {
 		{[]string{"eval", "--monte-carlo", "-3", path}, "--monte-carlo"},
 		{[]string{"netlist", "--mismatch-sample", "2", path}, "--mismatch-sample"},
 		{[]string{"netlist", "--testbench", "--mismatch-sample", "-2", path}, "--mismatch-sample"},
+		{[]string{"netlist", "--testbench", "--level1-equivalent", "--mismatch-sample", "1", filepath.Join(designsDir, "current-switch.yaml")}, "--level1-equivalent"},
 	} {
 		code, _, stderr := runCmd(t, tt.args...)
 		if code != exitBadInput || !strings.Contains(stderr, tt.flag) {
