@@ -131,7 +131,7 @@ func TestSignoffErrors(t *testing.T) {
 	})
 	// A design file's sweep takes the same rule.
 	checkBadYAML(t, []badYAML{{name: "design sweep beyond the lowest supply",
-		text: "topology: n-pair\nprocess: demo18\nsupply: {min: 0.9V, max: 1.98V}\nsweep: {high: 2.5V}\n",
+		text:  "topology: n-pair\nprocess: demo18\nsupply: {min: 0.9V, max: 1.98V}\nsweep: {high: 2.5V}\n",
 		field: "sweep.high", line: 4, given: "2.5V", msg: []string{"lowest supply"}}},
 		func(file string, data []byte, dir string) error {
 			_, err := objectives.ReadDesign(file, data, dir)
