@@ -86,8 +86,9 @@ func TestMonteCarloFigure(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	c := &sizing.Candidate{ID: "c01", Topology: "current-switch", Design: d, Eval: ev, Metrics: ev.Metrics, Worst: ev.WorstFor(spec.Targets), Feasible: true}
-	res := &sizing.Result{Spec: spec, Candidates: []*sizing.Candidate{c}, Best: c, MonteCarlo: mc, MonteCarloOf: c}
+	c := &sizing.Candidate{ID: "c01", Topology: "current-switch", Design: d, Eval: ev, Metrics: ev.Metrics, Worst: ev.WorstFor(spec.Targets), Feasible: true,
+		MonteCarlo: mc}
+	res := &sizing.Result{Spec: spec, Candidates: []*sizing.Candidate{c}, Best: c, MonteCarloOf: c}
 	f, err := MonteCarloFigure(res)
 	if err != nil {
 		t.Fatal(err)
@@ -106,11 +107,14 @@ func TestMonteCarloFigure(t *testing.T) {
 	}
 	// The finalists' table and summary.json: the sensitivity beside the
 	// Monte Carlo for a family's best that carries one.
-	c.MonteCarlo = mc
-	res.Families = []sizing.FamilyRank{{Topology: "current-switch", Rank: 1, Feasible: true, Best: c}}
-	rows := finalistRows(res)
-	if len(rows) != 1 || rows[0].OffsetMC != SI(mc.OffsetSigma, "V", tableDigits) || rows[0].Offset != SI(ev.Conditions[0].Mismatch.OffsetSigma, "V", tableDigits) || rows[0].Samples != 300 {
-		t.Errorf("finalists %+v", rows)
+	// The figure's candidate is listed once, also when it is no family's
+	// best (a run without a best).
+	for _, fams := range [][]sizing.FamilyRank{nil, {{Topology: "current-switch", Rank: 1, Feasible: true, Best: c}}} {
+		res.Families = fams
+		rows := finalistRows(res)
+		if len(rows) != 1 || rows[0].OffsetMC != SI(mc.OffsetSigma, "V", tableDigits) || rows[0].Offset != SI(ev.Conditions[0].Mismatch.OffsetSigma, "V", tableDigits) || rows[0].Samples != 300 {
+			t.Errorf("%d families: finalists %+v", len(fams), rows)
+		}
 	}
 	sum, err := Summary(res, RunOptions{})
 	if err != nil || !strings.Contains(string(sum), `"monte_carlo": {`) || !strings.Contains(string(sum), `"samples": 300`) {

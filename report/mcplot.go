@@ -16,7 +16,7 @@ import (
 
 // MonteCarloFigure draws the run's Monte Carlo samples of its best
 // candidate (else its first reported one) at the nominal condition
-// (sizing.Result.MonteCarlo): the offset against the common mode with
+// (sizing.Result.MonteCarloOf): the offset against the common mode with
 // its ±k-sigma band (offsetBand), a histogram of the input offset at the
 // common mode where its spread is largest and one of the switchover's
 // shift from its mean, each as a density beside the Gaussian of the
@@ -24,12 +24,13 @@ import (
 func MonteCarloFigure(res *sizing.Result) (*Figure, error) {
 	fig := &Figure{Title: fmt.Sprintf("Monte Carlo of a candidate, %s", oneLine(res.Spec.Name)), Caption: objectives.Caution,
 		Width: runFigureWidth}
-	mc, b := res.MonteCarlo, res.MonteCarloOf
-	if mc == nil || b == nil || b.Eval == nil || len(b.Eval.Conditions) == 0 || b.Eval.Conditions[0].Mismatch == nil {
-		fig.Subtitle = "no Monte Carlo: no candidate was reported, or the process has no mismatch coefficients"
+	b := res.MonteCarloOf
+	if b == nil || b.MonteCarlo == nil || b.Eval == nil || len(b.Eval.Conditions) == 0 || b.Eval.Conditions[0].Mismatch == nil {
+		fig.Subtitle = "no Monte Carlo: no candidate was reported, the process has no mismatch coefficients, " +
+			"the run was stopped first, or a sample had no DC solution"
 		return fig, nil
 	}
-	sens := b.Eval.Conditions[0].Mismatch
+	mc, sens := b.MonteCarlo, b.Eval.Conditions[0].Mismatch
 	// The common mode of the largest Monte Carlo spread.
 	at := 0
 	for i, s := range mc.Offset {
@@ -43,21 +44,17 @@ func MonteCarloFigure(res *sizing.Result) (*Figure, error) {
 			offs = append(offs, o[at]*1e3)
 		}
 	}
+	// Both are the nominal condition's sweep, point for point.
 	sigmaAt := math.NaN()
-	for i, v := range sens.VCM {
-		if math.Abs(v-mc.VCM[at]) < 1e-9 {
-			sigmaAt = sens.Offset[i]
-		}
+	if len(sens.Offset) == len(mc.Offset) {
+		sigmaAt = sens.Offset[at]
 	}
 	panel := func(vals plotter.Values, sigma float64, xLabel, what string) (*plot.Plot, error) {
 		p := newPanel(xLabel, "density (1/mV)")
 		if len(vals) < 2 {
 			return p, nil
 		}
-		mean := 0.0
-		for _, v := range vals {
-			mean += v / float64(len(vals))
-		}
+		mean := stat.Mean(vals, nil)
 		for i := range vals {
 			vals[i] -= mean
 		}

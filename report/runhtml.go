@@ -6,6 +6,7 @@ import (
 	"html/template"
 	"math"
 	"regexp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -627,7 +628,9 @@ func bindingItems(binding, at []string) []bindingItem {
 }
 
 // finalistRows lists the family bests that carry a Monte Carlo, in the
-// families' rank order.
+// families' rank order, after the candidate of the Monte Carlo figure
+// when it is none of them (a run without a best: its first reported
+// candidate).
 func finalistRows(res *sizing.Result) []pageFinalist {
 	var out []pageFinalist
 	volts := func(v float64) string {
@@ -636,8 +639,14 @@ func finalistRows(res *sizing.Result) []pageFinalist {
 		}
 		return SI(v, "V", tableDigits)
 	}
+	var cs []*sizing.Candidate
 	for _, f := range res.Families {
-		c := f.Best
+		cs = append(cs, f.Best)
+	}
+	if b := res.MonteCarloOf; b != nil && !slices.Contains(cs, b) {
+		cs = append([]*sizing.Candidate{b}, cs...)
+	}
+	for _, c := range cs {
 		if c == nil || c.MonteCarlo == nil || c.Eval == nil || len(c.Eval.Conditions) == 0 || c.Eval.Conditions[0].Mismatch == nil {
 			continue
 		}

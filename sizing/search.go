@@ -76,12 +76,11 @@ type Result struct {
 	// Best is the candidate of lowest Score among those that meet every
 	// target with the guard band (Margin) to spare; nil when none does.
 	Best *Candidate
-	// MonteCarlo is BestSamples Monte Carlo samples of MonteCarloOf (Best,
-	// else the first reported candidate) at its nominal condition
+	// MonteCarloOf is the candidate (Best, else the first reported one)
+	// whose MonteCarlo holds BestSamples samples at its nominal condition
 	// (objectives.MonteCarloNominal), for the report beside its
 	// sensitivity estimate; nil without a candidate or mismatch
 	// coefficients.
-	MonteCarlo   *objectives.MismatchResult
 	MonteCarloOf *Candidate
 	// BindingAt names, for each of Binding, the condition where it binds
 	// ("" when the spec has one condition).
@@ -227,34 +226,32 @@ func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimi
 	// each family's best, the nearest misses), and the order they are
 	// re-evaluated in.
 	type item struct {
-		c      optimize.Candidate
-		pareto bool
-		sc     *Candidate
-		err    error // why its re-evaluation failed
+		c   optimize.Candidate
+		sc  *Candidate
+		err error // why its re-evaluation failed
 	}
 	var items []*item
 	byKey := map[optimize.Key]*item{}
-	want := func(c optimize.Candidate, pareto bool) *item {
+	want := func(c optimize.Candidate) *item {
 		if it, ok := byKey[c.Key]; ok {
-			it.pareto = it.pareto || pareto
 			return it
 		}
-		it := &item{c: c, pareto: pareto}
+		it := &item{c: c}
 		byKey[c.Key] = it
 		items = append(items, it)
 		return it
 	}
 	for _, c := range front {
-		want(c, true)
+		want(c)
 	}
 	famItem := make([]*item, len(res.BestOf))
 	for i, fb := range res.BestOf {
 		if fb.OK {
-			famItem[i] = want(fb.Candidate, false)
+			famItem[i] = want(fb.Candidate)
 		}
 	}
 	for _, c := range res.Nearest {
-		want(c, false)
+		want(c)
 	}
 	order := make([]*item, 0, len(items))
 	if len(front) > 0 {
@@ -337,8 +334,23 @@ func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimi
 		case it.sc != nil && !it.sc.Buildable():
 			out.Unbuildable++
 		case it.sc != nil:
-			it.sc.Pareto = it.pareto
 			out.Candidates = append(out.Candidates, it.sc)
+		}
+	}
+	// The front of the feasible candidates on the reported numbers: the
+	// search's front was found on its lazier looks, and a candidate it
+	// left off can beat a member of it once both are evaluated again at
+	// every condition.
+	var feasible []*Candidate
+	var objs [][]float64
+	for _, sc := range out.Candidates {
+		if sc.Feasible {
+			feasible, objs = append(feasible, sc), append(objs, prob.Spec.Axes(sc.Metrics))
+		}
+	}
+	if fronts := optimize.NonDominatedSort(objs, nil); len(fronts) > 0 {
+		for _, i := range fronts[0] {
+			feasible[i].Pareto = true
 		}
 	}
 	counts := map[int]int{}
@@ -438,15 +450,13 @@ func gather(ctx context.Context, prob *Problem, res *optimize.Result, set optimi
 		b = out.Candidates[0]
 	}
 	if mc := monteCarloOf(ctx, b, BestSamples, workers); mc != nil {
-		out.MonteCarlo, out.MonteCarloOf = mc, b
+		b.MonteCarlo, out.MonteCarloOf = mc, b
 	}
 	// Every family's best is a finalist: its Monte Carlo beside its
 	// sensitivity estimate, with fewer samples.
 	for _, f := range out.Families {
 		if c := f.Best; c != nil && c != b {
 			c.MonteCarlo = monteCarloOf(ctx, c, FinalistSamples, workers)
-		} else if c == b && b != nil {
-			c.MonteCarlo = out.MonteCarlo
 		}
 	}
 	return out, nil
@@ -460,17 +470,7 @@ func monteCarloOf(ctx context.Context, c *Candidate, samples, workers int) *obje
 	if c == nil || c.Eval == nil || !c.Design.Process.Mismatch.Given || ctx.Err() != nil {
 		return nil
 	}
-	// The candidate carries the sign-off's conditions; the samples are
-	// drawn at its nominal one.
-	nom := c.Design
-	if len(c.Design.AllConditions()) > 1 {
-		at, err := c.Design.At("", c.Design.Supply, c.Design.TempK)
-		if err != nil {
-			return nil
-		}
-		nom = at
-	}
-	mc, err := objectives.MonteCarloNominal(nom, samples, MonteCarloSeed, workers)
+	mc, err := objectives.MonteCarloNominal(c.Design, samples, MonteCarloSeed, workers)
 	if err != nil {
 		return nil
 	}
