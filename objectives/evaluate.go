@@ -71,6 +71,12 @@ type Evaluation struct {
 	SummingCurrent float64
 }
 
+// Binding returns the condition at which the figure of a target or axis
+// key is worst over the evaluation's conditions (WorstCase.Binding).
+func (ev *Evaluation) Binding(key string) (Condition, bool) {
+	return WorstCase{At: ev.WorstAt}.Binding(ev.Conditions, key)
+}
+
 // SetMinSupply puts a design's lowest working supply into the metrics of
 // every condition (it is one value for the whole design) and the
 // nominal ones; the worst case is the caller's to form again.

@@ -51,7 +51,7 @@ func WorstOver(cs []ConditionEval, t Targets) WorstCase {
 	m, idx := worstIndexOf(catalog, ms, t)
 	w := WorstCase{Metrics: m, At: map[string]int{}}
 	for k, e := range catalog {
-		if idx[k] >= 0 {
+		if idx[k] >= 0 && (len(cs) == 1 || bindsAt(e, ms)) {
 			w.At[e.Key] = idx[k]
 		}
 	}
@@ -76,8 +76,26 @@ func WorstOver(cs []ConditionEval, t Targets) WorstCase {
 	return w
 }
 
+// bindsAt reports whether figure e's worst over ms is measured at one
+// condition rather than none: it has a value, and not the same one
+// everywhere (a design's area, its lowest working supply).
+func bindsAt(e Entry, ms []Metrics) bool {
+	first := e.Value(ms[0])
+	if math.IsNaN(first) {
+		return false
+	}
+	for _, m := range ms[1:] {
+		if v := e.Value(m); math.Float64bits(v) != math.Float64bits(first) {
+			return !math.IsNaN(v)
+		}
+	}
+	return false
+}
+
 // Binding returns the condition at which the figure of a target or axis
-// key is worst, and whether there is one.
+// key is worst, and whether there is one: none for a figure without a
+// value or with the same value at every condition, when there are
+// several.
 func (w WorstCase) Binding(cs []ConditionEval, key string) (Condition, bool) {
 	e, ok := Lookup(key)
 	if !ok {
@@ -103,10 +121,11 @@ type ConditionJSON struct {
 // or an unbounded ripple, as in Metrics) and the condition where it is
 // measured.
 type WorstJSON struct {
-	Value       *float64 `json:"value"`
-	Corner      string   `json:"corner"`
-	Supply      float64  `json:"supply"`      // V
-	Temperature float64  `json:"temperature"` // K
+	Value *float64 `json:"value"`
+	// The condition, left out when none binds (WorstCase.Binding).
+	Corner      string  `json:"corner,omitempty"`
+	Supply      float64 `json:"supply,omitempty"`      // V
+	Temperature float64 `json:"temperature,omitempty"` // K
 }
 
 // ConditionsJSON returns cs as `eval --json` writes them.
@@ -123,12 +142,14 @@ func ConditionsJSON(cs []ConditionEval) []ConditionJSON {
 func (w WorstCase) JSON(cs []ConditionEval) map[string]WorstJSON {
 	out := map[string]WorstJSON{}
 	for _, e := range catalog {
-		i, ok := w.At[e.Key]
-		if !ok || i < 0 || i >= len(cs) {
+		if e.Kind != Figure {
 			continue
 		}
-		c := cs[i].Condition
-		out[e.Key] = WorstJSON{Value: finite(e.Value(w.Metrics)), Corner: c.Corner, Supply: c.Supply, Temperature: c.TempK}
+		j := WorstJSON{Value: finite(e.Value(w.Metrics))}
+		if c, ok := w.Binding(cs, e.Key); ok {
+			j.Corner, j.Supply, j.Temperature = c.Corner, c.Supply, c.TempK
+		}
+		out[e.Key] = j
 	}
 	return out
 }
@@ -141,9 +162,6 @@ func CheckWorst(w WorstCase, cs []ConditionEval, t Targets) []Violation {
 	vs := t.Check(w.Metrics)
 	if len(cs) > 1 {
 		for i := range vs {
-			if vs[i].Target == TargetMinSupplyMax {
-				continue // one value for the whole sign-off
-			}
 			if c, ok := w.Binding(cs, vs[i].Target); ok {
 				vs[i].Condition = c.String()
 			}

@@ -230,3 +230,30 @@ func TestConditionsJSONOrder(t *testing.T) {
 		t.Errorf("corners %v, want tt then ss", got)
 	}
 }
+
+// TestBindingOnlyWhereItVaries: over several conditions, a figure with
+// one value everywhere (the area, the lowest working supply) or none is
+// worst at no one condition — eval's JSON gives its value without a
+// condition — while gm_min, which moves with the conditions, names one.
+func TestBindingOnlyWhereItVaries(t *testing.T) {
+	d := signoffDesign(t, "supply: {min: 1.62V, max: 1.98V}\ncorners: [tt, ss]\n")
+	ev, err := objectives.Evaluate(d)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, ok := ev.Binding("gm_min"); !ok {
+		t.Error("gm_min binds nowhere")
+	}
+	doc := ev.Doc()
+	for _, key := range []string{"area", "min_supply", "slew"} { // slew: no load, no value
+		if c, ok := ev.Binding(key); ok {
+			t.Errorf("%s binds at %v, want nowhere", key, c)
+		}
+		if w, ok := doc.Worst[key]; !ok || w.Corner != "" || w.Supply != 0 {
+			t.Errorf("eval --json's worst %s: %+v (present %v), want its value without a condition", key, w, ok)
+		}
+	}
+	if w := doc.Worst["area"]; w.Value == nil || *w.Value != ev.Worst.Area {
+		t.Errorf("worst area %+v, want %g", w, ev.Worst.Area)
+	}
+}

@@ -180,8 +180,8 @@ func bandBetween(lo, hi plotter.XYs) (*plotter.Polygon, error) {
 // conditionName names the condition where the candidate's figure key is
 // worst, "—" when there is none.
 func conditionName(c *sizing.Candidate, key string) string {
-	if i, ok := c.Worst.At[key]; ok && i >= 0 && i < len(c.Eval.Conditions) {
-		return c.Eval.Conditions[i].Condition.String()
+	if at, ok := c.Worst.Binding(c.Eval.Conditions, key); ok {
+		return at.String()
 	}
 	return "—"
 }

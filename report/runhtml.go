@@ -200,10 +200,7 @@ func candidateView(spec *objectives.Spec, c *sizing.Candidate) *pageCandidate {
 func worstRows(c *sizing.Candidate) []pageWorst {
 	var out []pageWorst
 	for _, e := range figuresUpTo(objectives.InEval) {
-		at := "—"
-		if i, ok := c.Worst.At[e.Key]; ok && i >= 0 && i < len(c.Eval.Conditions) && e.Key != objectives.AxisMinSupply && !math.IsNaN(e.Value(c.Metrics)) {
-			at = c.Eval.Conditions[i].Condition.String()
-		}
+		at := conditionName(c, e.Key)
 		out = append(out, pageWorst{Key: e.Key, Nominal: figureCell(e, e.Value(c.Eval.Metrics)), Worst: figureCell(e, e.Value(c.Metrics)), At: at})
 	}
 	return out

@@ -155,10 +155,8 @@ func worstTable(e *errWriter, ev *objectives.Evaluation, single bool) {
 		nnum, nunit, _ := strings.Cut(nv, " ")
 		wnum, wunit, _ := strings.Cut(wv, " ")
 		at := ""
-		// A figure without a value (NaN), or one value for the whole
-		// design (min_supply), is measured at no one condition.
-		if i, ok := ev.WorstAt[f.Key]; ok && i >= 0 && i < len(ev.Conditions) && !math.IsNaN(f.Value(ev.Worst)) && f.Key != objectives.AxisMinSupply {
-			at = ev.Conditions[i].Condition.String()
+		if c, ok := ev.Binding(f.Key); ok {
+			at = c.String()
 		}
 		meaning := f.Words.Meaning
 		if note := or(wnote, nnote); note != "" {
