@@ -53,8 +53,8 @@ func interpolate(curve []objectives.CurvePoint, vcm float64) (float64, bool) {
 // first reported one) against the common mode at every condition of the
 // spec (docs/conditions.md): each condition a thin line, the band
 // between the lowest and the highest gm at each common mode shaded, the
-// nominal condition bold and the condition where gm_min is worst dashed
-// and named, with the spec's gm_min target.
+// nominal condition bold and the condition where gm_min is worst bold in
+// dark red and named, with the spec's gm_min target.
 func ConditionsFigure(res *sizing.Result) (*Figure, error) {
 	spec := res.Spec
 	c := conditionsCandidate(res)
@@ -78,18 +78,29 @@ func ConditionsFigure(res *sizing.Result) (*Figure, error) {
 	}
 	scale, pre := ScaleSI(math.Max(top, nanTo0(gmTarget)))
 	p.Y.Label.Text = "gm (" + pre + "S)"
-	// The band over the nominal condition's common modes.
+	// The band over every condition's common modes (their ranges end at
+	// their own supplies), each bounded by the conditions that reach it.
+	var at []float64
+	for _, ce := range conds {
+		for _, pt := range ce.Curve {
+			at = append(at, pt.VCM)
+		}
+	}
+	sort.Float64s(at)
 	var lo, hi plotter.XYs
-	for _, pt := range conds[0].Curve {
+	for i, v := range at {
+		if i > 0 && v-at[i-1] < 1e-9 {
+			continue // the same common mode in another condition
+		}
 		mn, mx, any := math.Inf(1), math.Inf(-1), false
 		for _, ce := range conds {
-			if g, ok := interpolate(ce.Curve, pt.VCM); ok {
+			if g, ok := interpolate(ce.Curve, v); ok {
 				mn, mx, any = math.Min(mn, g), math.Max(mx, g), true
 			}
 		}
 		if any {
-			lo = append(lo, plotter.XY{X: pt.VCM, Y: mn * scale})
-			hi = append(hi, plotter.XY{X: pt.VCM, Y: mx * scale})
+			lo = append(lo, plotter.XY{X: v, Y: mn * scale})
+			hi = append(hi, plotter.XY{X: v, Y: mx * scale})
 		}
 	}
 	if band, err := bandBetween(lo, hi); err != nil {
@@ -98,7 +109,10 @@ func ConditionsFigure(res *sizing.Result) (*Figure, error) {
 		p.Add(band)
 	}
 	legend := figureLegend()
-	worst := c.Worst.At[objectives.AxisGMMin]
+	worst := 0 // the nominal condition, unless gm_min is worst elsewhere
+	if w, ok := c.Worst.At[objectives.AxisGMMin]; ok && w > 0 && w < len(conds) {
+		worst = w
+	}
 	curveLine := func(ce objectives.ConditionEval, col color.Color, width vg.Length, dashes []vg.Length) (*plotter.Line, error) {
 		var xs, ys []float64
 		for _, pt := range ce.Curve {
@@ -126,23 +140,32 @@ func ConditionsFigure(res *sizing.Result) (*Figure, error) {
 		return nil, err
 	}
 	p.Add(nom)
-	legend.Add("nominal: "+conds[0].Condition.String(), nom)
-	if worst > 0 && worst < len(conds) {
-		wl, err := curveLine(conds[worst], color.NRGBA{R: 0xc0, G: 0x20, B: 0x20, A: 0xff}, boldWidth, []vg.Length{vg.Points(5), vg.Points(2.5)})
+	others := len(conds) - 1
+	if worst > 0 {
+		// Solid, unlike the dashed gm_min target beside it.
+		wl, err := curveLine(conds[worst], accentRed, boldWidth, nil)
 		if err != nil {
 			return nil, err
 		}
 		p.Add(wl)
+		legend.Add("nominal: "+conds[0].Condition.String(), nom)
 		legend.Add("lowest gm: "+conds[worst].Condition.String(), wl)
+		others--
+	} else {
+		legend.Add("nominal, lowest gm: "+conds[0].Condition.String(), nom)
 	}
-	if len(conds) > 2 {
+	if others > 0 {
 		l, err := thinSwatch()
 		if err != nil {
 			return nil, err
 		}
-		legend.Add(fmt.Sprintf("thin: the other %d conditions; shaded: their range", len(conds)-2), l)
+		legend.Add(fmt.Sprintf("thin: the other %s; shaded: the range of all", conditionCount(others)), l)
 	}
-	if err := addGMTarget(p, &legend, spec, gmTarget, scale); err != nil {
+	high := spec.Range.High
+	if len(at) > 0 {
+		high = at[len(at)-1] // the highest supply's rail
+	}
+	if err := addGMTarget(p, &legend, spec, gmTarget, scale, high); err != nil {
 		return nil, err
 	}
 	p.Y.Min, p.Y.Max = 0, 1.1*math.Max(top, nanTo0(gmTarget))*scale
@@ -150,7 +173,7 @@ func ConditionsFigure(res *sizing.Result) (*Figure, error) {
 		p.Y.Max = 1
 	}
 	fig.Legend = &legend
-	fig.Subtitle = fmt.Sprintf("%s (%s) at %d conditions; ripple worst at %s", c.ID, c.Topology, len(conds),
+	fig.Subtitle = fmt.Sprintf("%s (%s) at %s; ripple worst at %s", c.ID, c.Topology, conditionCount(len(conds)),
 		conditionName(c, objectives.AxisGMRipple))
 	return fig, nil
 }

@@ -44,9 +44,10 @@ func TestConditionsFigure(t *testing.T) {
 	if !strings.Contains(f.Subtitle, "9 conditions") {
 		t.Errorf("subtitle %q", f.Subtitle)
 	}
-	// One path per condition's line, the band, the target, the legend's.
-	if n := strings.Count(text, "<path"); n < 9+1 {
-		t.Errorf("%d paths in the SVG, want at least one a condition and the band", n)
+	// One faded line (the only strokes drawn translucent) for each
+	// condition but the nominal and the lowest-gm ones, drawn bold.
+	if n := strings.Count(text, "stroke-opacity:0.6"); n != 9-2 {
+		t.Errorf("%d thin condition lines in the SVG, want %d", n, 9-2)
 	}
 	// The page's worst-case table: each figure's nominal and worst value
 	// and where the worst is.
@@ -67,6 +68,17 @@ func TestConditionsFigure(t *testing.T) {
 	page, err := RunPage(res, RunOptions{}, nil, nil, svg, nil)
 	if err != nil || !strings.Contains(string(page), "<h3>Worst case</h3>") || !strings.Contains(string(page), worst) {
 		t.Errorf("the page lacks the worst-case table naming %s (%v)", worst, err)
+	}
+	if !strings.Contains(string(page), "<h2>gm at every condition</h2>") || !strings.Contains(string(page), "worst case over 9 conditions: ") {
+		t.Error("the page lacks the conditions chart, or the best candidate's figures are not called the worst case")
+	}
+	// A spec of one condition: no chart repeating the gm curves, no
+	// worst case to call so.
+	spec1, d1, ev1 := currentSwitchOf(t, "name: one\nprocess: demo18-l1\nsupply: 1.8V\ncorners: tt\ninput_range: {low: 0V, high: supply, step: 50mV}\ntopologies: [current-switch]\n")
+	c1 := &sizing.Candidate{ID: "c01", Topology: "current-switch", Design: d1, Eval: ev1, Metrics: ev1.Metrics, Worst: ev1.WorstFor(spec1.Targets), Feasible: true, Pareto: true}
+	page1, err := RunPage(&sizing.Result{Spec: spec1, Candidates: []*sizing.Candidate{c1}, Best: c1}, RunOptions{}, nil, nil, svg, nil)
+	if err != nil || strings.Contains(string(page1), "<h2>gm at every condition</h2>") || strings.Contains(string(page1), "worst case over") {
+		t.Errorf("a page of one condition has the conditions chart or a worst case (%v)", err)
 	}
 	empty, err := ConditionsFigure(&sizing.Result{Spec: spec})
 	if err != nil || !strings.Contains(empty.Subtitle, "no candidate") {

@@ -68,7 +68,7 @@ func MonteCarloFigure(res *sizing.Result) (*Figure, error) {
 		p.Add(h)
 		if s := sigma * 1e3; s > 0 {
 			g := plotter.NewFunction(func(x float64) float64 { return math.Exp(-x*x/(2*s*s)) / (s * math.Sqrt(2*math.Pi)) })
-			g.Color = color.NRGBA{R: 0xc0, G: 0x20, B: 0x20, A: 0xff}
+			g.Color = accentRed
 			g.Width = boldWidth
 			p.Add(g)
 			p.Legend.Add(fmt.Sprintf("sensitivity: σ %.3g mV", s), g)
@@ -116,11 +116,18 @@ const bandSamples = 12
 // handover.
 func offsetBand(sens, mc *objectives.MismatchResult) (*plot.Plot, error) {
 	k := sens.Sigma
-	p := newPanel("vcm (V)", fmt.Sprintf("offset (mV), ±%g σ", k))
+	p := newPanel("vcm (V)", "offset about the mean (mV)")
+	top := 0.0 // the largest |offset| drawn, mV (NaN where gm is dead passes)
+	reach := func(v float64) {
+		if v > top {
+			top = v
+		}
+	}
 	var up, dn plotter.XYs
 	for i, v := range sens.VCM {
 		if s := sens.Offset[i]; !math.IsNaN(s) {
 			up, dn = append(up, plotter.XY{X: v, Y: k * s * 1e3}), append(dn, plotter.XY{X: v, Y: -k * s * 1e3})
+			reach(k * s * 1e3)
 		}
 	}
 	if poly, err := bandBetween(dn, up); err != nil {
@@ -142,6 +149,7 @@ func offsetBand(sens, mc *objectives.MismatchResult) (*plot.Plot, error) {
 		ys := make([]float64, len(o))
 		for i := range o {
 			ys[i] = o[i] - mean[i]
+			reach(math.Abs(ys[i]) * 1e3)
 		}
 		l, err := SeriesLine(mc.VCM, ys, 1e3, faded(styleGrey), nil)
 		if err != nil {
@@ -157,8 +165,9 @@ func offsetBand(sens, mc *objectives.MismatchResult) (*plot.Plot, error) {
 		ys := make([]float64, len(mc.Offset))
 		for i, s := range mc.Offset {
 			ys[i] = sign * k * s
+			reach(k * s * 1e3)
 		}
-		l, err := SeriesLine(mc.VCM, ys, 1e3, color.NRGBA{R: 0xc0, G: 0x20, B: 0x20, A: 0xff}, []vg.Length{vg.Points(5), vg.Points(2.5)})
+		l, err := SeriesLine(mc.VCM, ys, 1e3, accentRed, []vg.Length{vg.Points(5), vg.Points(2.5)})
 		if err != nil {
 			return nil, fmt.Errorf("plot the samples' band: %w", err)
 		}
@@ -168,5 +177,8 @@ func offsetBand(sens, mc *objectives.MismatchResult) (*plot.Plot, error) {
 		}
 	}
 	p.Legend.Top = true
+	if top > 0 { // room above the curves for the legend
+		p.Y.Min, p.Y.Max = -1.15*top, 1.9*top
+	}
 	return p, nil
 }

@@ -632,7 +632,7 @@ func specConditions(spec *objectives.Spec) string {
 		SI(spec.Supply, "V", tableDigits), Celsius(spec.TempK),
 		SI(spec.Range.Low, "V", tableDigits), SI(spec.Range.High, "V", tableDigits))
 	if so := spec.Signoff; len(so.Conditions()) > 1 {
-		out += fmt.Sprintf(", at %d conditions (%s)", len(so.Conditions()), signoffText(so))
+		out += fmt.Sprintf(", at %s (%s)", conditionCount(len(so.Conditions())), signoffText(so))
 	}
 	return out
 }
@@ -647,7 +647,20 @@ func signoffText(so objectives.Signoff) string {
 		return one(s.Min) + " … " + one(s.Max) + " (nominal " + one(s.Nominal) + ")"
 	}
 	volts := func(v float64) string { return SI(v, "V", tableDigits) }
-	return fmt.Sprintf("corners %s, supply %s, %s", strings.Join(so.Corners, " "), span(so.Supply, volts), span(so.Temperature, Celsius))
+	corners := "corners "
+	if len(so.Corners) == 1 {
+		corners = "corner "
+	}
+	return fmt.Sprintf("%s%s, supply %s, %s", corners, strings.Join(so.Corners, " "), span(so.Supply, volts), span(so.Temperature, Celsius))
+}
+
+// conditionCount writes a number of conditions: "1 condition", "45
+// conditions".
+func conditionCount(n int) string {
+	if n == 1 {
+		return "1 condition"
+	}
+	return fmt.Sprintf("%d conditions", n)
 }
 
 // familyIndex is a family's place in topologies.All(), which fixes its

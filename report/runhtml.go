@@ -41,6 +41,9 @@ type pageCandidate struct {
 	// those of every summary (objectives.InEvery), of the rankings
 	// (InRanking), those that Brief leaves out, and all.
 	Brief, Ranked, Rest, Full string
+	// Over says that its figures are the worst case over several
+	// conditions ("" at one).
+	Over string
 	// Its figures as table cells: those of the rankings, of the ranked
 	// families (InFamilies), and all (the Pareto table).
 	RankedCells, FamilyCells, FrontCells []string
@@ -172,6 +175,7 @@ func candidateView(spec *objectives.Spec, c *sizing.Candidate) *pageCandidate {
 	}
 	if c.Eval != nil && len(c.Eval.Conditions) > 1 {
 		v.Worst = worstRows(c)
+		v.Over = fmt.Sprintf("worst case over %d conditions", len(c.Eval.Conditions))
 	}
 	if c.Eval != nil {
 		v.MidVCM = SI(c.Eval.MidVCM, "V", tableDigits)
@@ -280,7 +284,7 @@ func specRows(spec *objectives.Spec) []pageRow {
 			SI(spec.Range.High, "V", tableDigits), SI(spec.Step, "V", tableDigits))},
 	}
 	if so := spec.Signoff; len(so.Corners) > 0 {
-		rows = append(rows[:4], append([]pageRow{{"sign-off", fmt.Sprintf("%d conditions: %s", len(so.Conditions()), signoffText(so))}}, rows[4:]...)...)
+		rows = append(rows[:4], append([]pageRow{{"sign-off", conditionCount(len(so.Conditions())) + ": " + signoffText(so)}}, rows[4:]...)...)
 	}
 	targets := TargetTexts(spec.Targets)
 	if len(targets) == 0 {
@@ -349,7 +353,7 @@ func RunPage(res *sizing.Result, opt RunOptions, paretoSVG, curvesSVG, condSVG, 
 		Thinned:    whole > reported,
 		ParetoSVG:  inlineSVG(paretoSVG),
 		CurvesSVG:  inlineSVG(curvesSVG),
-		CondSVG:    inlineSVG(condSVG),
+		CondSVG:    conditionsSVG(spec, condSVG),
 		MCSVG:      inlineSVG(mcSVG),
 		Finalists:  finalistRows(res),
 		Glossary:   glossary(),
@@ -488,7 +492,7 @@ dl.glossary dd { margin: 0.1rem 0 0 1.5rem; }
 {{if .RunID}}<p class="runid">run <code>{{.RunID}}</code></p>
 {{end}}<p class="sub">pairsmith run {{.Conditions}}</p>
 <p class="caution">{{.Caution}}</p>
-{{if .Feasible}}<div class="verdict ok">Best candidate: <strong><a href="#{{.Best.ID}}">{{.Best.ID}}</a></strong> ({{.Best.Topology}}), which meets every target:
+{{if .Feasible}}<div class="verdict ok">Best candidate: <strong><a href="#{{.Best.ID}}">{{.Best.ID}}</a></strong> ({{.Best.Topology}}), which meets every target{{with .Best.Over}}, {{.}}{{end}}:
 {{.Best.Ranked}}.
 Files: <a href="{{.Best.Design}}"><code>{{.Best.Design}}</code></a>, <a href="{{.Best.Netlist}}"><code>{{.Best.Netlist}}</code></a>.</div>
 {{else}}<div class="verdict miss"><strong>No candidate meets the spec.</strong>
@@ -516,7 +520,7 @@ Files: <a href="{{.Best.Design}}"><code>{{.Best.Design}}</code></a>, <a href="{{
 {{end}}{{end}}</table></div>
 
 {{with or .Best .Nearest}}<h2>{{if $.Feasible}}Best candidate{{else}}Nearest candidate{{end}}: {{.ID}} ({{.Topology}})</h2>
-<p>{{.Status}}; {{.Full}}, score {{.Score}}.
+<p>{{.Status}}; {{with .Over}}{{.}}: {{end}}{{.Full}}, score {{.Score}}.
 Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}"><code>{{.Netlist}}</code></a>.</p>
 {{if .Misses}}<p class="misses">misses {{range $i, $m := .Misses}}{{if $i}}; {{end}}{{$m}}{{end}}</p>{{end}}
 {{if .Worst}}<h3>Worst case</h3>
@@ -530,9 +534,9 @@ Files: <a href="{{.Design}}"><code>{{.Design}}</code></a>, <a href="{{.Netlist}}
 <figure>{{.ParetoSVG}}</figure>
 <h2>gm over the input range</h2>
 <figure>{{.CurvesSVG}}</figure>
-<h2>gm at every condition</h2>
+{{if .CondSVG}}<h2>gm at every condition</h2>
 <figure>{{.CondSVG}}</figure>
-<h2>Mismatch: Monte Carlo and sensitivities</h2>
+{{end}}<h2>Mismatch: Monte Carlo and sensitivities</h2>
 <figure>{{.MCSVG}}</figure>
 {{if .Finalists}}<p>Each family's best at its nominal condition: one-sigma offset (the largest over the range) and switchover shift, by first-order sensitivities and by Monte Carlo.</p>
 <table>
@@ -622,6 +626,15 @@ func bindingItems(binding, at []string) []bindingItem {
 		}
 	}
 	return out
+}
+
+// conditionsSVG is the conditions chart inlined, or nothing for a spec
+// of one condition, where it would repeat the gm curves.
+func conditionsSVG(spec *objectives.Spec, svg []byte) template.HTML {
+	if len(spec.Signoff.Conditions()) < 2 {
+		return ""
+	}
+	return inlineSVG(svg)
 }
 
 // finalistRows lists the family bests that carry a Monte Carlo, in the

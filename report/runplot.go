@@ -215,13 +215,18 @@ func panelAxes(spec *objectives.Spec) (x axisView, ys []axisView) {
 	return x, ys
 }
 
+// accentRed draws what a figure is measured against or at: budgets and
+// targets (dashed), the condition where gm is lowest, the sensitivity
+// estimate beside Monte Carlo samples.
+var accentRed = color.RGBA{R: 0xb0, G: 0x10, B: 0x10, A: 0xff}
+
 // budgetLine makes a dashed red line through pts: a budget.
 func budgetLine(pts plotter.XYs) (*plotter.Line, error) {
 	l, err := plotter.NewLine(pts)
 	if err != nil {
 		return nil, err
 	}
-	l.LineStyle.Color = color.RGBA{R: 0xb0, G: 0x10, B: 0x10, A: 0xff}
+	l.LineStyle.Color = accentRed
 	l.LineStyle.Width = vg.Points(1)
 	l.LineStyle.Dashes = []vg.Length{vg.Points(4), vg.Points(3)}
 	return l, nil
@@ -506,7 +511,7 @@ func CurvesFigure(res *sizing.Result) (*Figure, error) {
 		}
 		legend.Add(fmt.Sprintf("thin: %d front members", len(thin)), l)
 	}
-	if err := addGMTarget(p, &legend, spec, gmTarget, scale); err != nil {
+	if err := addGMTarget(p, &legend, spec, gmTarget, scale, spec.Range.High); err != nil {
 		return nil, err
 	}
 	var sub string
@@ -563,13 +568,14 @@ func thinSwatch() (*plotter.Line, error) {
 	return l, nil
 }
 
-// addGMTarget draws a gm_min target (when finite) across the spec's input
-// range as the dashed budget line, named in the legend.
-func addGMTarget(p *plot.Plot, legend *plot.Legend, spec *objectives.Spec, gmTarget, scale float64) error {
+// addGMTarget draws a gm_min target (when finite) from the low end of the
+// spec's input range to high as the dashed budget line, named in the
+// legend.
+func addGMTarget(p *plot.Plot, legend *plot.Legend, spec *objectives.Spec, gmTarget, scale, high float64) error {
 	if !finiteVal(gmTarget) {
 		return nil
 	}
-	bl, err := budgetLine(plotter.XYs{{X: spec.Range.Low, Y: gmTarget * scale}, {X: spec.Range.High, Y: gmTarget * scale}})
+	bl, err := budgetLine(plotter.XYs{{X: spec.Range.Low, Y: gmTarget * scale}, {X: high, Y: gmTarget * scale}})
 	if err != nil {
 		return err
 	}
