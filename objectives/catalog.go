@@ -354,7 +354,7 @@ var catalog = []Entry{
 		Axis: Axis{Scale: DefaultScaleNoise, Missing: func(Range) float64 { return worstAxisValue }},
 		Words: Words{Meaning: "input noise density at the design's frequency (10 kHz unless set), largest over the sweep", Shown: InEval,
 			Missing: "not estimated", Incomplete: "not estimated",
-			Doc: "the input-referred voltage noise density at 10 kHz, the largest over the range: every transistor's thermal and flicker noise carried to the output by the solved circuit and referred to the input through gm (docs/noise.md)."},
+			Doc: "the input-referred voltage noise density at the design's noise frequency (10 kHz unless a noise_max target sets it), the largest over the range: every transistor's thermal and flicker noise carried to the output by the solved circuit and referred to the input through gm (docs/noise.md)."},
 	},
 	{
 		Key: CheckGeometry, Kind: Constraint, Dim: units.Metre, Sense: AtLeast,

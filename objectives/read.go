@@ -5,6 +5,8 @@ import (
 	"fmt"
 	"path/filepath"
 	"strings"
+	"unicode"
+	"unicode/utf8"
 
 	"pairsmith/sim/device"
 	"pairsmith/topologies"
@@ -136,6 +138,9 @@ func readRange(rm *units.Map, supply float64) (low, high, step float64, follows 
 	if t, ok, _ := rm.String("high"); !ok || t != HighSupply {
 		follows = false
 		if high, err = rm.QuantityOr("high", units.Volt, supply); err != nil {
+			if w, _ := utf8.DecodeRuneInString(t); unicode.IsLetter(w) { // a word, not a quantity
+				err = rm.Errorf("high", "a voltage, for example 1.7V, or %s to follow the supply", HighSupply)
+			}
 			return
 		}
 		follows = !ok

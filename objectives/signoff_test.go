@@ -220,3 +220,17 @@ func TestNoiseTarget(t *testing.T) {
 		return err
 	})
 }
+
+// TestHighEndWord: a sweep's high end written as a word other than
+// supply is told what the field takes, the word that follows the
+// supply among it; a quantity in the wrong unit keeps the unit's message.
+func TestHighEndWord(t *testing.T) {
+	const head = "topology: n-pair\nprocess: demo18\nsupply: 1.8V\n"
+	checkBadYAML(t, []badYAML{
+		{name: "capitalised word", text: head + "sweep: {high: Supply}\n", field: "sweep.high", line: 4, given: "Supply", msg: []string{"or supply to follow the supply"}},
+		{name: "a current", text: head + "sweep: {high: 1.7A}\n", field: "sweep.high", line: 4, given: "1.7A", msg: []string{"in V"}},
+	}, func(file string, data []byte, dir string) error {
+		_, err := objectives.ReadDesign(file, data, dir)
+		return err
+	})
+}

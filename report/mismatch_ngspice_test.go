@@ -17,7 +17,8 @@ import (
 // gives in ngspice (Debian package) pairsmith's gm for that sample within
 // 1 % of the peak at every common mode, and its input offset — the VID
 // that zeroes I(VOUT), found by ngspice's own sweep of VID around it —
-// within 1 % (issue 9), for the current switch on demo18-l1 across the
+// within 0.1 % (issue 9 asks 1 %; the two agree to six digits), for the
+// current switch on demo18-l1 across the
 // handover.
 func TestMismatchSampleAgainstNgspice(t *testing.T) {
 	ngspice.Require(t)
@@ -93,7 +94,7 @@ func TestMismatchSampleAgainstNgspice(t *testing.T) {
 				break
 			}
 		}
-		if math.IsNaN(zero) || math.Abs(zero-off) > 0.01*math.Abs(off) {
+		if math.IsNaN(zero) || math.Abs(zero-off) > 1e-3*math.Abs(off) {
 			t.Errorf("vcm %g V: offset %g V in ngspice, %g V in pairsmith", vcm, zero, off)
 		}
 		t.Logf("vcm %g V: offset pairsmith %.6g V, ngspice %.6g V", vcm, off, zero)

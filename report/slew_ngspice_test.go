@@ -16,11 +16,12 @@ import (
 // reports (slew_current: the inputs 0.5 V apart, each held within the
 // rails, the smaller of the two polarities) equals what ngspice (Debian
 // package) finds with the same deck's VCM and VID at those values, within
-// 0.5 % (issue 9), for the n-pair and the current switch on demo18-l1 at
-// common modes in the middle and near each rail; and for the n-pair it is
-// its tail current (textbook: a pair driven hard steers its whole tail to
-// one side), the NMOS pair's total current there, within 0.5 %, where the
-// pair conducts (at 0.1 V it is off: no current, no slew).
+// 1e-4 (issue 9 asks 0.5 %; the two agree to six digits), for the n-pair
+// and the current switch on demo18-l1 at common modes in the middle and
+// near each rail; and for the n-pair it is its tail current (textbook: a
+// pair driven hard steers its whole tail to one side), the NMOS pair's
+// total current there, within 0.5 %, where the pair conducts (at 0.1 V it
+// is off: no current, no slew).
 func TestSlewAgainstNgspice(t *testing.T) {
 	ngspice.Require(t)
 	const supply = 1.8
@@ -63,7 +64,7 @@ func TestSlewAgainstNgspice(t *testing.T) {
 				up, inUp := cur(dm)
 				dn, _ := cur(-dm)
 				want := math.Min(math.Abs(up), math.Abs(dn))
-				if math.Abs(got-want) > 0.005*want {
+				if math.Abs(got-want) > 1e-4*want {
 					t.Errorf("slew current %g A, ngspice %g A", got, want)
 				}
 				if family == "n-pair" && inUp > 1e-7 && math.Abs(got-inUp) > 0.005*inUp { // where the pair conducts

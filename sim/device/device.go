@@ -182,7 +182,11 @@ func (c *Level1) mobilityExponent() float64 {
 	if c.LinearTemp {
 		return c.BEX
 	}
-	return -1.5
+	return spiceMobilityExponent
 }
+
+// spiceMobilityExponent is the SPICE level-1 law's: KP ∝ (T/Tnom)^−1.5,
+// which Level1.temperature writes as KP/(r·√r), SPICE's own form.
+const spiceMobilityExponent = -1.5
 
 func (c *EKV) mobilityExponent() float64 { return c.BEX }

@@ -71,7 +71,7 @@ func (c *Level1) temperature(tempK float64) (vbi, vto, phi, kp float64) {
 	}
 	tn := c.TnomK
 	ratio := tempK / tn
-	kp = c.KP / (ratio * math.Sqrt(ratio))
+	kp = c.KP / (ratio * math.Sqrt(ratio)) // (T/Tnom)^spiceMobilityExponent
 	phi0 := (c.Phi - pb(tn)) / (tn / spiceRefTemp)
 	phi = tempK/spiceRefTemp*phi0 + pb(tempK)
 	vbi = c.VTO - typ*c.Gamma*math.Sqrt(c.Phi) + 0.5*(eg(tn)-eg(tempK)) + typ*0.5*(phi-c.Phi)
@@ -208,8 +208,7 @@ func (m *level1Inst) channel(vgs, vds, vbs float64) (cd, gm, gds, gmbs, von, vgs
 	if vgst <= 0 {
 		return 0, 0, 0, 0, von, vgst
 	}
-	cd = m.drain(vgst, vds)
-	betap := m.beta * (1 + m.lambda*vds)
+	cd, betap := m.drain(vgst, vds)
 	if vgst <= vds { // saturation
 		gm = betap * vgst
 		gds = 0.5 * m.lambda * m.beta * vgst * vgst
@@ -232,17 +231,18 @@ func (m *level1Inst) threshold(vgs, vbs float64) (von, vgst, dsarg float64) {
 }
 
 // drain returns the square law's drain current at overdrive vgst and
-// vds ≥ 0 (normal mode, NMOS sense): 0 in cutoff, saturation and linear
-// region as in SPICE's MOS1.
-func (m *level1Inst) drain(vgst, vds float64) float64 {
+// vds ≥ 0 (normal mode, NMOS sense) — 0 in cutoff, saturation (vgst ≤
+// vds) and linear region as in SPICE's MOS1 — and β·(1 + λ·vds), of
+// which its derivatives are made.
+func (m *level1Inst) drain(vgst, vds float64) (cd, betap float64) {
 	if vgst <= 0 {
-		return 0
+		return 0, 0
 	}
-	betap := m.beta * (1 + m.lambda*vds)
+	betap = m.beta * (1 + m.lambda*vds)
 	if vgst <= vds {
-		return 0.5 * betap * vgst * vgst
+		return 0.5 * betap * vgst * vgst, betap
 	}
-	return betap * vds * (vgst - 0.5*vds)
+	return betap * vds * (vgst - 0.5*vds), betap
 }
 
 // Eval returns the channel current into the drain and its derivatives with
@@ -320,7 +320,8 @@ func (m *level1Inst) LargeSignal(vd, vg, vs, vb float64) LargeSignal {
 		vgs, vbs, vds, sign = vgs-vds, vbs-vds, -vds, -s
 	}
 	von, vgst, _ := m.threshold(vgs, vbs)
-	return LargeSignal{ID: sign * m.drain(vgst, vds), VTH: s * von, VDSAT: s * max(vgst, 0), Region: level1Region(vgst, vds)}
+	cd, _ := m.drain(vgst, vds)
+	return LargeSignal{ID: sign * cd, VTH: s * von, VDSAT: s * max(vgst, 0), Region: level1Region(vgst, vds)}
 }
 
 // SpiceCard returns a `.model NAME nmos (level=1 ...)` line that reproduces
