@@ -84,8 +84,8 @@ func Celsius(tempK float64) string {
 // in 10 mV steps (181 points)".
 func Conditions(ev *objectives.Evaluation) string {
 	d := ev.Design
-	return fmt.Sprintf("%s on %s, supply %s, %s, vcm %s to %s in %s steps (%d points)",
-		d.Topology, processName(d.ProcessRef, d.Process), SI(d.Supply, "V", tableDigits), Celsius(d.TempK),
+	return fmt.Sprintf("%s on %s%s, supply %s, %s, vcm %s to %s in %s steps (%d points)",
+		d.Topology, processName(d.ProcessRef, d.Process), atCorner(d.Process), SI(d.Supply, "V", tableDigits), Celsius(d.TempK),
 		SI(d.Sweep.Low, "V", tableDigits), SI(d.Sweep.High, "V", tableDigits),
 		SI(d.Sweep.Step, "V", tableDigits), ev.Result.Len())
 }
@@ -116,7 +116,13 @@ func MetricsTable(w io.Writer, ev *objectives.Evaluation) error {
 	e := &errWriter{w: w}
 	m := ev.Metrics
 	single := singlePair(ev)
-	e.printf("%s\n\n", Conditions(ev))
+	e.printf("%s\n", Conditions(ev))
+	if len(ev.Conditions) > 0 {
+		if mm := ev.Conditions[0].Mismatch; mm != nil && mm.Method == objectives.MethodMonteCarlo {
+			e.printf("mismatch figures from %d Monte Carlo samples at each condition\n", mm.Samples)
+		}
+	}
+	e.printf("\n")
 	// Columns: metric, number (right-aligned), unit, note and meaning.
 	t := &textTable{right: []bool{false, true, false, false}, tight: []bool{false, false, true, false}}
 	row := func(name, value, note, meaning string) {

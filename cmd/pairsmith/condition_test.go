@@ -92,6 +92,11 @@ func TestConditionFlags(t *testing.T) {
 			}
 		}
 	}
+	// eval's table names the corner, and a Monte Carlo estimate says so.
+	if code, out, stderr := runCmd(t, "eval", path, "--corner", "ff", "--monte-carlo", "20"); code != exitOK ||
+		!strings.Contains(firstLine(out), "at corner ff") || !strings.Contains(out, "from 20 Monte Carlo samples") {
+		t.Errorf("eval --corner ff --monte-carlo 20: exit %d, %q (%s)", code, out, stderr)
+	}
 	// A sweep that does not follow the supply is kept: a supply that
 	// leaves its high end more than a supply beyond the rail is refused.
 	fixed := filepath.Join(t.TempDir(), "fixed.yaml")
